@@ -1,0 +1,140 @@
+"""Command line: a thin layer of argument parsing and formatting over the package.
+
+Every command is one call into the package plus printing.  Errors of the
+``SplittingError`` tree become one line on standard error and a non-zero exit status;
+set ``SPLITTING_DEBUG=1`` to see tracebacks.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import sys
+from collections.abc import Callable, Sequence
+
+from .errors import InputError, SplittingError
+
+__all__ = ["build_parser", "main"]
+
+Handler = Callable[[argparse.Namespace], int]
+_COMMANDS: dict[str, Handler] = {}
+
+
+def _command(name: str) -> Callable[[Handler], Handler]:
+    def register(fn: Handler) -> Handler:
+        _COMMANDS[name] = fn
+        return fn
+
+    return register
+
+
+def _emit(args: argparse.Namespace, payload: dict, text: Callable[[], str]) -> int:
+    if getattr(args, "json", False):
+        print(json.dumps(payload, indent=2, ensure_ascii=False))
+    else:
+        print(text())
+    return 0
+
+
+# ------------------------------------------------------------------ commands
+@_command("group")
+def _group(args: argparse.Namespace) -> int:
+    from .activity import activity_table
+    from .groups.catalogue import canonical_name
+    from .groups.linear import linear_group
+    from .groups.pointgroup import point_group
+    from .report.text import embeddings_text, group_text
+
+    try:
+        name = canonical_name(args.symbol)
+    except SplittingError as exc:
+        raise InputError(str(exc)) from None
+    if args.to:
+        from .groups.subgroups import embeddings
+
+        if "∞" in name:
+            raise InputError("subgroup embeddings of linear groups are not enumerated; give a finite group")
+        embs = embeddings(name, args.to)
+        return _emit(args, {"group": name, "embeddings": [e.to_dict() for e in embs]},
+                     lambda: embeddings_text(name, args.to))
+    grp = linear_group(name) if "∞" in name else point_group(name)
+    payload = grp.to_dict()
+    payload["selection_rules"] = [a.to_dict() for a in activity_table(name)]
+    return _emit(args, payload, lambda: group_text(name))
+
+
+@_command("molecule")
+def _molecule(args: argparse.Namespace) -> int:
+    from .molecule.analysis import analyse_unit
+    from .readers import read_atoms
+    from .report.text import molecule_text
+
+    atoms = read_atoms(args.file)
+    result = analyse_unit(atoms.numbers, atoms.positions, tolerance=args.tolerance, point_group=args.point_group,
+                          symbols=atoms.get_chemical_symbols())
+    return _emit(args, result.to_dict(), lambda: molecule_text(result))
+
+
+# -------------------------------------------------------------------- parser
+def build_parser() -> argparse.ArgumentParser:
+    """The argument parser of the ``splitting`` command."""
+    from .molecule.symmetry import DEFAULT_TOLERANCE
+
+    p = argparse.ArgumentParser(
+        prog="splitting",
+        description="How molecular bands split in crystals: site and factor-group analysis, lattice modes, "
+        "IR/Raman activity, orientational order, and assignment of measured spectra.",
+    )
+    sub = p.add_subparsers(dest="command", metavar="COMMAND")
+    sub.required = True
+
+    g = sub.add_parser("group", help="character table and selection rules of a point group; --to for subgroups")
+    g.add_argument("symbol", help="Schoenflies (D4h, C3i, D∞h or Dinfh) or Hermann-Mauguin (4/mmm) symbol")
+    g.add_argument("--to", metavar="SUBGROUP", help="every inequivalent way SUBGROUP sits in the group, "
+                   "with the correlation of every species")
+    g.add_argument("--json", action="store_true", help="print JSON instead of text")
+
+    m = sub.add_parser("molecule", help="point group and vibrational species of a free molecule or ion")
+    m.add_argument("file", help="structure file (XYZ, or any format ase reads)")
+    m.add_argument("--tolerance", type=float, default=DEFAULT_TOLERANCE,
+                   help=f"largest displacement of an atom from its symmetric position, angstrom "
+                   f"(default {DEFAULT_TOLERANCE})")
+    m.add_argument("--point-group", metavar="NAME", help="use this subgroup of the detected group")
+    m.add_argument("--json", action="store_true", help="print JSON instead of text")
+
+    for extra in _EXTRA_PARSERS:
+        extra(sub)
+    return p
+
+
+_EXTRA_PARSERS: list[Callable[[argparse._SubParsersAction], None]] = []
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Entry point of the ``splitting`` command; returns the exit status."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if getattr(args, "tolerance", None) is not None and args.tolerance <= 0:
+        print("error: --tolerance must be positive", file=sys.stderr)
+        return 2
+    try:
+        return _COMMANDS[args.command](args)
+    except SplittingError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return exc.exit_code
+    except KeyboardInterrupt:  # pragma: no cover
+        print("error: interrupted", file=sys.stderr)
+        return 130
+    except BrokenPipeError:  # pragma: no cover
+        return 0
+    except Exception as exc:  # pragma: no cover - a bug; keep the one-line promise
+        if os.environ.get("SPLITTING_DEBUG"):
+            raise
+        print(f"error: internal error ({type(exc).__name__}: {exc}); set SPLITTING_DEBUG=1 for details "
+              "and please report it", file=sys.stderr)
+        return 70
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

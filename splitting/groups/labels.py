@@ -1,0 +1,184 @@
+"""Mulliken labels and class names, derived from characters at named operations.
+
+The rules (R. S. Mulliken, J. Chem. Phys. 23, 1997 (1955); E. B. Wilson, J. C. Decius and
+P. C. Cross, *Molecular Vibrations*, 1955, Appendix X):
+
+* letter by dimension: A/B (1), E (2), T (3), G (4), H (5); a one-dimensional species is A
+  when symmetric under the principal rotation (or rotoreflection) and B when antisymmetric;
+* subscript 1/2: symmetric/antisymmetric under the C2' along x, else under sigma_v(xz);
+  in D2 and D2h, B1, B2, B3 are the species symmetric under C2(z), C2(y), C2(x);
+  cubic groups use C4 (O, Oh) or S4 (Td); icosahedral T1 carries the vector;
+* E_k for the two-dimensional species whose character under the principal operation of
+  order N is 2 cos(2 pi k / N), written only when more than one k occurs;
+* g/u under inversion; ' and '' under sigma_h in groups without inversion;
+* a complex-conjugate pair of one-dimensional irreps is one species E (common practice
+  in vibrational spectroscopy).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+import numpy as np
+
+from ..errors import SymmetryError
+from .catalogue import GOLDEN, family
+from .operations import describe, improper_rotation, reflection, rotation
+
+__all__ = ["class_names", "mulliken_labels"]
+
+_LETTERS = {1: "A", 2: "E", 3: "T", 4: "G", 5: "H"}
+
+Z = np.array([0.0, 0.0, 1.0])
+X = np.array([1.0, 0.0, 0.0])
+Y = np.array([0.0, 1.0, 0.0])
+
+
+def _principal(name: str) -> tuple[np.ndarray | None, int]:
+    """Principal operation in standard orientation and its order N."""
+    fam, n = family(name)
+    if fam in ("Cn", "Cnv", "Cnh", "Dn", "Dnh"):
+        return rotation(Z, 2 * np.pi / n), n
+    if fam == "Dnd":
+        if n % 2 == 0:
+            return improper_rotation(Z, np.pi / n), 2 * n
+        return rotation(Z, 2 * np.pi / n), n
+    if fam == "S2n":
+        half = n // 2
+        if half % 2 == 1:
+            return rotation(Z, 2 * np.pi / half), half
+        return improper_rotation(Z, 2 * np.pi / n), n
+    return None, 1
+
+
+def mulliken_labels(name: str, chi: Callable[[int, np.ndarray], float | None], dims: list[int]) -> list[str]:
+    """Label the species of group ``name``.
+
+    Parameters
+    ----------
+    name : str
+        Canonical Schoenflies name.
+    chi : callable
+        ``chi(s, matrix)`` gives the (real) character of species ``s`` at the operation
+        ``matrix`` of the standard orientation, or None when the group lacks it.
+    dims : list of int
+        Dimension of every species.
+    """
+    fam, _n = family(name)
+    principal, big_n = _principal(name)
+    has_i = chi(0, -np.eye(3)) is not None
+    has_sh = chi(0, reflection(Z)) is not None
+    c2x = rotation(X, np.pi)
+    sig_xz = reflection(Y)
+    labels = []
+    for s, d in enumerate(dims):
+        letter = _LETTERS.get(d)
+        if letter is None:
+            raise SymmetryError(f"{name}: species of dimension {d} has no Mulliken letter")
+        sub = ""
+        if d == 1:
+            if name in ("D2", "D2h"):
+                axes = [(Z, "1"), (Y, "2"), (X, "3")]
+                sym = [chi(s, rotation(ax, np.pi)) for ax, _ in axes]
+                if all(v > 0 for v in sym):
+                    letter = "A"
+                else:
+                    letter = "B"
+                    sub = next(tag for (ax, tag), v in zip(axes, sym, strict=True) if v > 0)
+            elif principal is not None:
+                letter = "A" if chi(s, principal) > 0 else "B"
+            else:
+                letter = "A"
+        if name not in ("D2", "D2h") and d in (1, 3):
+            ref = None
+            if fam in ("Dn", "Dnh", "Dnd") and d == 1:
+                ref = chi(s, c2x)
+            elif fam == "Cnv" and d == 1:
+                ref = chi(s, sig_xz)
+            elif fam in ("O", "Oh"):
+                ref = chi(s, rotation(Z, np.pi / 2))
+            elif fam == "Td":
+                ref = chi(s, improper_rotation(Z, np.pi / 2))
+            elif fam in ("I", "Ih") and d == 3:
+                c5 = chi(s, rotation([0.0, 1.0, GOLDEN], 2 * np.pi / 5))
+                ref = 1.0 if abs(c5 - GOLDEN) < 1e-6 else -1.0
+            if ref is not None:
+                sub = "1" if ref > 0 else "2"
+        if d == 2 and principal is not None and (big_n - 1) // 2 > 1:
+            c = chi(s, principal)
+            ks = range(1, big_n // 2 + 1)
+            k = min(ks, key=lambda kk: abs(c - 2 * np.cos(2 * np.pi * kk / big_n)))
+            sub = str(k)
+        label = letter + sub
+        if has_i:
+            label += "g" if chi(s, -np.eye(3)) > 0 else "u"
+        elif has_sh and fam not in ("C1",):
+            label += "'" if chi(s, reflection(Z)) > 0 else "''"
+        labels.append(label)
+    if len(set(labels)) != len(labels):
+        raise SymmetryError(f"{name}: Mulliken labelling is ambiguous: {labels}")
+    return labels
+
+
+def _powers(ops: np.ndarray, members: np.ndarray) -> list[int]:
+    """k of C_n^k / S_n^k for each member, about +z when the axis is z, else the canonical axis."""
+    out = []
+    for m in members:
+        d = describe(ops[m])
+        if d.order <= 2 or d.symbol in ("E", "i", "σ"):
+            out.append(1)
+            continue
+        axis = d.axis
+        ang = d.angle
+        if abs(abs(axis[2]) - 1) < 1e-6:
+            ang = ang if axis[2] > 0 else -ang
+        out.append(round(ang / (2 * np.pi / d.order)) % d.order)
+    return out
+
+
+def class_names(name: str, ops: np.ndarray, classes: list[np.ndarray]) -> list[str]:
+    """Names such as 'E', '2C3', "3C2'", 'σh', '2S6' for the classes of a standard group."""
+    fam, _ = family(name)
+    names: list[str] = []
+    for members in classes:
+        kinds = [describe(ops[m]) for m in members]
+        kind = kinds[0]
+        axes = [k.axis for k in kinds]
+
+        def has_axis(v: np.ndarray, axes=axes) -> bool:
+            return any(abs(abs(float(np.dot(a, v))) - 1) < 1e-6 for a in axes)
+
+        sym = kind.symbol
+        if kind.order > 2 and sym not in ("E", "i", "σ"):
+            powers = _powers(ops, members)
+            on_z = [k for k, kd in zip(powers, kinds, strict=True) if abs(abs(kd.axis[2]) - 1) < 1e-6]
+            k = min(on_z) if on_z else min(powers)
+            letter = "C" if kind.proper else "S"
+            sym = f"{letter}{kind.order}" if k == 1 else f"{letter}{kind.order}^{k}"
+            base = f"{len(members)}{sym}" if len(members) > 1 else sym
+            if base in names:  # a second class of the same rotations in the other sense
+                k2 = kind.order - k
+                sym = f"{letter}{kind.order}^{k2}"
+        if kind.symbol == "C2":
+            if fam in ("T", "Th", "Td", "O", "Oh"):
+                sym = "C2" if has_axis(Z) else "C2'"
+            elif name in ("D2", "D2h"):
+                sym = "C2(z)" if has_axis(Z) else ("C2(y)" if has_axis(Y) else "C2(x)")
+            elif not has_axis(Z) and fam not in ("I", "Ih"):
+                sym = "C2'" if has_axis(X) else "C2''"
+        if kind.symbol == "σ":
+            if fam in ("I", "Ih"):
+                sym = "σ"
+            elif name == "D2h":
+                sym = "σ(xy)" if has_axis(Z) else ("σ(xz)" if has_axis(Y) else "σ(yz)")
+            elif name == "C2v":
+                sym = "σv(xz)" if has_axis(Y) else "σv'(yz)"
+            elif has_axis(Z):
+                sym = "σh"
+            elif fam in ("Cnv", "Dnh") and has_axis(Y):
+                sym = "σv"
+            else:
+                sym = "σd"
+        count = len(members)
+        names.append(sym if count == 1 else f"{count}{sym}")
+    return names

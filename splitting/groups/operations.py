@@ -1,0 +1,232 @@
+"""Point operations as 3x3 orthogonal matrices: construction, description, closure.
+
+Every group of the project is generated here from a few generators, so that no
+operation list is typed by hand.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import SymmetryError
+
+__all__ = [
+    "IDENTITY",
+    "INVERSION",
+    "MATRIX_TOL",
+    "OperationKind",
+    "close_group",
+    "describe",
+    "find_operation",
+    "improper_rotation",
+    "multiplication_table",
+    "reflection",
+    "rotation",
+]
+
+MATRIX_TOL = 1e-6
+IDENTITY = np.eye(3)
+INVERSION = -np.eye(3)
+
+
+def _unit(axis: np.ndarray | list[float] | tuple[float, ...]) -> np.ndarray:
+    v = np.asarray(axis, dtype=float)
+    n = np.linalg.norm(v)
+    if n == 0:
+        raise SymmetryError("an axis of zero length has no direction")
+    return v / n
+
+
+def rotation(axis, angle: float) -> np.ndarray:
+    """Proper rotation by ``angle`` (radians, right-handed) about ``axis``.
+
+    Examples
+    --------
+    >>> np.round(rotation([0, 0, 1], np.pi / 2) @ [1, 0, 0], 12) + 0.0
+    array([0., 1., 0.])
+    """
+    u = _unit(axis)
+    k = np.array([[0, -u[2], u[1]], [u[2], 0, -u[0]], [-u[1], u[0], 0]])
+    return np.eye(3) + np.sin(angle) * k + (1 - np.cos(angle)) * (k @ k)
+
+
+def reflection(normal) -> np.ndarray:
+    """Reflection through the plane with the given normal."""
+    n = _unit(normal)
+    return np.eye(3) - 2 * np.outer(n, n)
+
+
+def improper_rotation(axis, angle: float) -> np.ndarray:
+    """Rotation by ``angle`` about ``axis`` followed by reflection in the perpendicular plane."""
+    return reflection(axis) @ rotation(axis, angle)
+
+
+@dataclass(frozen=True)
+class OperationKind:
+    """What an orthogonal matrix does, in the words of a character table.
+
+    Attributes
+    ----------
+    proper : bool
+        True for det = +1.
+    order : int
+        Order n of the rotation (proper) or of the rotation part of R' = -R ... see notes;
+        for improper operations this is n of S_n (sigma = S_1, i = S_2).
+    power : int
+        k in C_n^k or S_n^k, with k coprime to n.
+    axis : numpy.ndarray
+        Unit axis (for the identity, the z axis; for inversion, z).
+    angle : float
+        Rotation angle in radians in [0, pi] about ``axis`` of the proper part
+        (for improper operations: of -R composed... the angle phi with R = sigma_axis C(phi)).
+    symbol : str
+        "E", "i", "σ", "Cn", "Cn^k", "Sn", "Sn^k".
+    """
+
+    proper: bool
+    order: int
+    power: int
+    axis: np.ndarray
+    angle: float
+    symbol: str
+
+
+def _rotation_axis_angle(r: np.ndarray) -> tuple[np.ndarray, float]:
+    """Axis and angle in [0, pi] of a proper rotation matrix."""
+    c = np.clip((np.trace(r) - 1) / 2, -1.0, 1.0)
+    angle = float(np.arccos(c))
+    if angle < 1e-7:
+        return np.array([0.0, 0.0, 1.0]), 0.0
+    if np.pi - angle < 1e-5:
+        # axis from the symmetric part: R + I = 2 u u^T
+        m = (r + np.eye(3)) / 2
+        j = int(np.argmax(np.diag(m)))
+        u = m[:, j] / np.sqrt(max(m[j, j], 1e-300))
+        return _canonical_direction(u), float(np.pi)
+    u = np.array([r[2, 1] - r[1, 2], r[0, 2] - r[2, 0], r[1, 0] - r[0, 1]]) / (2 * np.sin(angle))
+    return u / np.linalg.norm(u), angle
+
+
+def _canonical_direction(u: np.ndarray) -> np.ndarray:
+    """Pick the sign of a line direction so that its first clear component is positive."""
+    u = u / np.linalg.norm(u)
+    for comp in u:
+        if abs(comp) > 1e-6:
+            return u if comp > 0 else -u
+    return u
+
+
+def _order_power(angle: float, max_order: int = 64) -> tuple[int, int]:
+    """n, k with angle = 2 pi k / n (k coprime to n, k <= n/2)."""
+    if angle < 1e-7:
+        return 1, 0
+    frac = angle / (2 * np.pi)
+    for n in range(2, max_order + 1):
+        k = round(frac * n)
+        if k > 0 and abs(frac * n - k) < 1e-5 and np.gcd(n, k) == 1:
+            return n, k
+    raise SymmetryError(f"rotation by {np.degrees(angle):.4f} degrees is not of finite order")
+
+
+def describe(r: np.ndarray) -> OperationKind:
+    """Classify an orthogonal matrix as E, C_n^k, i, sigma or S_n^k.
+
+    Examples
+    --------
+    >>> describe(rotation([0, 0, 1], 2 * np.pi / 3)).symbol
+    'C3'
+    >>> describe(-np.eye(3)).symbol
+    'i'
+    >>> describe(reflection([1, 0, 0])).symbol
+    'σ'
+    """
+    r = np.asarray(r, dtype=float)
+    det = np.linalg.det(r)
+    if det > 0:
+        axis, angle = _rotation_axis_angle(r)
+        n, k = _order_power(angle)
+        if n == 1:
+            return OperationKind(True, 1, 0, axis, 0.0, "E")
+        sym = f"C{n}" if k == 1 else f"C{n}^{k}"
+        return OperationKind(True, n, k, axis, angle, sym)
+    # improper: r = sigma_u C(phi) = -C(phi + pi) about u
+    axis, angle_p = _rotation_axis_angle(-r)
+    phi = np.pi - angle_p  # rotation angle of the proper part of sigma_u C(phi)
+    if angle_p < 1e-7:
+        return OperationKind(False, 2, 1, np.array([0.0, 0.0, 1.0]), np.pi, "i")
+    if phi < 1e-7:
+        return OperationKind(False, 1, 1, axis, 0.0, "σ")
+    n, k = _order_power(phi)
+    # S_n^k for odd k as in character tables (S_n^k = sigma^k C_n^k)
+    if n % 2 == 1:
+        # sigma C(2 pi k / n) with n odd has order 2n: written S_n^k
+        sym = f"S{n}" if k == 1 else f"S{n}^{k}"
+    else:
+        sym = f"S{n}" if k == 1 else f"S{n}^{k}"
+    return OperationKind(False, n, k, axis, phi, sym)
+
+
+def _key(m: np.ndarray) -> bytes:
+    return np.round(np.asarray(m) * 1e5).astype(np.int64).tobytes()
+
+
+def close_group(generators: list[np.ndarray], *, max_order: int = 240) -> np.ndarray:
+    """All products of the generators: the finite group they generate.
+
+    Returns an array of shape (n, 3, 3) with the identity first.
+
+    Raises
+    ------
+    SymmetryError
+        If the generators do not generate a finite group of at most ``max_order`` elements.
+    """
+    elements = [np.eye(3)]
+    keys = {_key(np.eye(3))}
+    gens = [np.asarray(g, dtype=float) for g in generators]
+    frontier = [np.eye(3)]
+    while frontier:
+        new = []
+        for a in frontier:
+            for g in gens:
+                p = g @ a
+                k = _key(p)
+                if k not in keys:
+                    keys.add(k)
+                    elements.append(p)
+                    new.append(p)
+                    if len(elements) > max_order:
+                        raise SymmetryError(
+                            f"operations do not close into a finite group of at most {max_order} elements"
+                        )
+        frontier = new
+    return np.array(elements)
+
+
+def find_operation(ops: np.ndarray, m: np.ndarray, *, tol: float = MATRIX_TOL) -> int:
+    """Index of matrix ``m`` in the stack ``ops`` (max abs difference below ``tol``), or -1."""
+    diff = np.abs(ops - np.asarray(m)[None]).reshape(len(ops), -1).max(axis=1)
+    j = int(np.argmin(diff))
+    return j if diff[j] < tol else -1
+
+
+def multiplication_table(ops: np.ndarray, *, tol: float = 1e-5) -> np.ndarray:
+    """Table ``T[a, b] = index of ops[a] @ ops[b]``.
+
+    Raises
+    ------
+    SymmetryError
+        If the set is not closed under multiplication.
+    """
+    n = len(ops)
+    prods = np.einsum("aij,bjk->abik", ops, ops).reshape(n * n, 9)
+    flat = ops.reshape(n, 9)
+    # match by nearest neighbour on the flattened matrices
+    from scipy.spatial import cKDTree
+
+    tree = cKDTree(flat)
+    dist, idx = tree.query(prods)
+    if np.max(dist) > tol * 10:
+        raise SymmetryError("the operations are not closed under multiplication")
+    return idx.reshape(n, n)

@@ -1,0 +1,1 @@
+"""Free-unit analysis: point group, symmetrised geometry, vibrational species."""

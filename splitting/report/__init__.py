@@ -1,0 +1,1 @@
+"""Presentation: plain-text, Markdown, LaTeX and CSV tables, JSON and the HTML report."""

@@ -1,0 +1,140 @@
+"""Plain-text rendering of results for the terminal."""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+__all__ = ["embeddings_text", "group_text", "molecule_text", "table"]
+
+
+def _width(s: str) -> int:
+    # combining characters (the bar in z̄) take no column
+    return sum(0 if 0x0300 <= ord(c) <= 0x036F else 1 for c in s)
+
+
+def table(headers: Sequence[str], rows: Sequence[Sequence[object]], *, indent: str = "  ") -> str:
+    """Aligned columns with a rule under the header.
+
+    Examples
+    --------
+    >>> print(table(["a", "bb"], [[1, 2], [33, 4]]))
+      a   bb
+      --  --
+      1   2
+      33  4
+    """
+    cells = [[str(h) for h in headers]] + [[str(c) for c in r] for r in rows]
+    widths = [max(_width(r[i]) for r in cells) for i in range(len(headers))]
+
+    def line(r: Sequence[str]) -> str:
+        return indent + "  ".join(c + " " * (w - _width(c)) for c, w in zip(r, widths, strict=True)).rstrip()
+
+    out = [line(cells[0]), line(["-" * w for w in widths])]
+    out += [line(r) for r in cells[1:]]
+    return "\n".join(out)
+
+
+def _num(x: float) -> str:
+    r = round(x)
+    if abs(x - r) < 1e-9:
+        return str(int(r))
+    return f"{x:.3f}"
+
+
+def group_text(name: str) -> str:
+    """Character table, vector and axial species, and selection rules of a group."""
+    from ..activity import activity_table
+    from ..groups.catalogue import canonical_name
+    from ..groups.linear import linear_group
+    from ..groups.pointgroup import point_group
+
+    canon = canonical_name(name)
+    act = {a.label: a for a in activity_table(canon)}
+    lines = []
+    if "∞" in canon:
+        g = linear_group(canon)
+        lines.append(f"Point group {canon} (linear; species by angular momentum about z)")
+        rows = [[s.label, s.dimension, ", ".join(act[s.label].ir) or "-", ", ".join(act[s.label].raman) or "-"]
+                for s in g.species[: (5 if not g.centrosymmetric else 12)] if s.m <= 3]
+        lines.append(table(["species", "dim", "IR", "Raman"], rows))
+    else:
+        g = point_group(canon)
+        hm = f" ({g.hermann_mauguin})" if g.hermann_mauguin else ""
+        lines.append(f"Point group {g.name}{hm}, order {g.order}, {len(g.classes)} classes")
+        lines.append(_axes_note(g.name))
+        headers = ["species", *[c.name for c in g.classes], "IR", "Raman"]
+        rows = []
+        for s in g.species:
+            a = act[s.label]
+            rows.append([s.label, *[_num(x) for x in s.characters], ",".join(a.ir) or "-",
+                         ", ".join(a.raman) or "-"])
+        lines.append(table(headers, rows))
+        if any(s.separably_degenerate for s in g.species):
+            lines.append("  E species made of a complex-conjugate pair are shown merged (their characters added).")
+    lines.append(f"  translations: {g.vector}    rotations: {g.axial}")
+    return "\n".join(lines)
+
+
+def _axes_note(name: str) -> str:
+    from ..groups.catalogue import family
+
+    fam, _ = family(name)
+    notes = {
+        "Dn": "z: principal axis; x: a C2' axis",
+        "Dnh": "z: principal axis; x: a C2' axis (σv contains x and z)",
+        "Dnd": "z: principal axis; x: a C2' axis (σd bisect the C2' axes)",
+        "Cnv": "z: principal axis; xz: a σv plane",
+        "Cs": "mirror plane: xy",
+        "T": "x, y, z: the two-fold axes", "Th": "x, y, z: the two-fold axes",
+        "Td": "x, y, z: the S4 axes", "O": "x, y, z: the four-fold axes", "Oh": "x, y, z: the four-fold axes",
+        "I": "x, y, z: three orthogonal two-fold axes", "Ih": "x, y, z: three orthogonal two-fold axes",
+    }
+    if name in ("D2", "D2h"):
+        return "  axes: x, y, z along the three two-fold axes"
+    return "  axes: " + notes.get(fam, "z: principal axis")
+
+
+def embeddings_text(parent: str, sub: str) -> str:
+    """Every way ``sub`` sits in ``parent`` with its correlation table."""
+    from ..groups.subgroups import embeddings
+
+    out = []
+    embs = embeddings(parent, sub)
+    out.append(f"{embs[0].subgroup.name} in {embs[0].parent}: {len(embs)} inequivalent embedding(s)")
+    for k, e in enumerate(embs, 1):
+        rel = e.axis_relation()
+        out.append(
+            f"\n  [{k}] operations from classes {', '.join(e.parent_classes)}; "
+            f"{e.conjugates} conjugate cop{'y' if e.conjugates == 1 else 'ies'}"
+        )
+        axes = f"x = {rel['x']}, y = {rel['y']}, z = {rel['z']}"
+        out.append(f"      axes of {e.subgroup.name} in {e.parent} axes: {axes}")
+        out.append(table([e.parent, e.subgroup.name], [[lab, str(rep)] for lab, rep in e.correlation()],
+                         indent="      "))
+    return "\n".join(out)
+
+
+def molecule_text(result) -> str:
+    """Readable free-unit analysis."""
+    d = result.to_dict()
+    lines = [
+        f"{d['formula']}: {d['atoms']} atoms, point group {d['point_group']}",
+        f"  symmetry tolerance {d['tolerance_angstrom']} A; largest deviation from the symmetric "
+        f"geometry {d['max_deviation_angstrom']:.3f} A",
+        "  axes (input frame): " + "; ".join(f"{k} = ({', '.join(f'{c:+.3f}' for c in v)})"
+                                               for k, v in d["axes"].items()),
+        f"  Γ3N  = {d['gamma_3n']}",
+        f"  Γtrans = {d['translations']};  Γrot = {d['rotations']}",
+        f"  Γvib = {d['vibrations']}  ({d['vibration_count']} vibrations)",
+        "",
+        table(
+            ["species", "dim", "fundamentals", "IR", "Raman", "activity"],
+            [[m["label"], m["dimension"], m["count"], ",".join(m["ir_components"]) or "-",
+              ", ".join(m["raman_components"]) or "-",
+              "+".join(k for k, on in (("IR", m["ir"]), ("Raman", m["raman"])) if on) or "silent"]
+             for m in d["species"]],
+        ),
+        "",
+        f"  {d['ir_active_fundamentals']} IR-active and {d['raman_active_fundamentals']} Raman-active fundamentals",
+    ]
+    return "\n".join(lines)

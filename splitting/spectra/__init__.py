@@ -1,0 +1,1 @@
+"""Measured spectra: reading peak lists and spectra, finding and fitting peaks."""
