@@ -76,6 +76,53 @@ def _molecule(args: argparse.Namespace) -> int:
     return _emit(args, result.to_dict(), lambda: molecule_text(result))
 
 
+def _options(args: argparse.Namespace):
+    from .crystal.predict import Options
+    from .crystal.units import parse_cutoffs
+
+    free = []
+    for item in args.free_group or []:
+        if "=" not in item:
+            raise InputError(f"--free-group {item!r} is not of the form FORMULA=GROUP (e.g. C60=Ih)")
+        f, g = item.split("=", 1)
+        free.append((f.strip(), g.strip()))
+    return Options(
+        tolerance=args.tolerance, unit_tolerance=args.unit_tolerance, free_groups=tuple(free),
+        formulas=tuple(args.units or ()), cutoffs=tuple(parse_cutoffs(args.bond).items()),
+        bond_scale=args.bond_scale, ionic_metals=not args.bond_metals,
+    )
+
+
+@_command("predict")
+def _predict(args: argparse.Namespace) -> int:
+    from .crystal.predict import predict
+    from .report.text import prediction_text
+
+    result = predict(args.file, _options(args))
+    return _emit(args, result.to_dict(), lambda: prediction_text(result))
+
+
+def _crystal_options(p: argparse.ArgumentParser) -> None:
+    from .crystal.spacegroup import DEFAULT_CELL_TOLERANCE
+    from .crystal.units import DEFAULT_BOND_SCALE
+    from .molecule.symmetry import DEFAULT_TOLERANCE
+
+    p.add_argument("--tolerance", type=float, default=DEFAULT_CELL_TOLERANCE,
+                   help=f"space-group distance tolerance, angstrom (default {DEFAULT_CELL_TOLERANCE})")
+    p.add_argument("--unit-tolerance", type=float, default=DEFAULT_TOLERANCE,
+                   help=f"free-unit symmetry tolerance, angstrom (default {DEFAULT_TOLERANCE})")
+    p.add_argument("--free-group", action="append", metavar="FORMULA=GROUP",
+                   help="use this point group for the free unit (a subgroup of what its shape allows), e.g. C6H6=D6h")
+    p.add_argument("--units", nargs="+", metavar="FORMULA",
+                   help="treat only units with these formulas as molecules; split the rest into atoms")
+    p.add_argument("--bond", action="append", metavar="A-B=DIST",
+                   help="largest A-B bond length in angstrom (0 forbids the bond); repeatable")
+    p.add_argument("--bond-scale", type=float, default=DEFAULT_BOND_SCALE,
+                   help=f"bond when distance < scale x sum of covalent radii (default {DEFAULT_BOND_SCALE})")
+    p.add_argument("--bond-metals", action="store_true",
+                   help="also draw bonds to alkali, alkaline-earth and lanthanide atoms")
+
+
 # -------------------------------------------------------------------- parser
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser of the ``splitting`` command."""
@@ -103,6 +150,11 @@ def build_parser() -> argparse.ArgumentParser:
     m.add_argument("--point-group", metavar="NAME", help="use this subgroup of the detected group")
     m.add_argument("--json", action="store_true", help="print JSON instead of text")
 
+    pr = sub.add_parser("predict", help="k = 0 prediction for a crystal: sites, correlation, lattice modes, activity")
+    pr.add_argument("file", help="crystal structure (CIF, POSCAR, extended XYZ, or another format ase reads)")
+    _crystal_options(pr)
+    pr.add_argument("--json", action="store_true", help="print JSON instead of text")
+
     for extra in _EXTRA_PARSERS:
         extra(sub)
     return p
@@ -115,9 +167,11 @@ def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``splitting`` command; returns the exit status."""
     parser = build_parser()
     args = parser.parse_args(argv)
-    if getattr(args, "tolerance", None) is not None and args.tolerance <= 0:
-        print("error: --tolerance must be positive", file=sys.stderr)
-        return 2
+    for opt in ("tolerance", "unit_tolerance", "bond_scale"):
+        value = getattr(args, opt, None)
+        if value is not None and not value > 0:
+            print(f"error: --{opt.replace('_', '-')} must be positive", file=sys.stderr)
+            return 2
     try:
         return _COMMANDS[args.command](args)
     except SplittingError as exc:

@@ -151,21 +151,17 @@ def c60_standard(d66: float = C60_D66, d65: float = C60_D65) -> np.ndarray:
     return np.array(atoms)
 
 
-def c60_faces(pos: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Pentagon centres (12), hexagon centres (20) and 6:6 bond midpoints (30)."""
+def c60_faces(pos: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Pentagon centres (12 x 3) and 6:6 bond midpoints (30 x 3) of a centred C60."""
     d = np.linalg.norm(pos[:, None] - pos[None], axis=-1)
-    short = (d > 0.1) & (d < 1.42)  # 6:6 bonds
+    short = (d > 0.1) & (d < 0.5 * (C60_D66 + C60_D65))  # 6:6 bonds
     mids = np.array([(pos[i] + pos[j]) / 2 for i, j in zip(*np.nonzero(short), strict=True) if i < j])
-    v = icosahedron_vertices()
-    pent = v / np.linalg.norm(v, axis=1)[:, None]
-    dodeca = []  # hexagon centres lie on the icosahedron's face normals
-    for i, j in icosahedron_edges(v):
-        for k in range(len(v)):
-            if k > j and np.isclose(np.linalg.norm(v[i] - v[k]), 2) and np.isclose(np.linalg.norm(v[j] - v[k]), 2):
-                dodeca.append((v[i] + v[j] + v[k]) / 3)
-    hexa = np.array(dodeca) / np.linalg.norm(dodeca, axis=1)[:, None]
-    r_p = np.mean(np.linalg.norm(pos, axis=1))
-    return pent * r_p, hexa * r_p, mids
+    # each pentagon is the five atoms nearest to an icosahedron vertex direction
+    pent = []
+    for v in icosahedron_vertices():
+        near = np.argsort(-(pos @ v))[:5]
+        pent.append(pos[near].mean(axis=0))
+    return np.array(pent), mids
 
 
 def naphthalene_molecule() -> tuple[list[str], np.ndarray]:
@@ -509,7 +505,7 @@ def c60_pa3_rotation() -> float:
     physical criterion: of +22 and -22 deg, the one whose nearest-neighbour contact
     brings a 6:6 bond midpoint closest to a neighbouring pentagon centre.
     """
-    pent, _, mids = c60_faces(c60_standard())
+    pent, mids = c60_faces(c60_standard())
     ops = [xyz_to_op(op) for op in ops_from_ase(205, 1)]
     # the neighbour at (1/2, 1/2, 0) is the image of the origin molecule under the
     # operation whose translation is (1/2, 1/2, 0); the cell is cubic, so the

@@ -68,7 +68,7 @@ class OrientedGroup:
         """An operation of the given frame written in the standard frame."""
         return self.frame.T @ np.asarray(op, dtype=float) @ self.frame
 
-    def locate(self, op: np.ndarray, *, tol: float = 0.05) -> int:
+    def locate(self, op: np.ndarray, *, tol: float = 0.5) -> int:
         """Index (into ``group.operations``) of an operation given in this frame."""
         if isinstance(self.group, LinearGroup):
             raise SymmetryError(f"{self.name} operations are not enumerable")
@@ -77,12 +77,12 @@ class OrientedGroup:
             raise SymmetryError(f"operation is not an element of {self.name} in this orientation")
         return int(j)
 
-    def contains(self, op: np.ndarray, *, tol: float = 0.05) -> bool:
+    def contains(self, op: np.ndarray, *, tol: float = 0.5) -> bool:
         """True if the operation (given frame) belongs to the group."""
         if isinstance(self.group, LinearGroup):
             s = self.to_standard(op)
             z = s @ np.array([0.0, 0.0, 1.0])
-            ok = abs(abs(z[2]) - 1) < tol and (self.group.centrosymmetric or z[2] > 0)
+            ok = abs(abs(z[2]) - 1) < min(tol, 0.05) and (self.group.centrosymmetric or z[2] > 0)
             return bool(ok)
         try:
             self.locate(op, tol=tol)
@@ -402,7 +402,7 @@ def identify(ops: np.ndarray, *, prefer: Preference | None = None, reference: np
         s = score(frame)
         if best is None or s > best_score:
             best, best_score = frame, s
-            if unique_frame:
+            if unique_frame and prefer is not None and reference is None:
                 break
     if best is None:
         raise SymmetryError(f"operations look like {name} but no standard frame matches them")

@@ -138,3 +138,53 @@ def molecule_text(result) -> str:
         f"  {d['ir_active_fundamentals']} IR-active and {d['raman_active_fundamentals']} Raman-active fundamentals",
     ]
     return "\n".join(lines)
+
+
+def prediction_text(pred) -> str:
+    """Readable report of a :class:`~splitting.crystal.results.CrystalPrediction`."""
+    sg = pred.space_group
+    ax = pred.factor_axes
+    lines = [
+        f"{pred.source}",
+        f"  {pred.formula} (primitive cell, {pred.atoms_primitive} atoms; {pred.atoms_input} as given)",
+        f"  space group {sg.symbol} (No. {sg.number}, {sg.schoenflies}), tolerance {sg.tolerance:g} A",
+        f"  factor group {pred.factor_group} ({'centrosymmetric' if pred.centrosymmetric else 'non-centrosymmetric'});"
+        f" labels use x = {ax['x']}, y = {ax['y']}, z = {ax['z']}",
+    ]
+    for w in pred.warnings:
+        lines.append(f"  warning: {w}")
+    lines.append("")
+    lines.append("Units")
+    rows = []
+    for u in pred.units:
+        rows.append([u.formula, u.kind, u.free_group or "-", u.wyckoff, u.site_symmetry, u.site_group, u.count,
+                     f"{u.max_deviation:.3f}" if u.free_group else "-"])
+    lines.append(table(["unit", "kind", "free group", "Wyckoff", "site symbol", "site group", "Z (prim.)",
+                        "dev. A"], rows))
+    for u in pred.units:
+        if not u.correlation:
+            continue
+        lines.append("")
+        sa = u.site_axes
+        lines.append(f"Correlation for {u.formula}: {u.free_group} -> {u.site_group} (site {u.wyckoff}; "
+                     f"site axes x = {sa['x']}, y = {sa['y']}, z = {sa['z']}) -> {pred.factor_group}")
+        lines.append(table(["free", "modes", "site", "factor group (per mode)"],
+                           [[c.free, c.modes, str(c.site), str(c.factor)] for c in u.correlation]))
+        lines.append(f"  translations: {u.translations};  librations: {u.librations}")
+    lines.append("")
+    lines.append(f"Factor-group species (k = 0); counts are distinct frequencies; acoustic: {pred.acoustic}")
+    rows = []
+    for s in pred.species:
+        rows.append([s.label, s.dimension, s.internal, s.translational, s.librational, s.acoustic, s.optical,
+                     ",".join(s.ir) or "-", ", ".join(s.raman) or "-", "polar" if s.polar else ""])
+    lines.append(table(["species", "dim", "internal", "transl.", "librat.", "acoustic", "optical", "IR",
+                        "Raman", ""], rows))
+    t = pred.totals()
+    lines.append("")
+    lines.append(f"  Γ3N = {pred.gamma_3n}  (whole-cell count, checked against the unit-by-unit sum)")
+    lines.append(f"  {t['optical']} optical frequencies: {t['ir']} IR-active, {t['raman']} Raman-active, "
+                 f"{t['silent']} silent" + (f", {t['polar']} polar (LO/TO split)" if t["polar"] else ""))
+    if pred.centrosymmetric:
+        lines.append("  centrosymmetric factor group: no frequency is both IR and Raman active (mutual exclusion)")
+    lines.append("  inelastic neutron scattering: every mode is allowed")
+    return "\n".join(lines)

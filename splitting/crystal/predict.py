@@ -1,0 +1,323 @@
+"""The crystal pipeline: structure -> space group -> units -> correlation -> activity.
+
+``predict(path)`` is the main job of the package.  Each orbit of equivalent units is
+carried free group -> site group -> factor group; translations and librations are
+induced from the site; the acoustic modes are removed; and the whole-cell count
+Gamma_3N, computed independently from the atoms, must equal the sum species by species
+(any mismatch raises :class:`~splitting.errors.BookkeepingError`).
+"""
+
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..activity import activity_table
+from ..correlation import FactorGroup, induce
+from ..errors import BookkeepingError, InputError, SymmetryError
+from ..groups import OrientedGroup, Representation
+from ..groups.identify import crystal_preference, identify
+from ..molecule.analysis import analyse_unit, hill_formula
+from ..molecule.symmetry import DEFAULT_TOLERANCE
+from .read import load_structure
+from .results import Correlation, CrystalPrediction, FactorSpecies, UnitOrbit
+from .spacegroup import DEFAULT_CELL_TOLERANCE, CellSymmetry, analyse_cell, spglib_dataset
+from .units import DEFAULT_BOND_SCALE, Unit, find_units
+
+__all__ = ["Options", "predict", "predict_atoms"]
+
+
+@dataclass(frozen=True)
+class Options:
+    """Choices of the crystal pipeline (one name per idea, shared by the CLI).
+
+    Attributes
+    ----------
+    tolerance : float
+        spglib distance tolerance for the space group (angstrom).
+    unit_tolerance : float
+        Tolerance for the free-unit point group (angstrom).
+    free_groups : tuple of (str, str)
+        ``(formula, group)`` pairs overriding the detected free group of a unit.
+    formulas : tuple of str
+        If given, only units with these formulas are molecules; others are split into atoms.
+    cutoffs : tuple of ((str, str), float)
+        Explicit bond cut-offs per element pair (angstrom).
+    bond_scale : float
+        Bond when distance < bond_scale * (sum of covalent radii).
+    ionic_metals : bool
+        Keep alkali, alkaline-earth and lanthanide atoms as separate ions.
+    """
+
+    tolerance: float = DEFAULT_CELL_TOLERANCE
+    unit_tolerance: float = DEFAULT_TOLERANCE
+    free_groups: tuple[tuple[str, str], ...] = ()
+    formulas: tuple[str, ...] = ()
+    cutoffs: tuple[tuple[tuple[str, str], float], ...] = ()
+    bond_scale: float = DEFAULT_BOND_SCALE
+    ionic_metals: bool = True
+
+
+def predict(path: str | os.PathLike[str], options: Options | None = None, *, format: str | None = None
+            ) -> CrystalPrediction:
+    """Predict the k = 0 modes of the crystal in a structure file.
+
+    Examples
+    --------
+    >>> from pathlib import Path
+    >>> p = predict(Path(__file__).parents[2] / "structures" / "calcite.cif")
+    >>> p.factor_group, p.unit("CO3").site_group, p.unit("CO3").count
+    ('D3d', 'D3', 2)
+    """
+    atoms = load_structure(path, format=format)
+    return predict_atoms(atoms, options, source=os.fspath(path))
+
+
+def predict_atoms(atoms, options: Options | None = None, *, source: str = "structure") -> CrystalPrediction:
+    """As :func:`predict`, for an ``ase.Atoms`` object with a periodic cell."""
+    opts = options or Options()
+    cell = analyse_cell(atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=opts.tolerance)
+    units = find_units(cell.lattice, cell.frac, cell.numbers, scale=opts.bond_scale, ionic_metals=opts.ionic_metals,
+                       cutoffs=dict(opts.cutoffs), formulas=list(opts.formulas) or None)
+    return _predict(cell, units, opts, source)
+
+
+# ----------------------------------------------------------------------------- pipeline
+def _orbits(cell: CellSymmetry, units: tuple[Unit, ...]) -> list[list[tuple[int, int]]]:
+    """Orbits of units as lists of (unit index, cell operation carrying the first unit onto it)."""
+    centres = np.array([u.centre for u in units])
+    inv = np.linalg.inv(cell.lattice)
+    cf = centres @ inv
+    seen: set[int] = set()
+    orbits = []
+    for u0 in range(len(units)):
+        if u0 in seen:
+            continue
+        orbit = {u0: 0}
+        for k in range(len(cell.rotations)):
+            img = cell.apply(k, centres[u0]) @ inv
+            d = cf - img
+            d -= np.round(d)
+            dist = np.linalg.norm(d @ cell.lattice, axis=1)
+            v = int(np.argmin(dist))
+            if dist[v] > 0.05 or units[v].formula != units[u0].formula:
+                raise SymmetryError(f"operation {k} maps unit {units[u0].formula} onto no unit; "
+                                    "try a different --tolerance")
+            orbit.setdefault(v, k)
+        seen.update(orbit)
+        orbits.append(sorted(orbit.items()))
+    return orbits
+
+
+def _site_ops(cell: CellSymmetry, centre: np.ndarray) -> list[int]:
+    return [k for k in range(len(cell.rotations)) if cell.same_point(cell.apply(k, centre), centre, tol=0.05)]
+
+
+def _wyckoff(cell: CellSymmetry, units: tuple[Unit, ...], orbits, tolerance: float) -> list[tuple[str, str]]:
+    """Wyckoff letter and site symbol of every orbit's centre (a dummy atom where no atom sits)."""
+    inv = np.linalg.inv(cell.lattice)
+    frac = [list(cell.frac)]
+    numbers = list(cell.numbers)
+    where: list[int | None] = []
+    for orbit in orbits:
+        c = units[orbit[0][0]].centre @ inv
+        d = cell.frac - c
+        d -= np.round(d)
+        dist = np.linalg.norm(d @ cell.lattice, axis=1)
+        atom = int(np.argmin(dist))
+        if dist[atom] < 0.05:
+            where.append(atom)
+        else:
+            where.append(None)
+    extra_frac, extra_num, slots = [], [], {}
+    for o, orbit in enumerate(orbits):
+        if where[o] is None:
+            slots[o] = len(numbers) + len(extra_num)
+            for uidx, _ in orbit:
+                extra_frac.append((units[uidx].centre @ inv) % 1.0)
+                extra_num.append(1000 + o)
+            # the first of those dummies is the first unit's centre
+    if extra_num:
+        ds = spglib_dataset(cell.lattice, np.vstack([cell.frac, np.array(extra_frac)]),
+                            np.concatenate([cell.numbers, extra_num]), tolerance)
+        wyck, sites = list(ds.wyckoffs), list(ds.site_symmetry_symbols)
+    else:
+        wyck, sites = list(cell.wyckoffs), list(cell.site_symbols)
+    del frac
+    ratio = abs(np.linalg.det(cell.conventional) / np.linalg.det(cell.lattice))
+    out = []
+    for o, orbit in enumerate(orbits):
+        i = where[o] if where[o] is not None else slots[o]
+        mult = round(len(orbit) * ratio)
+        out.append((f"{mult}{wyck[i]}", sites[i]))
+    return out
+
+
+def _axes_text(cell: CellSymmetry, og: OrientedGroup) -> dict[str, str]:
+    return {k: cell.direction_text(v) for k, v in og.axes().items()}
+
+
+def _warnings(cell: CellSymmetry, units: tuple[Unit, ...]) -> list[str]:
+    out = []
+    info = cell.info
+    if info.tolerance_sensitive:
+        alts = ", ".join(f"{s} (No. {n}) at {t:g} A" for t, n, s in info.other_tolerances if n != info.number)
+        out.append(f"the space group depends on the tolerance: {info.symbol} (No. {info.number}) at "
+                   f"{info.tolerance:g} A, but {alts}")
+    symbols = {s for u in units for s in u.symbols}
+    if "H" not in symbols:
+        organic = [u.formula for u in units if u.kind == "molecule" and "C" in u.symbols
+                   and set(u.symbols) - {"C"} and sum(s == "C" for s in u.symbols) >= 2]
+        lone_n = [u.formula for u in units if u.kind == "atom" and u.symbols == ["N"]]
+        if organic or lone_n:
+            out.append("no hydrogen atoms in the structure, but units " + ", ".join(sorted(set(organic + lone_n)))
+                       + " look like they need some; X-ray structures often omit H, which changes the free group")
+    return out
+
+
+def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source: str) -> CrystalPrediction:
+    factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
+    fg = factor.oriented
+    reference = cell.reference_axes
+    orbits = _orbits(cell, units)
+    wyckoffs = _wyckoff(cell, units, orbits, opts.tolerance)
+    given = {f.replace(" ", ""): g for f, g in opts.free_groups}
+    zero = fg.group.representation({})
+    orbit_results: list[UnitOrbit] = []
+    for orbit, (wyck, site_symbol) in zip(orbits, wyckoffs, strict=True):
+        u0 = units[orbit[0][0]]
+        centre = u0.centre
+        site_idx = _site_ops(cell, centre)
+        site = identify(cell.rotations[site_idx], prefer=crystal_preference(reference), reference=reference, tol=1e-3)
+        # site-group element order -> cell operations
+        site_cell = [site_idx[int(np.argmin([np.abs(cell.rotations[k] - op).max() for k in site_idx]))]
+                     for op in site.operations]
+        if len(site_idx) * len(orbit) != len(cell.rotations):
+            raise BookkeepingError(f"{u0.formula}: |S| x Z = {len(site_idx)} x {len(orbit)} is not |F| = "
+                                   f"{len(cell.rotations)}")
+        vec = np.trace(site.operations, axis1=1, axis2=2)
+        trans = induce(factor, site_cell, vec, what=f"translations of {u0.formula}")
+        lib = zero
+        internal = zero
+        correlation: list[Correlation] = []
+        free_name = None
+        free_source = "atom"
+        free_axes: dict[str, str] = {}
+        deviation = 0.0
+        free_vib = None
+        if len(u0.atoms) > 1:
+            try:
+                analysis = analyse_unit(u0.numbers, u0.positions, tolerance=opts.unit_tolerance,
+                                        point_group=given.get(u0.formula))
+            except InputError as exc:
+                raise InputError(f"unit {u0.formula}: {exc}") from None
+            sym = analysis.symmetry
+            free = sym.group
+            free_name, free_source = free.name, ("given" if u0.formula in given else "detected")
+            free_axes = _axes_text(cell, free)
+            deviation = sym.max_deviation
+            free_vib = analysis.vibrations
+            for op in site.operations:
+                if not free.contains(op):
+                    raise SymmetryError(
+                        f"unit {u0.formula}: the site group {site.name} is not a subgroup of the free group "
+                        f"{free.name} as found (unit tolerance {opts.unit_tolerance} A); "
+                        "increase --unit-tolerance or name the free group"
+                    )
+            if sym.linear:
+                axis = free.frame[:, 2]
+                lib_chars = np.array([np.linalg.det(r) * (np.trace(r) - axis @ r @ axis) for r in site.operations])
+            else:
+                lib_chars = np.linalg.det(site.operations) * np.trace(site.operations, axis1=1, axis2=2)
+            lib = induce(factor, site_cell, lib_chars, what=f"librations of {u0.formula}")
+            for label, n in analysis.vibrations:
+                chars = np.array([free.character(label, op) for op in site.operations])
+                site_rep = site.reduce_at(chars, what=f"{label} of {free.name} in site {site.name}")
+                fac = induce(factor, site_cell, chars, what=f"{label} of {u0.formula}")
+                _check_geometric(cell, factor, orbit, centre, free, label, fac, u0.formula)
+                _check_frobenius(factor, site, site_rep, fac, label)
+                dim = free.group.get_species(label).dimension
+                correlation.append(Correlation(label, dim, n, site_rep, fac))
+                internal = internal + fac * n
+        orbit_results.append(UnitOrbit(
+            formula=u0.formula, kind=u0.kind, atoms_per_unit=len(u0.atoms), count=len(orbit),
+            count_conventional=int(wyck.rstrip("abcdefghijklmnopqrstuvwxyzα")), wyckoff=wyck,
+            site_symmetry=site_symbol, site_group=site.name, site_axes=_axes_text(cell, site),
+            free_group=free_name, free_group_source=free_source, free_axes=free_axes, max_deviation=deviation,
+            centre=tuple(float(x) for x in (centre @ np.linalg.inv(cell.lattice))), free_vibrations=free_vib,
+            correlation=tuple(correlation), internal=internal, translations=trans, librations=lib,
+            symbols=tuple(u0.symbols), geometry=tuple(tuple(float(c) for c in p) for p in (u0.positions - centre)),
+        ))
+    gamma = _gamma_3n(cell, factor)
+    acoustic = fg.group.vector
+    total = zero
+    for o in orbit_results:
+        total = total + o.internal + o.translations + o.librations
+    if total.counts != gamma.counts:
+        raise BookkeepingError(f"whole-cell count Γ3N = {gamma} but units give {total}")
+    act = {a.label: a for a in activity_table(fg.name)}
+    species = []
+    for (label, _), dim in zip(gamma.counts, gamma.dimensions, strict=True):
+        tr = sum(o.translations[label] for o in orbit_results) - acoustic[label]
+        a = act[label]
+        species.append(FactorSpecies(
+            label=label, dimension=dim, acoustic=acoustic[label], translational=tr,
+            librational=sum(o.librations[label] for o in orbit_results),
+            internal=sum(o.internal[label] for o in orbit_results),
+            ir=a.ir, raman=a.raman, raman_tensor=a.raman_tensor,
+            polar=bool(a.ir and a.raman and not fg.group.centrosymmetric),
+        ))
+    from ase.data import chemical_symbols
+
+    return CrystalPrediction(
+        source=source, formula=hill_formula([chemical_symbols[z] for z in cell.numbers]),
+        space_group=cell.info, factor_group=fg.name, factor_axes=_axes_text(cell, fg),
+        centrosymmetric=fg.group.centrosymmetric, atoms_primitive=len(cell.numbers), atoms_input=cell.input_atoms,
+        units=tuple(orbit_results), species=tuple(species), gamma_3n=gamma, acoustic=acoustic,
+        warnings=tuple(_warnings(cell, units)),
+    )
+
+
+def _gamma_3n(cell: CellSymmetry, factor: FactorGroup) -> Representation:
+    """Whole-cell count: chi(g) = U(g) tr(R), U = atoms left in place modulo the lattice."""
+    pos = cell.cartesian
+    inv = np.linalg.inv(cell.lattice)
+    chars = np.zeros(len(cell.rotations))
+    for k in range(len(cell.rotations)):
+        d = (cell.apply(k, pos) - pos) @ inv
+        d -= np.round(d)
+        fixed = int(np.sum(np.linalg.norm(d @ cell.lattice, axis=1) < 0.05))
+        chars[k] = fixed * np.trace(cell.rotations[k])
+    return factor.reduce_cell(chars, what="Γ3N")
+
+
+def _check_geometric(cell: CellSymmetry, factor: FactorGroup, orbit, centre: np.ndarray, free: OrientedGroup,
+                     label: str, expected: Representation, formula: str) -> None:
+    """Method-notes route: sum, over the units that g leaves in place, of chi(g) in each unit's orientation."""
+    units = [(h, cell.apply(h, centre)) for _, h in orbit]
+    chars = np.zeros(len(cell.rotations))
+    for g in range(len(cell.rotations)):
+        rg = cell.rotations[g]
+        total = 0.0
+        for h, cj in units:
+            if cell.same_point(cell.apply(g, cj), cj, tol=0.05):
+                rh = cell.rotations[h]
+                total += free.character(label, rh.T @ rg @ rh)  # g seen from the first unit's frame
+        chars[g] = total
+    got = factor.reduce_cell(chars, what=f"{label} of {formula} (unit by unit)")
+    if got.counts != expected.counts:
+        raise BookkeepingError(f"{formula} {label}: coset route gives {expected}, unit-by-unit route gives {got}")
+
+
+def _check_frobenius(factor: FactorGroup, site: OrientedGroup, site_rep: Representation, fac: Representation,
+                     label: str) -> None:
+    """Frobenius reciprocity, counted with the number of complex irreps in each physical species."""
+    fg = factor.oriented
+    for phi, n in fac.counts:
+        res = fg.restrict(phi, site)
+        lhs = n * len(fg.group.get_species(phi).irreps)
+        rhs = sum(site_rep[lab] * k * len(site.group.get_species(lab).irreps) for lab, k in res)
+        if lhs != rhs:
+            raise BookkeepingError(f"Frobenius reciprocity fails for {label} -> {phi}: {lhs} vs {rhs}")

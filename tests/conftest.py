@@ -1,0 +1,36 @@
+"""Shared, generic fixtures: where the bundled structures live, and a command-line runner."""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Sequence
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+@pytest.fixture(scope="session")
+def structures_dir() -> Path:
+    """The bundled ``structures/`` folder (molecules in ``molecules/``, bad input in ``bad/``)."""
+    return ROOT / "structures"
+
+
+@pytest.fixture
+def run_cli(capsys: pytest.CaptureFixture[str]) -> Callable[[Sequence[str]], tuple[int, str, str]]:
+    """Call ``splitting.cli.main(argv)`` in-process and return ``(exit code, stdout, stderr)``.
+
+    An ``argparse`` exit (``SystemExit``) is caught and its code returned.
+    """
+    from splitting.cli import main
+
+    def run(argv: Sequence[str]) -> tuple[int, str, str]:
+        capsys.readouterr()  # drop anything printed before
+        try:
+            code = main([str(a) for a in argv])
+        except SystemExit as exc:  # argparse usage errors
+            code = exc.code if isinstance(exc.code, int) else 1
+        out, err = capsys.readouterr()
+        return int(code), out, err
+
+    return run
