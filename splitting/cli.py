@@ -71,8 +71,11 @@ def _molecule(args: argparse.Namespace) -> int:
     from .report.text import molecule_text
 
     atoms = read_atoms(args.file)
-    result = analyse_unit(atoms.numbers, atoms.positions, tolerance=args.tolerance, point_group=args.point_group,
-                          symbols=atoms.get_chemical_symbols())
+    try:
+        result = analyse_unit(atoms.numbers, atoms.positions, tolerance=args.tolerance,
+                              point_group=args.point_group, symbols=atoms.get_chemical_symbols())
+    except InputError as exc:
+        raise InputError(f"{args.file}: {exc}") from None
     return _emit(args, result.to_dict(), lambda: molecule_text(result))
 
 
@@ -98,8 +101,49 @@ def _predict(args: argparse.Namespace) -> int:
     from .crystal.predict import predict
     from .report.text import prediction_text
 
+    states = _states(args.disorder)
+    for f in args.rotor or []:
+        states[f] = "dynamic"
+    if args.disordered or states:
+        from .phases.disorder import predict_disordered
+        from .report.text import disordered_text
+
+        dis = predict_disordered(args.file, _options(args), states=states)
+        return _emit(args, dis.to_dict(), lambda: disordered_text(dis))
     result = predict(args.file, _options(args))
     return _emit(args, result.to_dict(), lambda: prediction_text(result))
+
+
+def _states(items: list[str] | None) -> dict[str, str]:
+    out = {}
+    for item in items or []:
+        if "=" not in item:
+            raise InputError(f"--disorder {item!r} is not of the form FORMULA=ordered|static|dynamic")
+        f, s = item.split("=", 1)
+        out[f.strip()] = s.strip()
+    return out
+
+
+@_command("compare")
+def _compare(args: argparse.Namespace) -> int:
+    from .phases.compare import compare_phases
+    from .report.text import sequence_text
+
+    states = _states(args.disorder)
+    for f in args.rotor or []:
+        states[f] = "dynamic"
+    seq = compare_phases(args.files, args.labels, _options(args), states=states)
+    return _emit(args, seq.to_dict(), lambda: sequence_text(seq))
+
+
+@_command("lower")
+def _lower(args: argparse.Namespace) -> int:
+    from .phases.lower import lower, parse_observed
+    from .report.text import lowering_text
+
+    observed = parse_observed(args.observed)
+    result = lower(args.file, _options(args), max_index=args.max_index, observed=observed)
+    return _emit(args, result.to_dict(), lambda: lowering_text(result))
 
 
 def _crystal_options(p: argparse.ArgumentParser) -> None:
@@ -153,7 +197,30 @@ def build_parser() -> argparse.ArgumentParser:
     pr = sub.add_parser("predict", help="k = 0 prediction for a crystal: sites, correlation, lattice modes, activity")
     pr.add_argument("file", help="crystal structure (CIF, POSCAR, extended XYZ, or another format ase reads)")
     _crystal_options(pr)
+    pr.add_argument("--disordered", action="store_true",
+                    help="the file holds partly occupied orientations: predict one orientation at its site, "
+                    "the averaged site, and what the disorder removes")
+    pr.add_argument("--disorder", action="append", metavar="FORMULA=STATE",
+                    help="treat a unit as ordered, static or dynamic (rotor); repeatable")
+    pr.add_argument("--rotor", action="append", metavar="FORMULA", help="declare a unit a free rotor (dynamic)")
     pr.add_argument("--json", action="store_true", help="print JSON instead of text")
+
+    c = sub.add_parser("compare", help="a sequence of phases (e.g. on cooling): what each band does between them")
+    c.add_argument("files", nargs="+", help="structure files, upper (e.g. warmest) phase first")
+    c.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, e.g. '300 K' '90 K'")
+    c.add_argument("--disorder", action="append", metavar="FORMULA=STATE",
+                   help="treat a unit as ordered, static or dynamic (rotor); repeatable")
+    c.add_argument("--rotor", action="append", metavar="FORMULA", help="declare a unit a free rotor (dynamic)")
+    _crystal_options(c)
+    c.add_argument("--json", action="store_true", help="print JSON instead of text")
+
+    lo = sub.add_parser("lower", help="candidate lower-symmetry phases, ranked by observed line counts")
+    lo.add_argument("file", help="ordered parent structure")
+    lo.add_argument("--max-index", type=int, default=8, help="largest subgroup index (default 8)")
+    lo.add_argument("--observed", nargs="+", metavar="BAND:TECH=N",
+                    help="observed components, e.g. T1u:ir=3 Hg:raman=5 (optionally UNIT/BAND)")
+    _crystal_options(lo)
+    lo.add_argument("--json", action="store_true", help="print JSON instead of text")
 
     for extra in _EXTRA_PARSERS:
         extra(sub)

@@ -19,7 +19,6 @@ import pytest
 from splitting.errors import BookkeepingError, SymmetryError
 from splitting.groups import (
     CRYSTALLOGRAPHIC,
-    Representation,
     all_group_names,
     canonical_name,
     linear_group,

@@ -142,11 +142,6 @@ def test_d4d_and_s8_rotations_sit_in_the_highest_e():
     assert str(point_group("S8").axial) == "A + E3"
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="class names of S_n (n odd) use S_n^k with even k, which denotes a proper rotation; "
-    "books write 2S5, 2S5^3 (D5h) and S3, S3^5 (C3h)",
-)
 def test_improper_classes_with_odd_n_are_named_as_in_the_books():
     # Cotton App. IIA (from memory): D5h classes E 2C5 2C5^2 5C2 sigma_h 2S5 2S5^3 5sigma_v;
     # C3h classes E C3 C3^2 sigma_h S3 S3^5.  (S_n^k = sigma_h^k C_n^k, so S5^2 = C5^2.)

@@ -137,19 +137,21 @@ def test_d4h_to_c2v_through_sigma_v_and_through_sigma_d():
 
 
 def test_d6h_to_d3h_two_embeddings_swap_b1_and_b2():
-    # D3h in D6h keeps either the C2' or the C2'' axes (WDC App. X gives one; both are common practice)
-    embs = embeddings("D6h", "D3h")
-    assert len(embs) == 2
-    tables = [{lab: rep.as_dict() for lab, rep in e.correlation()} for e in embs]
-    for t in tables:
-        assert t["A1g"] == {"A1'": 1}
-        assert t["A2u"] == {"A2''": 1}
-        assert t["E1u"] == {"E'": 1}
-        assert t["E2g"] == {"E'": 1}
-    # one keeps B1u -> A1'' ... the other B2u -> A1'' (whichever C2 set survives)
-    assert {frozenset(t["B1u"]) for t in tables} | {frozenset(t["B2u"]) for t in tables} == {
-        frozenset({"A1'"}), frozenset({"A2'"})
-    }
+    # D3h in D6h keeps either the C2' (with the σv) or the C2'' axes (with the σd): two embeddings
+    # (common practice).  Keeping C2' (WDC App. X, from memory; e.g. benzene -> 1,3,5-C6H3X3 with the
+    # C2' axes through the atoms): B1u -> A1', B2u -> A2', B1g -> A1'', B2g -> A2''; keeping C2''
+    # swaps the subscripts 1 and 2 of the B species' images.
+    assert len(embeddings("D6h", "D3h")) == 2
+    via_c2p = correlation("D6h", "D3h", ("E", "C3", "C2'", "S3", "σh", "σv"))
+    via_c2pp = correlation("D6h", "D3h", ("E", "C3", "C2''", "S3", "σh", "σd"))
+    common = parse({"A1g": "A1'", "A2g": "A2'", "E1g": "E''", "E2g": "E'",
+                    "A1u": "A1''", "A2u": "A2''", "E1u": "E'", "E2u": "E''"})  # fmt: skip
+    for table in (via_c2p, via_c2pp):
+        assert {k: v for k, v in table.items() if k in common} == common
+    assert via_c2p["B1u"] == {"A1'": 1} and via_c2p["B2u"] == {"A2'": 1}
+    assert via_c2p["B1g"] == {"A1''": 1} and via_c2p["B2g"] == {"A2''": 1}
+    assert via_c2pp["B2u"] == {"A1'": 1} and via_c2pp["B1u"] == {"A2'": 1}
+    assert via_c2pp["B2g"] == {"A1''": 1} and via_c2pp["B1g"] == {"A2''": 1}
 
 
 def test_subgroup_counts_of_small_groups():

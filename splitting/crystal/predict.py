@@ -16,14 +16,15 @@ import numpy as np
 
 from ..activity import activity_table
 from ..correlation import FactorGroup, induce
-from ..errors import BookkeepingError, InputError, SymmetryError
+from ..errors import BookkeepingError, SymmetryError
 from ..groups import OrientedGroup, Representation
 from ..groups.identify import crystal_preference, identify
-from ..molecule.analysis import analyse_unit, hill_formula
+from ..molecule.analysis import hill_formula
 from ..molecule.symmetry import DEFAULT_TOLERANCE
+from .freeunits import FreeUnitCache
 from .read import load_structure
 from .results import Correlation, CrystalPrediction, FactorSpecies, UnitOrbit
-from .spacegroup import DEFAULT_CELL_TOLERANCE, CellSymmetry, analyse_cell, spglib_dataset
+from .spacegroup import DEFAULT_CELL_TOLERANCE, CellSymmetry, analyse_cell
 from .units import DEFAULT_BOND_SCALE, Unit, find_units
 
 __all__ = ["Options", "predict", "predict_atoms"]
@@ -75,13 +76,18 @@ def predict(path: str | os.PathLike[str], options: Options | None = None, *, for
     return predict_atoms(atoms, options, source=os.fspath(path))
 
 
-def predict_atoms(atoms, options: Options | None = None, *, source: str = "structure") -> CrystalPrediction:
-    """As :func:`predict`, for an ``ase.Atoms`` object with a periodic cell."""
+def predict_atoms(atoms, options: Options | None = None, *, source: str = "structure",
+                  free_cache: FreeUnitCache | None = None, scan: bool = True) -> CrystalPrediction:
+    """As :func:`predict`, for an ``ase.Atoms`` object with a periodic cell.
+
+    ``free_cache`` shares free-unit analyses between calls (related phases, candidates).
+    """
     opts = options or Options()
-    cell = analyse_cell(atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=opts.tolerance)
+    cell = analyse_cell(atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers,
+                        tolerance=opts.tolerance, scan=scan)
     units = find_units(cell.lattice, cell.frac, cell.numbers, scale=opts.bond_scale, ionic_metals=opts.ionic_metals,
                        cutoffs=dict(opts.cutoffs), formulas=list(opts.formulas) or None)
-    return _predict(cell, units, opts, source)
+    return _predict(cell, units, opts, source, free_cache)
 
 
 # ----------------------------------------------------------------------------- pipeline
@@ -115,46 +121,6 @@ def _site_ops(cell: CellSymmetry, centre: np.ndarray) -> list[int]:
     return [k for k in range(len(cell.rotations)) if cell.same_point(cell.apply(k, centre), centre, tol=0.05)]
 
 
-def _wyckoff(cell: CellSymmetry, units: tuple[Unit, ...], orbits, tolerance: float) -> list[tuple[str, str]]:
-    """Wyckoff letter and site symbol of every orbit's centre (a dummy atom where no atom sits)."""
-    inv = np.linalg.inv(cell.lattice)
-    frac = [list(cell.frac)]
-    numbers = list(cell.numbers)
-    where: list[int | None] = []
-    for orbit in orbits:
-        c = units[orbit[0][0]].centre @ inv
-        d = cell.frac - c
-        d -= np.round(d)
-        dist = np.linalg.norm(d @ cell.lattice, axis=1)
-        atom = int(np.argmin(dist))
-        if dist[atom] < 0.05:
-            where.append(atom)
-        else:
-            where.append(None)
-    extra_frac, extra_num, slots = [], [], {}
-    for o, orbit in enumerate(orbits):
-        if where[o] is None:
-            slots[o] = len(numbers) + len(extra_num)
-            for uidx, _ in orbit:
-                extra_frac.append((units[uidx].centre @ inv) % 1.0)
-                extra_num.append(1000 + o)
-            # the first of those dummies is the first unit's centre
-    if extra_num:
-        ds = spglib_dataset(cell.lattice, np.vstack([cell.frac, np.array(extra_frac)]),
-                            np.concatenate([cell.numbers, extra_num]), tolerance)
-        wyck, sites = list(ds.wyckoffs), list(ds.site_symmetry_symbols)
-    else:
-        wyck, sites = list(cell.wyckoffs), list(cell.site_symbols)
-    del frac
-    ratio = abs(np.linalg.det(cell.conventional) / np.linalg.det(cell.lattice))
-    out = []
-    for o, orbit in enumerate(orbits):
-        i = where[o] if where[o] is not None else slots[o]
-        mult = round(len(orbit) * ratio)
-        out.append((f"{mult}{wyck[i]}", sites[i]))
-    return out
-
-
 def _axes_text(cell: CellSymmetry, og: OrientedGroup) -> dict[str, str]:
     return {k: cell.direction_text(v) for k, v in og.axes().items()}
 
@@ -168,22 +134,41 @@ def _warnings(cell: CellSymmetry, units: tuple[Unit, ...]) -> list[str]:
                    f"{info.tolerance:g} A, but {alts}")
     symbols = {s for u in units for s in u.symbols}
     if "H" not in symbols:
-        organic = [u.formula for u in units if u.kind == "molecule" and "C" in u.symbols
-                   and set(u.symbols) - {"C"} and sum(s == "C" for s in u.symbols) >= 2]
+        suspicious = [u.formula for u in units if u.kind == "molecule" and _undercoordinated_carbon(u)]
         lone_n = [u.formula for u in units if u.kind == "atom" and u.symbols == ["N"]]
-        if organic or lone_n:
-            out.append("no hydrogen atoms in the structure, but units " + ", ".join(sorted(set(organic + lone_n)))
+        if suspicious or lone_n:
+            out.append("no hydrogen atoms in the structure, but units " + ", ".join(sorted(set(suspicious + lone_n)))
                        + " look like they need some; X-ray structures often omit H, which changes the free group")
     return out
 
 
-def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source: str) -> CrystalPrediction:
+def _undercoordinated_carbon(unit: Unit) -> bool:
+    """True when a non-linear unit has carbon atoms with fewer than three bonded neighbours (common practice)."""
+    from ase.data import covalent_radii
+
+    if sum(s == "C" for s in unit.symbols) < 2:
+        return False
+    pos = unit.positions
+    centred = pos - pos.mean(axis=0)
+    if np.linalg.svd(centred, compute_uv=False)[1] < 0.1:  # linear units (C2, C3O2 ...) are fine
+        return False
+    d = np.linalg.norm(pos[:, None] - pos[None], axis=2)
+    r = covalent_radii[unit.numbers]
+    bonded = (d < 1.2 * (r[:, None] + r[None])) & (d > 0)
+    carbon = np.array([s == "C" for s in unit.symbols])
+    return bool(np.any(bonded[carbon].sum(axis=1) < 3))
+
+
+def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source: str,
+             free_cache: FreeUnitCache | None = None) -> CrystalPrediction:
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     fg = factor.oriented
     reference = cell.reference_axes
     orbits = _orbits(cell, units)
-    wyckoffs = _wyckoff(cell, units, orbits, opts.tolerance)
+    wyckoffs = cell.wyckoff_of([units[orbit[0][0]].centre for orbit in orbits], tolerance=opts.tolerance)
     given = {f.replace(" ", ""): g for f, g in opts.free_groups}
+    if free_cache is None:
+        free_cache = FreeUnitCache(opts.unit_tolerance, given)
     zero = fg.group.representation({})
     orbit_results: list[UnitOrbit] = []
     for orbit, (wyck, site_symbol) in zip(orbits, wyckoffs, strict=True):
@@ -208,17 +193,12 @@ def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source:
         deviation = 0.0
         free_vib = None
         if len(u0.atoms) > 1:
-            try:
-                analysis = analyse_unit(u0.numbers, u0.positions, tolerance=opts.unit_tolerance,
-                                        point_group=given.get(u0.formula))
-            except InputError as exc:
-                raise InputError(f"unit {u0.formula}: {exc}") from None
-            sym = analysis.symmetry
-            free = sym.group
-            free_name, free_source = free.name, ("given" if u0.formula in given else "detected")
+            info = free_cache.get(u0)
+            free = info.group
+            free_name, free_source = free.name, info.source
             free_axes = _axes_text(cell, free)
-            deviation = sym.max_deviation
-            free_vib = analysis.vibrations
+            deviation = info.deviation
+            free_vib = info.vibrations
             for op in site.operations:
                 if not free.contains(op):
                     raise SymmetryError(
@@ -226,13 +206,13 @@ def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source:
                         f"{free.name} as found (unit tolerance {opts.unit_tolerance} A); "
                         "increase --unit-tolerance or name the free group"
                     )
-            if sym.linear:
+            if info.linear:
                 axis = free.frame[:, 2]
                 lib_chars = np.array([np.linalg.det(r) * (np.trace(r) - axis @ r @ axis) for r in site.operations])
             else:
                 lib_chars = np.linalg.det(site.operations) * np.trace(site.operations, axis1=1, axis2=2)
             lib = induce(factor, site_cell, lib_chars, what=f"librations of {u0.formula}")
-            for label, n in analysis.vibrations:
+            for label, n in info.vibrations:
                 chars = np.array([free.character(label, op) for op in site.operations])
                 site_rep = site.reduce_at(chars, what=f"{label} of {free.name} in site {site.name}")
                 fac = induce(factor, site_cell, chars, what=f"{label} of {u0.formula}")
@@ -276,7 +256,7 @@ def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source:
         space_group=cell.info, factor_group=fg.name, factor_axes=_axes_text(cell, fg),
         centrosymmetric=fg.group.centrosymmetric, atoms_primitive=len(cell.numbers), atoms_input=cell.input_atoms,
         units=tuple(orbit_results), species=tuple(species), gamma_3n=gamma, acoustic=acoustic,
-        warnings=tuple(_warnings(cell, units)),
+        warnings=tuple(_warnings(cell, units)), cell_volume=float(abs(np.linalg.det(cell.lattice))),
     )
 
 

@@ -52,8 +52,11 @@ def load_structure(path: str | os.PathLike[str], *, format: str | None = None, a
     partial = partial_sites(atoms)
     if partial and not allow_partial:
         shown = ", ".join(partial[:4]) + (" ..." if len(partial) > 4 else "")
-        raise InputError(f"{path}: partial occupancy at {shown}; the file describes a disordered "
-                         "structure with no ordered model (see 'splitting predict --help' for disorder options)")
+        raise InputError(f"{path}: partial occupancy at {shown}; the file describes a disordered structure, "
+                         "not an ordered one (run 'splitting predict --disordered' to treat it as a disordered phase)")
     if not partial:
-        check_overlaps(atoms)
+        try:
+            check_overlaps(atoms)
+        except InputError as exc:
+            raise InputError(f"{path}: {exc}") from None
     return atoms

@@ -189,6 +189,8 @@ class CrystalPrediction:
     gamma_3n, acoustic : Representation
         Whole-cell count (computed independently) and the acoustic modes.
     warnings : tuple of str
+    cell_volume : float
+        Primitive-cell volume (cubic angstrom).
     """
 
     source: str
@@ -204,6 +206,7 @@ class CrystalPrediction:
     gamma_3n: Representation
     acoustic: Representation
     warnings: tuple[str, ...]
+    cell_volume: float = float("nan")
 
     def species_by_label(self, label: str) -> FactorSpecies:
         """The factor-group species with this label."""
@@ -239,6 +242,7 @@ class CrystalPrediction:
             "centrosymmetric": self.centrosymmetric,
             "atoms_primitive": self.atoms_primitive,
             "atoms_input": self.atoms_input,
+            "cell_volume_angstrom3": round(self.cell_volume, 4),
             "units": [u.to_dict() for u in self.units],
             "species": [s.to_dict() for s in self.species],
             "gamma_3n": str(self.gamma_3n),

@@ -197,6 +197,50 @@ class CellSymmetry:
                 return "[" + ",".join(str(i) for i in ints) + "]"
         return "[" + ",".join(f"{x:.3f}" for x in uvw / m) + "]"
 
+    def orbit_of(self, point: np.ndarray) -> np.ndarray:
+        """Distinct images (Cartesian, inside the primitive cell) of a point under the space group."""
+        inv = np.linalg.inv(self.lattice)
+        out: list[np.ndarray] = []
+        for k in range(len(self.rotations)):
+            f = self.apply(k, point) @ inv
+            f -= np.floor(f + 1e-9)
+            if not any(self.same_point(f @ self.lattice, q) for q in out):
+                out.append(f @ self.lattice)
+        return np.array(out)
+
+    def wyckoff_of(self, points: list[np.ndarray], *, tolerance: float = DEFAULT_CELL_TOLERANCE
+                   ) -> list[tuple[str, str]]:
+        """Wyckoff position (multiplicity and letter, e.g. ``"4a"``) and oriented site symbol of points.
+
+        Where no atom sits at a point, a dummy atom of a new kind is placed on its orbit and
+        spglib is asked once for all points.
+        """
+        inv = np.linalg.inv(self.lattice)
+        ratio = abs(np.linalg.det(self.conventional) / np.linalg.det(self.lattice))
+        frac, numbers, slot, sizes = [self.frac], [self.numbers], [], []
+        count = len(self.numbers)
+        kind = int(np.max(self.numbers)) + 1000
+        for n, p in enumerate(points):
+            orbit = self.orbit_of(p)
+            sizes.append(len(orbit))
+            d = self.frac - p @ inv
+            d -= np.round(d)
+            dist = np.linalg.norm(d @ self.lattice, axis=1)
+            if dist.min() < 0.05:
+                slot.append(int(np.argmin(dist)))
+                continue
+            slot.append(count)
+            f = orbit @ inv
+            frac.append(f)
+            numbers.append(np.full(len(f), kind + n))
+            count += len(f)
+        if count > len(self.numbers):
+            ds = spglib_dataset(self.lattice, np.vstack(frac), np.concatenate(numbers), tolerance)
+            wyck, sites = list(ds.wyckoffs), list(ds.site_symmetry_symbols)
+        else:
+            wyck, sites = list(self.wyckoffs), list(self.site_symbols)
+        return [(f"{round(size * ratio)}{wyck[i]}", sites[i]) for i, size in zip(slot, sizes, strict=True)]
+
     def apply(self, k: int, cart: np.ndarray) -> np.ndarray:
         """Operation k applied to Cartesian points (angstrom)."""
         return np.asarray(cart) @ self.rotations[k].T + self.translations[k]
@@ -249,7 +293,10 @@ def analyse_cell(lattice, frac, numbers, *, tolerance: float = DEFAULT_CELL_TOLE
     pfrac = cart @ np.linalg.inv(plat)
     pfrac -= np.floor(pfrac + 1e-9)
     pnum = numbers[first]
-    pds = spglib_dataset(plat, pfrac, pnum, tolerance)
+    if n_prim == len(numbers) and np.allclose(plat, lattice, atol=1e-8):
+        pds = ds  # the input is already primitive
+    else:
+        pds = spglib_dataset(plat, pfrac, pnum, tolerance)
     if len(pds.rotations) != len({r.tobytes() for r in np.asarray(pds.rotations)}):
         raise SymmetryError("the primitive cell found by spglib still has pure translations")  # pragma: no cover
     inv_plat = np.linalg.inv(plat)

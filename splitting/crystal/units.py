@@ -22,10 +22,9 @@ __all__ = ["DEFAULT_BOND_SCALE", "IONIC_METALS", "Unit", "find_units", "parse_cu
 DEFAULT_BOND_SCALE = 1.2
 
 #: alkali, alkaline-earth (without Be) and lanthanide elements: kept as separate ions
-IONIC_METALS = frozenset(
-    ["Li", "Na", "K", "Rb", "Cs", "Fr", "Mg", "Ca", "Sr", "Ba", "Ra"]
-    + ["La", "Ce", "Pr", "Nd", "Pm", "Sm", "Eu", "Gd", "Tb", "Dy", "Ho", "Er", "Tm", "Yb", "Lu"]
-)
+_ALKALI_AND_ALKALINE_EARTH = ("Li", "Na", "K", "Rb", "Cs", "Fr", "Mg", "Ca", "Sr", "Ba", "Ra")
+_LANTHANIDES = ("La", "Ce", "Pr", "Nd", "Pm", "Sm", "Eu", "Gd", "Tb", "Dy", "Ho", "Er", "Tm", "Yb", "Lu")
+IONIC_METALS = frozenset(_ALKALI_AND_ALKALINE_EARTH + _LANTHANIDES)
 
 
 @dataclass(frozen=True, eq=False)

@@ -16,12 +16,11 @@ from dataclasses import dataclass, field
 from functools import cached_property
 
 import numpy as np
-from scipy.spatial import cKDTree
 
 from ..errors import SymmetryError
 from .catalogue import family
 from .linear import LinearGroup, linear_group
-from .operations import describe
+from .operations import describe, multiplication_table
 from .pointgroup import PointGroup, point_group
 from .representation import Representation
 
@@ -61,7 +60,9 @@ class OrientedGroup:
         return ops
 
     @cached_property
-    def _tree(self) -> cKDTree:
+    def _tree(self):
+        from scipy.spatial import cKDTree
+
         return cKDTree(self.group.operations.reshape(-1, 9))
 
     def to_standard(self, op: np.ndarray) -> np.ndarray:
@@ -177,6 +178,9 @@ def name_of(ops: np.ndarray) -> str:
     'D3d'
     """
     ops = np.asarray(ops, dtype=float)
+    multiplication_table(ops, tol=1e-3)  # raises unless the set is closed
+    if len({np.round(o, 4).tobytes() for o in ops}) != len(ops):
+        raise SymmetryError("the operations contain duplicates")
     kinds = [describe(o) for o in ops]
     proper = [k for k in kinds if k.proper]
     axes = _axes(kinds)
@@ -390,6 +394,8 @@ def identify(ops: np.ndarray, *, prefer: Preference | None = None, reference: np
     ref = np.eye(3) if reference is None else np.asarray(reference, dtype=float)
     score = prefer or crystal_preference(ref)
     kinds = [describe(o) for o in ops]
+    from scipy.spatial import cKDTree
+
     tree = cKDTree(ops.reshape(-1, 9))
     best, best_score = None, None
     fam, _ = family(name)

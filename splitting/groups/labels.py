@@ -132,7 +132,10 @@ def _powers(ops: np.ndarray, members: np.ndarray) -> list[int]:
         ang = d.angle
         if abs(abs(axis[2]) - 1) < 1e-6:
             ang = ang if axis[2] > 0 else -ang
-        out.append(round(ang / (2 * np.pi / d.order)) % d.order)
+        k = round(ang / (2 * np.pi / d.order)) % d.order
+        if not d.proper and d.order % 2 == 1 and k % 2 == 0:
+            k += d.order  # S_n^k with n odd is written with k odd: sigma C_n^2 = S_n^(n+2)
+        out.append(k)
     return out
 
 
@@ -157,7 +160,7 @@ def class_names(name: str, ops: np.ndarray, classes: list[np.ndarray]) -> list[s
             sym = f"{letter}{kind.order}" if k == 1 else f"{letter}{kind.order}^{k}"
             base = f"{len(members)}{sym}" if len(members) > 1 else sym
             if base in names:  # a second class of the same rotations in the other sense
-                k2 = kind.order - k
+                k2 = (2 * kind.order if (not kind.proper and kind.order % 2) else kind.order) - k
                 sym = f"{letter}{kind.order}^{k2}"
         if kind.symbol == "C2":
             if fam in ("T", "Th", "Td", "O", "Oh"):

@@ -134,8 +134,7 @@ def _validate(numbers: np.ndarray, positions: np.ndarray) -> None:
         raise InputError(f"atoms overlap: atom {i + 1} has a neighbour {d[i, 1]:.3f} A away")
 
 
-def find_symmetry(numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE,
-                  masses=None) -> MoleculeSymmetry:
+def find_symmetry(numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE, masses=None) -> MoleculeSymmetry:
     """Find the point group of a molecule or ion.
 
     Parameters
@@ -177,8 +176,7 @@ def find_symmetry(numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE,
     dev = float(np.max(np.linalg.norm(sym - pos, axis=1)))
     if dev > tolerance:
         raise SymmetryError(
-            f"symmetrising moved an atom by {dev:.3f} A, more than the tolerance {tolerance} A; "
-            "use a smaller tolerance"
+            f"symmetrising moved an atom by {dev:.3f} A, more than the tolerance {tolerance} A; use a smaller tolerance"
         )
     og = identify(ops, prefer=molecular_preference(sym, tol=max(0.05, min(tolerance, 0.2))), tol=1e-4)
     aligned = og.operations
@@ -204,8 +202,9 @@ def _linear(numbers, pos, centre, axis, tolerance) -> MoleculeSymmetry:
     frame = np.column_stack([x, np.cross(axis, x), axis])
     og = oriented("D∞h" if inv else "C∞v", frame)
     dev = float(np.max(np.linalg.norm(sym - pos, axis=1)))
-    return MoleculeSymmetry(og, centre, numbers, pos, sym, np.zeros((0, 3, 3)), np.zeros((0, len(pos)), int),
-                            dev, tolerance)
+    return MoleculeSymmetry(
+        og, centre, numbers, pos, sym, np.zeros((0, 3, 3)), np.zeros((0, len(pos)), int), dev, tolerance
+    )
 
 
 def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarray, np.ndarray]:
@@ -232,33 +231,31 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
     vol = np.abs(pos @ normal)
     third = [i for i in range(n) if vol[i] > max(tol, 0.3)]
     a3 = min(third, key=lambda i: (dist1[i], len(cand[i]))) if third else None
-    d12 = np.linalg.norm(pos[a1] - pos[a2])
+    dist = np.linalg.norm(pos[:, None, :] - pos[None, :, :], axis=2)
+    d12 = dist[a1, a2]
     ops: list[np.ndarray] = []
     perms: list[np.ndarray] = []
     keys: set[bytes] = set()
+    c2 = np.asarray(cand[a2])
+    c3 = np.asarray(cand[a3]) if a3 is not None else None
     for b1 in cand[a1]:
-        for b2 in cand[a2]:
-            if b2 == b1 or abs(np.linalg.norm(pos[b1] - pos[b2]) - d12) > 2 * tol:
-                continue
+        for b2 in c2[(np.abs(dist[b1, c2] - d12) <= 2 * tol) & (c2 != b1)]:
             if a3 is None:
                 nb = np.cross(pos[b1], pos[b2])
                 if np.linalg.norm(nb) < 1e-6:
                     continue
                 nb /= np.linalg.norm(nb)
-                targets = [nb, -nb]
                 src = np.array([pos[a1], pos[a2], normal * radius[a1]])
-                trials = [np.array([pos[b1], pos[b2], t * radius[a1]]) for t in targets]
+                trials = [np.array([pos[b1], pos[b2], t * radius[a1]]) for t in (nb, -nb)]
             else:
-                trials = []
                 src = np.array([pos[a1], pos[a2], pos[a3]])
-                for b3 in cand[a3]:
-                    if b3 in (b1, b2):
-                        continue
-                    if abs(np.linalg.norm(pos[b3] - pos[b1]) - np.linalg.norm(pos[a3] - pos[a1])) > 2 * tol:
-                        continue
-                    if abs(np.linalg.norm(pos[b3] - pos[b2]) - np.linalg.norm(pos[a3] - pos[a2])) > 2 * tol:
-                        continue
-                    trials.append(np.array([pos[b1], pos[b2], pos[b3]]))
+                ok = (
+                    (np.abs(dist[b1, c3] - dist[a1, a3]) <= 2 * tol)
+                    & (np.abs(dist[b2, c3] - dist[a2, a3]) <= 2 * tol)
+                    & (c3 != b1)
+                    & (c3 != b2)
+                )
+                trials = [np.array([pos[b1], pos[b2], pos[b3]]) for b3 in c3[ok]]
             for dst in trials:
                 r = _kabsch(src, dst)
                 p = _match(r, pos, numbers, tree, tol)

@@ -188,3 +188,85 @@ def prediction_text(pred) -> str:
         lines.append("  centrosymmetric factor group: no frequency is both IR and Raman active (mutual exclusion)")
     lines.append("  inelastic neutron scattering: every mode is allowed")
     return "\n".join(lines)
+
+
+def sequence_text(seq) -> str:
+    """Readable report of a :class:`~splitting.phases.compare.PhaseSequence`."""
+    lines = ["Phases"]
+    rows = []
+    for ph in seq.phases:
+        sg = ph.space_group
+        state = "ordered" if ph.ordered else "orientationally disordered"
+        rows.append([ph.label, f"{sg.symbol} (No. {sg.number})", ph.factor_group, state, ph.source])
+    lines.append(table(["phase", "space group", "factor group", "order", "file"], rows))
+    for ph in seq.phases:
+        if ph.disorder is not None:
+            for u in ph.disorder.units:
+                lines.append(f"  {ph.label}: {u.statement} (averaged site {u.averaged_site_group}, "
+                             f"Wyckoff {u.averaged_wyckoff}; {u.orientations} orientation(s) in the file)")
+    lines.append("")
+    lines.append("Relations")
+    rows = [[f"{s.upper} -> {s.lower}", "yes" if s.subgroup else "no", s.point_index or "-",
+             f"{s.cell_multiple:g}", f"{s.volume_ratio:.3f}", s.kind] for s in seq.steps]
+    lines.append(table(["step", "factor subgroup", "point index", "cell x", "volume/unit", "type"], rows))
+    lines.append("")
+    lines.append("Bands (components per fundamental; IR / Raman counts)")
+    headers = ["unit", "band", *[ph.label for ph in seq.phases]]
+    rows = []
+    for b in seq.bands:
+        rows.append([b.unit, b.band, *[f"{s.text()}  [IR {s.ir}, R {s.raman}]" for s in b.states]])
+    lines.append(table(headers, rows))
+    remarks = [f"  {b.unit} {b.band}: {r}" for b in seq.bands for r in b.remarks]
+    if remarks:
+        lines.append("")
+        lines.append("What changes")
+        lines += remarks
+    lines.append("")
+    lines.append("Lattice modes")
+    for ph in seq.phases:
+        lines.append(f"  {ph.label}: {ph.lattice()['text']}")
+    lines += [f"  {r}" for r in seq.lattice_remarks]
+    return "\n".join(lines)
+
+
+def lowering_text(result, *, limit: int = 40) -> str:
+    """Readable list of candidate lower-symmetry phases."""
+    p = result.parent
+    lines = [f"Parent {p.space_group.symbol} (No. {p.space_group.number}), factor group {p.factor_group}; "
+             f"candidates up to index {result.max_index}: {len(result.candidates)}"]
+    if result.observed:
+        lines.append("Observed: " + ", ".join(f"{b} {t} = {n}" for b, t, n in result.observed))
+    rows = []
+    for k, c in enumerate(result.candidates[:limit], 1):
+        sites = "; ".join(f"{u.formula} {u.wyckoff} {u.site_group} x{u.count}" for u in c.prediction.units)
+        bands = ", ".join(f"{b.band} {b.ir}/{b.raman}" for b in c.bands()[:6])
+        score = "-" if c.score is None else f"{c.score:g}"
+        rows.append([k, f"{c.space_group[1]} ({c.space_group[0]})", c.kind, c.index, c.point_group, sites, bands,
+                     score])
+    lines.append(table(["#", "space group", "type", "index", "factor", "sites", "bands IR/Raman", "misfit"], rows))
+    if result.observed:
+        lines.append("")
+        for k, c in enumerate(result.candidates[:limit], 1):
+            if c.reasons:
+                lines.append(f"  #{k} {c.space_group[1]}: " + "; ".join(c.reasons))
+    return "\n".join(lines)
+
+
+def disordered_text(pred) -> str:
+    """Readable report of a :class:`~splitting.phases.disorder.DisorderedPrediction`."""
+    sg = pred.space_group
+    lines = [f"{pred.source}",
+             f"  averaged structure: {sg.symbol} (No. {sg.number}), factor group {pred.factor_group}",
+             f"  optical translational modes of the averaged structure: {pred.translations}"]
+    for u in pred.units:
+        lines.append("")
+        lines.append(f"{u.formula}: {u.state} disorder, {u.orientations} orientation(s) in the file; free group "
+                     f"{u.free_group}; averaged site {u.averaged_site_group} ({u.averaged_wyckoff})"
+                     + (f"; site of one orientation {u.orientation_site_group}" if u.orientation_site_group else ""))
+        lines.append(f"  {u.statement}")
+        head = "site of one orientation" if u.state == "static" else "free unit"
+        lines.append(table(["free", "modes", head], [[p.free, p.modes, str(p.site)] for p in u.pattern]))
+    lines.append("")
+    lines.append("One-orientation ordered model (every unit in one orientation), for reference:")
+    lines.append(prediction_text(pred.ordered_model))
+    return "\n".join(lines)

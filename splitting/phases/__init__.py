@@ -1,0 +1,1 @@
+"""Orientational order: disordered phases, phase sequences and candidate lower-symmetry phases."""

@@ -1,0 +1,425 @@
+"""Candidate lower-symmetry phases of a structure, generated from its own operations.
+
+No table of subgroups is used.  For every subgroup ``H`` of the factor group (up to
+conjugacy) and every sublattice ``L'`` of the primitive lattice that ``H`` keeps (index
+``m``, enumerated as Hermite normal forms), each operation keeps its rotation and gets one
+of the ``m`` translation cosets; a choice is kept when the operations close modulo ``L'``.
+``m = 1`` gives the translationengleiche (t) subgroups, ``H = F`` the klassengleiche (k)
+ones, and the rest are t+k subgroups (International Tables for Crystallography, Vol. A1,
+describes the same two kinds of maximal subgroups).  Each candidate is realised as a
+structure: the parent (in the supercell ``L'``) with a small random displacement averaged
+over the candidate's operations, whose space group spglib then confirms, and the usual
+pipeline predicts its spectrum.
+"""
+
+from __future__ import annotations
+
+import itertools
+import os
+from collections.abc import Mapping
+from dataclasses import dataclass, field, replace
+
+import numpy as np
+
+from ..correlation import FactorGroup
+from ..crystal.freeunits import FreeUnitCache
+from ..crystal.predict import Options, predict_atoms
+from ..crystal.read import load_structure
+from ..crystal.results import CrystalPrediction
+from ..crystal.spacegroup import CellSymmetry, analyse_cell
+from ..errors import InputError
+from ..groups.subgroups import subgroup_classes
+from .compare import BandState, Phase
+
+__all__ = ["DEFAULT_MAX_INDEX", "Candidate", "Lowering", "lower", "parse_observed", "sublattices"]
+
+#: default largest index of a candidate subgroup (point-group index x cell multiple)
+DEFAULT_MAX_INDEX = 8
+#: displacement (angstrom) used to realise a candidate as a structure
+DISPLACEMENT = 0.05
+
+
+def sublattices(index: int) -> list[np.ndarray]:
+    """Every sublattice of Z^3 of the given index, as lower-triangular Hermite normal forms.
+
+    Rows are the new basis vectors in the old basis.
+
+    Examples
+    --------
+    >>> len(sublattices(2)), len(sublattices(4))
+    (7, 35)
+    """
+    out = []
+    for a in range(1, index + 1):
+        if index % a:
+            continue
+        for c in range(1, index // a + 1):
+            if (index // a) % c:
+                continue
+            f = index // (a * c)
+            for b, d, e in itertools.product(range(a), range(a), range(c)):
+                out.append(np.array([[a, 0, 0], [b, c, 0], [d, e, f]]))
+    return out
+
+
+def hermite_normal_form(basis: np.ndarray) -> np.ndarray:
+    """Lower-triangular Hermite normal form of an integer lattice basis given as rows.
+
+    Examples
+    --------
+    >>> hermite_normal_form(np.array([[0, 1, 1], [1, 0, 1], [1, 1, 0]])).tolist()
+    [[2, 0, 0], [1, 1, 0], [1, 0, 1]]
+    """
+    h = np.array(basis, dtype=np.int64)
+    for col, row in ((2, 2), (1, 1), (0, 0)):
+        # bring the gcd of h[:row+1, col] into h[row, col] and zero the rows above
+        while True:
+            nz = [r for r in range(row + 1) if h[r, col] != 0]
+            if len(nz) <= 1:
+                break
+            piv = min(nz, key=lambda r: abs(h[r, col]))
+            for r in nz:
+                if r != piv:
+                    h[r] -= (h[r, col] // h[piv, col]) * h[piv]
+        nz = [r for r in range(row + 1) if h[r, col] != 0]
+        if not nz:
+            raise InputError("lattice basis is singular")
+        h[[row, nz[0]]] = h[[nz[0], row]]
+        if h[row, col] < 0:
+            h[row] = -h[row]
+    for r, c in ((1, 0), (2, 1), (2, 0)):
+        h[r] -= (h[r, c] // h[c, c]) * h[c]
+    return h
+
+
+def _canonical(m: np.ndarray, ops: list[tuple[np.ndarray, np.ndarray]], parent: list[tuple[np.ndarray, np.ndarray]]
+               ) -> tuple:
+    """A key shared by all subgroups conjugate under the parent space group (rotations and lattice)."""
+    ws = np.array([w for w, _ in ops])
+    ts = np.array([t for _, t in ops])
+    best = None
+    for wg, tg in parent:
+        winv = np.rint(np.linalg.inv(wg)).astype(np.int64)
+        m2 = hermite_normal_form((wg @ m.T).T)
+        w2 = np.einsum("ij,njk,kl->nil", wg, ws, winv)
+        minv = np.linalg.inv(m2.T)
+        a, c, f = int(m2[0, 0]), int(m2[1, 1]), int(m2[2, 2])
+        for u in itertools.product(range(a), range(c), range(f)):
+            s = tg + np.array(u, dtype=float)
+            t2 = ts @ wg.T + s - np.einsum("nij,j->ni", w2, s)
+            frac = t2 @ minv.T
+            frac = np.round((frac - np.floor(frac + 1e-8)) * 1e6).astype(np.int64) % 1_000_000
+            rows = sorted(zip(map(bytes, w2.reshape(len(w2), -1).astype(np.int8)), map(bytes, frac), strict=True))
+            key = (m2.tobytes(), tuple(rows))
+            if best is None or key < best:
+                best = key
+    return best
+
+
+def _keeps(m: np.ndarray, rotations: np.ndarray) -> bool:
+    """True when every fractional rotation maps the sublattice (rows of m) onto itself."""
+    inv = np.linalg.inv(m.T)
+    for w in rotations:
+        c = inv @ w @ m.T
+        if not np.allclose(c, np.round(c), atol=1e-8):
+            return False
+    return True
+
+
+@dataclass(frozen=True, eq=False)
+class Candidate:
+    """A candidate lower-symmetry phase.
+
+    Attributes
+    ----------
+    kind : str
+        ``"t"``, ``"k"`` or ``"t+k"``.
+    index : int
+        Index in the parent space group (point-group index x cell multiple).
+    point_group : str
+        Its factor group (a subgroup of the parent's).
+    cell_multiple : int
+    supercell : tuple of tuple of int
+        Rows: the candidate's primitive cell vectors in the parent's primitive basis.
+    space_group : tuple of (int, str)
+        Number and symbol that spglib gives for the realised structure.
+    prediction : CrystalPrediction
+    score : float or None
+        Disagreement with observed counts (lower is better); None when nothing was observed.
+    reasons : tuple of str
+        Where the candidate disagrees with the observations.
+    variants : int
+        Number of subgroups, not conjugate in the parent group, that give this same candidate
+        (same space group, sites and line counts: e.g. two settings related by the parent's normaliser).
+    """
+
+    kind: str
+    index: int
+    point_group: str
+    cell_multiple: int
+    supercell: tuple[tuple[int, ...], ...]
+    space_group: tuple[int, str]
+    prediction: CrystalPrediction = field(repr=False)
+    score: float | None = None
+    reasons: tuple[str, ...] = ()
+    variants: int = 1
+
+    def bands(self) -> list[BandState]:
+        """Every band in this candidate."""
+        return Phase(self.space_group[1], self.prediction.source, self.prediction, None).bands()
+
+    def to_dict(self) -> dict[str, object]:
+        """JSON-ready form."""
+        return {
+            "space_group": {"number": self.space_group[0], "symbol": self.space_group[1]},
+            "kind": self.kind, "index": self.index, "factor_group": self.point_group,
+            "cell_multiple": self.cell_multiple, "supercell": [list(r) for r in self.supercell],
+            "units": [{"formula": u.formula, "site_group": u.site_group, "wyckoff": u.wyckoff, "count": u.count}
+                      for u in self.prediction.units],
+            "bands": [{"unit": b.unit, "band": b.band, "components": b.text(), "ir": b.ir, "raman": b.raman}
+                      for b in self.bands()],
+            "score": self.score, "reasons": list(self.reasons), "variants": self.variants,
+        }
+
+
+@dataclass(frozen=True)
+class Lowering:
+    """All candidates found for a parent structure, best first when observations were given."""
+
+    parent: CrystalPrediction
+    max_index: int
+    candidates: tuple[Candidate, ...]
+    observed: tuple[tuple[str, str, int], ...] = ()
+
+    def to_dict(self) -> dict[str, object]:
+        """JSON-ready form."""
+        return {"parent": {"space_group": self.parent.space_group.to_dict(),
+                           "factor_group": self.parent.factor_group, "source": self.parent.source},
+                "max_index": self.max_index,
+                "observed": [{"band": b, "technique": t, "count": n} for b, t, n in self.observed],
+                "candidates": [c.to_dict() for c in self.candidates]}
+
+
+def _generators(table: np.ndarray, members: frozenset[int]) -> list[int]:
+    gens: list[int] = []
+    span = {0}
+    for g in sorted(members):
+        if g in span:
+            continue
+        gens.append(g)
+        span = _closure(table, span, gens)
+        if span == set(members):
+            break
+    return gens
+
+
+def _closure(table: np.ndarray, start: set[int], gens: list[int]) -> set[int]:
+    elems = set(start) | {0}
+    frontier = list(elems)
+    while frontier:
+        new = []
+        for a in frontier:
+            for g in gens:
+                p = int(table[a, g])
+                if p not in elems:
+                    elems.add(p)
+                    new.append(p)
+        frontier = new
+    return elems
+
+
+def _close_ops(gens: list[tuple[np.ndarray, np.ndarray]], m: np.ndarray, order: int
+               ) -> list[tuple[np.ndarray, np.ndarray]] | None:
+    """Close (W, t) pairs modulo the sublattice m; None if some rotation gets two translations."""
+    minv = np.linalg.inv(m.T)
+
+    def key(w: np.ndarray, t: np.ndarray) -> tuple[bytes, bytes]:
+        f = minv @ t
+        f = np.round((f - np.floor(f + 1e-8)) * 1e6).astype(np.int64) % 1_000_000
+        return w.astype(np.int64).tobytes(), f.tobytes()
+
+    ident = (np.eye(3, dtype=int), np.zeros(3))
+    found = {key(*ident)[0]: ident}
+    tkeys = {key(*ident)[0]: key(*ident)[1]}
+    frontier = [ident]
+    while frontier:
+        new = []
+        for w1, t1 in frontier:
+            for w2, t2 in gens:
+                w, t = w1 @ w2, w1 @ t2 + t1
+                kw, kt = key(w, t)
+                if kw in tkeys:
+                    if tkeys[kw] != kt:
+                        return None
+                    continue
+                tkeys[kw] = kt
+                found[kw] = (w, t)
+                new.append((w, t))
+        frontier = new
+        if len(found) > order:
+            return None
+    return list(found.values())
+
+
+def _realise(cell: CellSymmetry, m: np.ndarray, ops: list[tuple[np.ndarray, np.ndarray]], seed: int):
+    """Supercell of the parent with a displacement pattern averaged over the candidate's operations."""
+    from ase import Atoms
+
+    lat = m @ cell.lattice
+    a, c, f = int(m[0, 0]), int(m[1, 1]), int(m[2, 2])
+    cosets = [np.array(u) for u in itertools.product(range(a), range(c), range(f))]
+    cart = np.concatenate([(cell.frac + u) @ cell.lattice for u in cosets])
+    numbers = np.tile(cell.numbers, len(cosets))
+    inv = np.linalg.inv(lat)
+    frac = cart @ inv
+    frac -= np.floor(frac + 1e-9)
+    rng = np.random.default_rng(seed)
+    disp = rng.normal(size=cart.shape)
+    sym = np.zeros_like(disp)
+    plat = cell.lattice
+    from scipy.spatial import cKDTree
+
+    tree = cKDTree(frac % 1.0, boxsize=1.0 + 1e-12)
+    for w, t in ops:
+        r = plat.T @ w @ np.linalg.inv(plat.T)
+        img = ((cart @ r.T + t @ plat) @ inv) % 1.0
+        _, perm = tree.query(img)
+        sym += disp[perm] @ r  # R^-1 d_{pi(i)} written for row vectors
+    sym /= len(ops)
+    norm = np.max(np.linalg.norm(sym, axis=1))
+    if norm > 1e-9:
+        sym *= DISPLACEMENT / norm
+    atoms = Atoms(numbers=numbers, positions=cart + sym, cell=lat, pbc=True)
+    atoms.wrap()
+    return atoms
+
+
+def parse_observed(items: list[str] | None) -> tuple[tuple[str, str, int], ...]:
+    """Parse ``["T1u:ir=3", "Hg:raman=5"]`` into ``(("T1u", "ir", 3), ("Hg", "raman", 5))``.
+
+    A unit may be named: ``"C60/T1u:ir=3"``.
+    """
+    out = []
+    for item in items or []:
+        try:
+            band, rest = item.split(":")
+            tech, n = rest.split("=")
+            tech = tech.strip().lower()
+            if tech not in ("ir", "raman", "total"):
+                raise ValueError
+            out.append((band.strip(), tech, int(n)))
+        except ValueError:
+            raise InputError(f"observed count {item!r} is not of the form BAND:ir=N or BAND:raman=N") from None
+    return tuple(out)
+
+
+def _score(bands: list[BandState], observed: tuple[tuple[str, str, int], ...]) -> tuple[float, tuple[str, ...]]:
+    score, reasons = 0.0, []
+    for band, tech, n in observed:
+        unit, _, name = band.rpartition("/")
+        matches = [b for b in bands if b.band == name and (not unit or b.unit == unit)]
+        if not matches:
+            score += n
+            reasons.append(f"{band}: not a band of any unit")
+            continue
+        b = matches[0]
+        pred = {"ir": b.ir, "raman": b.raman, "total": b.total}[tech]
+        if pred != n:
+            score += abs(pred - n)
+            reasons.append(f"{band}: predicts {pred} {tech.upper() if tech == 'ir' else tech} "
+                           f"component{'s' if pred != 1 else ''}, {n} observed")
+    return score, tuple(reasons)
+
+
+def lower(path: str | os.PathLike[str] | None = None, options: Options | None = None, *, atoms=None,
+          max_index: int = DEFAULT_MAX_INDEX, observed: tuple[tuple[str, str, int], ...] = (),
+          seed: int = 1) -> Lowering:
+    """Candidate lower-symmetry phases of an ordered structure, ranked by observed line counts.
+
+    Parameters
+    ----------
+    path : path-like, optional
+        Ordered parent structure (or pass ``atoms``).
+    max_index : int
+        Largest index (point-group index x cell multiple) to enumerate.
+    observed : tuple of (band, technique, count)
+        Observed numbers of components, e.g. ``(("T1u", "ir", 3),)``; see :func:`parse_observed`.
+    """
+    if max_index < 2:
+        raise InputError("the largest index must be at least 2")
+    opts = options or Options()
+    if atoms is None:
+        if path is None:
+            raise InputError("give a structure file or atoms")
+        atoms = load_structure(path)
+    source = os.fspath(path) if path is not None else "structure"
+    cache = FreeUnitCache(opts.unit_tolerance, dict(opts.free_groups))
+    parent = predict_atoms(atoms, opts, source=source, free_cache=cache)
+    cell = analyse_cell(atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers,
+                        tolerance=opts.tolerance, scan=False)
+    factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
+    g = factor.oriented.group
+    by_std = {int(s): k for k, s in enumerate(factor.index)}
+    cand_opts = Options(tolerance=1e-3, unit_tolerance=opts.unit_tolerance, free_groups=opts.free_groups,
+                        formulas=opts.formulas, cutoffs=opts.cutoffs, bond_scale=opts.bond_scale,
+                        ionic_metals=opts.ionic_metals)
+    found: dict[tuple, Candidate] = {}
+    parent_ops = [(np.rint(w).astype(np.int64), t) for w, t in zip(cell.frac_rotations, cell.frac_translations,
+                                                                   strict=True)]
+    lattices = {m: sublattices(m) for m in range(1, max_index + 1)}
+    for members in subgroup_classes(g.name):
+        i = g.order // len(members)
+        if i > max_index:
+            continue
+        cell_ops = [by_std[s] for s in sorted(members)]
+        w_frac = np.rint(cell.frac_rotations[cell_ops]).astype(int)
+        gens_std = _generators(g.table, members)
+        gens = [(np.rint(cell.frac_rotations[by_std[s]]).astype(int), cell.frac_translations[by_std[s]])
+                for s in gens_std]
+        for mult in range(1, max_index // i + 1):
+            if i == 1 and mult == 1:
+                continue
+            for m in lattices[mult]:
+                if not _keeps(m, w_frac):
+                    continue
+                a, c, f = int(m[0, 0]), int(m[1, 1]), int(m[2, 2])
+                cosets = [np.array(u, dtype=float) for u in itertools.product(range(a), range(c), range(f))]
+                for choice in itertools.product(range(len(cosets)), repeat=len(gens)):
+                    trial = [(w, t + cosets[k]) for (w, t), k in zip(gens, choice, strict=True)]
+                    ops = _close_ops(trial, m, len(members))
+                    if ops is None or len(ops) != len(members):
+                        continue
+                    key = _canonical(m, ops, parent_ops)
+                    if key not in found:
+                        found[key] = _candidate(cell, m, ops, mult, i, cand_opts, cache, source, seed)
+    merged: dict[tuple, list[Candidate]] = {}
+    for c in found.values():
+        sig = (c.space_group[0], c.index, tuple(sorted((u.formula, u.site_group, u.wyckoff, u.count)
+                                                      for u in c.prediction.units)),
+               tuple((b.unit, b.band, b.text()) for b in c.bands()))
+        merged.setdefault(sig, []).append(c)
+    cands = [replace(group[0], variants=len(group)) for group in merged.values()]
+    if observed:
+        scored = []
+        for c in cands:
+            s, reasons = _score(c.bands(), observed)
+            scored.append(replace(c, score=s, reasons=reasons))
+        cands = sorted(scored, key=lambda c: (c.score, c.index, -c.space_group[0]))
+    else:
+        cands.sort(key=lambda c: (c.index, -c.space_group[0]))
+    return Lowering(parent, max_index, tuple(cands), tuple(observed))
+
+
+def _candidate(cell: CellSymmetry, m: np.ndarray, ops, mult: int, point_index: int, opts: Options,
+               cache: FreeUnitCache, source: str, seed: int) -> Candidate:
+    atoms = _realise(cell, m, ops, seed)
+    pred = predict_atoms(atoms, opts, source=f"{source} (candidate)", free_cache=cache, scan=False)
+    kind = "t" if mult == 1 else ("k" if point_index == 1 else "t+k")
+    sg = pred.space_group
+    return Candidate(kind, point_index * mult, pred.factor_group, mult,
+                     tuple(tuple(int(x) for x in r) for r in m), (sg.number, sg.symbol), pred)
+
+
+def observed_from_mapping(counts: Mapping[str, Mapping[str, int]]) -> tuple[tuple[str, str, int], ...]:
+    """``{"T1u": {"ir": 3}}`` -> ``(("T1u", "ir", 3),)``."""
+    return tuple((band, tech, int(n)) for band, d in counts.items() for tech, n in d.items())

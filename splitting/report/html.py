@@ -1,0 +1,304 @@
+"""A self-contained HTML report of one or more predictions.
+
+The page holds everything (style inline, figures as inline SVG; no scripts, no network):
+for every phase the space group, factor group and the axis convention of the species labels,
+the units and their sites, the correlation table and diagram of every molecular unit, the
+factor-group species with their activity, the totals and the warnings.  With several phases
+a line pattern shows each band of the units they share, phase by phase.  Each phase starts
+on a new page when printed.
+"""
+
+from __future__ import annotations
+
+import os
+import re
+from collections.abc import Mapping, Sequence
+from datetime import date
+from html import escape
+from importlib import resources
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from .._io import atomic_write_text
+from ..errors import InputError
+from ..plot.mulliken import formula_html, hermann_mauguin_html, schoenflies_html
+from ..plot.mulliken import html as species_html
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..crystal.results import CrystalPrediction, UnitOrbit
+    from ..groups import Representation
+    from ..spectra.catalogue import ModeTable
+
+__all__ = ["html_report", "write_report"]
+
+_MARK_IR = '<span class="mark ir" role="img" aria-label="IR active" title="IR active"></span>'
+_MARK_RAMAN = '<span class="mark raman" role="img" aria-label="Raman active" title="Raman active"></span>'
+
+
+def _css() -> str:
+    return resources.files("splitting.report").joinpath("report.css").read_text(encoding="utf-8")
+
+
+def _version() -> str:
+    from importlib.metadata import PackageNotFoundError, version
+
+    try:
+        return version("splitting")
+    except PackageNotFoundError:  # pragma: no cover - running from a source tree without install
+        return "unknown"
+
+
+def _rep_html(rep: Representation) -> str:
+    parts = [(str(n) if n > 1 else "") + species_html(lab) for lab, n in rep]
+    return " + ".join(parts) if parts else "0"
+
+
+def _axes_html(axes: Mapping[str, str]) -> str:
+    return ", ".join(f'<span class="nowrap"><i>{k}</i> &#8741; {escape(axes[k])}</span>'
+                     for k in ("x", "y", "z") if k in axes)
+
+
+def _point_group_hm(symbol: str) -> str:
+    """Hermann-Mauguin point-group symbol, upright, with bars: ``m-3`` -> m3&#773;."""
+    return re.sub(r"-(\d)", r'<span class="bar">\1</span>', escape(symbol))
+
+
+def _table(headers: Sequence[str], rows: Sequence[Sequence[str]], *, numeric: Sequence[int] = (),
+           caption: str | None = None) -> str:
+    """HTML table; cells are already HTML."""
+    head = "".join(f'<th scope="col"{" class=num" if i in numeric else ""}>{h}</th>' for i, h in enumerate(headers))
+    body = []
+    for r in rows:
+        cells = "".join(f'<td{" class=num" if i in numeric else ""}>{c}</td>' for i, c in enumerate(r))
+        body.append(f"<tr>{cells}</tr>")
+    cap = f"<caption>{caption}</caption>" if caption else ""
+    return (f'<div class="table-wrap"><table>{cap}<thead><tr>{head}</tr></thead>'
+            f"<tbody>{''.join(body)}</tbody></table></div>")
+
+
+class _Figures:
+    """Numbers the inline SVG figures so their ids never clash."""
+
+    def __init__(self) -> None:
+        self.count = 0
+
+    def svg(self, fig) -> str:
+        from ..plot.lines import figure_svg
+
+        self.count += 1
+        return figure_svg(fig, prefix=f"fig{self.count}-")
+
+
+def _facts(pred: CrystalPrediction) -> str:
+    sg = pred.space_group
+    centro = "centrosymmetric" if pred.centrosymmetric else "non-centrosymmetric"
+    items = [
+        ("structure", escape(pred.source)),
+        ("cell", f"{formula_html(pred.formula)} (primitive cell, {pred.atoms_primitive} atoms; "
+                 f"{pred.atoms_input} as given)"),
+        ("space group", f"{hermann_mauguin_html(sg.symbol)} (No. {sg.number}, {schoenflies_html(sg.schoenflies)}), "
+                        f"{escape(sg.crystal_system)}; distance tolerance {sg.tolerance:g} &#197;"),
+        ("factor group", f"{schoenflies_html(pred.factor_group)} ({_point_group_hm(sg.point_group)}), {centro}"),
+        ("axes of the labels", f"{_axes_html(pred.factor_axes)} "
+                               "<span class=muted>(species, dipole and polarisability components refer to these "
+                               "crystal directions)</span>"),
+    ]
+    if sg.other_tolerances:
+        tried = "; ".join(f"{t:g} &#197; &rarr; {hermann_mauguin_html(sym)} (No. {n})"
+                          for t, n, sym in sg.other_tolerances)
+        items.append(("other tolerances", tried))
+    rows = "".join(f"<dt>{k}</dt><dd>{v}</dd>" for k, v in items)
+    return f'<dl class="facts">{rows}</dl>'
+
+
+def _units(pred: CrystalPrediction) -> str:
+    rows = []
+    for u in pred.units:
+        rows.append([
+            formula_html(u.formula), escape(u.kind), schoenflies_html(u.free_group) if u.free_group else "&ndash;",
+            escape(u.wyckoff), escape(u.site_symmetry), schoenflies_html(u.site_group), str(u.count),
+            f"{u.max_deviation:.3f}" if u.free_group else "&ndash;", _axes_html(u.site_axes),
+        ])
+    return _table(["unit", "kind", "free group", "Wyckoff", "site symmetry", "site group", "Z (primitive)",
+                   "deviation / &#197;", "site axes"], rows, numeric=(6, 7),
+                  caption="Units: Z is the number in the primitive cell; deviation is the largest displacement "
+                          "of an atom from the ideal free-unit geometry.")
+
+
+def _correlation(pred: CrystalPrediction, u: UnitOrbit, figures: _Figures) -> str:
+    from ..plot.correlation import correlation_diagram
+
+    rows = [[species_html(c.free), str(c.free_dimension), str(c.modes), _rep_html(c.site), _rep_html(c.factor)]
+            for c in u.correlation]
+    table = _table([f"free ({schoenflies_html(u.free_group or 'C1')})", "dim", "fundamentals",
+                    f"site {escape(u.wyckoff)} ({schoenflies_html(u.site_group)})",
+                    f"factor group ({schoenflies_html(pred.factor_group)})"], rows, numeric=(1, 2),
+                   caption="Site and factor-group components of one fundamental of each free species "
+                           "(all units of the orbit together in the factor group).")
+    art = correlation_diagram(pred, u)
+    svg = figures.svg(art.figure)
+    caption = (f"Correlation diagram of {formula_html(u.formula)}: free group {schoenflies_html(u.free_group)} "
+               f"&rarr; site group {schoenflies_html(u.site_group)} (Wyckoff {escape(u.wyckoff)}) &rarr; factor "
+               f"group {schoenflies_html(pred.factor_group)}. {_MARK_IR} IR active, {_MARK_RAMAN} Raman active; "
+               "small grey numbers give the degeneracy, numbers on lines the multiplicity.")
+    lattice = (f"<p>Lattice modes from {formula_html(u.formula)}: translations {_rep_html(u.translations)}; "
+               f"librations {_rep_html(u.librations)}.</p>")
+    sa = _axes_html(u.site_axes)
+    axes = f"<p class=muted>Site-group labels use {sa}.</p>" if sa else ""
+    return (f"<h3>Correlation: {formula_html(u.formula)}</h3>{axes}{table}"
+            f'<figure class="diagram">{svg}<figcaption>{caption}</figcaption></figure>{lattice}')
+
+
+def _species(pred: CrystalPrediction) -> str:
+    rows = []
+    for s in pred.species:
+        marks = (_MARK_IR if s.ir else "") + (_MARK_RAMAN if s.raman else "")
+        activity = escape(s.activity) + (" (polar)" if s.polar else "")
+        rows.append([species_html(s.label), str(s.dimension), str(s.internal), str(s.translational),
+                     str(s.librational), str(s.acoustic), str(s.optical), f"{marks} {activity}",
+                     escape(", ".join(s.ir)) or "&ndash;", escape(", ".join(s.raman)) or "&ndash;"])
+    table = _table(["species", "dim", "internal", "transl.", "librat.", "acoustic", "optical", "activity",
+                    "IR", "Raman"], rows, numeric=(1, 2, 3, 4, 5, 6),
+                   caption="Factor-group species at k = 0; counts are distinct frequencies (optical = internal "
+                           "+ translational + librational; acoustic modes are not optical).")
+    t = pred.totals()
+    lines = [
+        f"&Gamma;<sub>3N</sub> = {_rep_html(pred.gamma_3n)} (whole-cell count, checked against the sum over units); "
+        f"acoustic: {_rep_html(pred.acoustic)}.",
+        f"<strong>{t['optical']}</strong> optical frequencies: <strong>{t['ir']}</strong> IR-active, "
+        f"<strong>{t['raman']}</strong> Raman-active, <strong>{t['silent']}</strong> silent"
+        + (f", {t['polar']} polar (split into LO and TO)" if t["polar"] else "") + ".",
+    ]
+    if pred.centrosymmetric:
+        lines.append("Centrosymmetric factor group: no frequency is both IR and Raman active (mutual exclusion).")
+    lines.append("Inelastic neutron scattering: every mode is allowed.")
+    summary = "".join(f"<p>{x}</p>" for x in lines)
+    return f'<h3>Factor-group species</h3>{table}<div class="summary">{summary}</div>'
+
+
+def _phase(index: int, label: str, pred: CrystalPrediction, figures: _Figures) -> str:
+    out = [f'<section class="phase" id="phase-{index}">',
+           f"<h2>{escape(label)}</h2>", _facts(pred)]
+    for w in pred.warnings:
+        out.append(f'<div class="warning" role="note"><strong>Warning.</strong>{escape(w)}</div>')
+    if pred.space_group.tolerance_sensitive:
+        out.append('<div class="warning" role="note"><strong>Warning.</strong>another distance tolerance gives '
+                   "another space group; check the structure.</div>")
+    out.append("<h3>Units and sites</h3>")
+    out.append(_units(pred))
+    for u in pred.units:
+        if u.correlation:
+            out.append(_correlation(pred, u, figures))
+    out.append(_species(pred))
+    out.append("</section>")
+    return "\n".join(out)
+
+
+def _across(predictions: Sequence[tuple[str, CrystalPrediction]], modes: Mapping[str, ModeTable],
+            figures: _Figures) -> str:
+    from ..plot.lines import line_pattern
+
+    shared = None
+    for _, pred in predictions:
+        formulas = {u.formula for u in pred.units if u.correlation}
+        shared = formulas if shared is None else shared & formulas
+    out = []
+    for formula in sorted(shared or ()):
+        groups = {next(u for u in p.units if u.formula == formula and u.correlation).free_group
+                  for _, p in predictions}
+        if len(groups) != 1:
+            continue
+        art = line_pattern(predictions, formula, modes=modes.get(formula))
+        caption = (f"Bands of {formula_html(formula)} across the phases: each stick is one distinct frequency of "
+                   "the factor group (length grows with the degeneracy); "
+                   f"{_MARK_IR} IR active, {_MARK_RAMAN} Raman active. No frequencies are predicted: the order "
+                   "of the sticks within a cluster is arbitrary.")
+        out.append(f"<h3>{formula_html(formula)}</h3><figure class=pattern>{figures.svg(art.figure)}"
+                   f"<figcaption>{caption}</figcaption></figure>")
+    if not out:
+        return ""
+    return ('<section class="phase" id="across"><h2>Across the phases</h2>' + "\n".join(out) + "</section>")
+
+
+def html_report(predictions: Sequence[tuple[str, CrystalPrediction]], *, title: str | None = None,
+                notes: Sequence[str] = (), modes: Mapping[str, ModeTable] | None = None) -> str:
+    """The whole report as one self-contained HTML document.
+
+    Parameters
+    ----------
+    predictions : sequence of (str, CrystalPrediction)
+        Phase label and prediction, in the order to show.
+    title : str, optional
+        Page title (default: the phase labels).
+    notes : sequence of str
+        Free text shown under the title (plain text; escaped).
+    modes : mapping of str to ModeTable, optional
+        Free-unit mode tables by unit formula; with one, the line pattern across phases
+        uses its wavenumbers (cm-1).
+
+    Returns
+    -------
+    str
+
+    Raises
+    ------
+    InputError
+        If ``predictions`` is empty.
+    """
+    if not predictions:
+        raise InputError("the report needs at least one prediction")
+    figures = _Figures()
+    heading = title or "Band splitting in the crystal: " + ", ".join(lab for lab, _ in predictions)
+    toc = "".join(f'<li><a href="#phase-{k}">{escape(lab)}</a></li>' for k, (lab, _) in enumerate(predictions, 1))
+    phases = [_phase(k, lab, pred, figures) for k, (lab, pred) in enumerate(predictions, 1)]
+    across = _across(predictions, modes or {}, figures) if len(predictions) > 1 else ""
+    if across:
+        toc += '<li><a href="#across">Across the phases</a></li>'
+    note_html = ("<ul class=notes>" + "".join(f"<li>{escape(n)}</li>" for n in notes) + "</ul>") if notes else ""
+    legend = (f'<p class="legend">{_MARK_IR} IR active &nbsp; {_MARK_RAMAN} Raman active. Species labels follow '
+              "Mulliken's conventions in the axes stated for each phase; counts are at the centre of the "
+              "Brillouin zone (k = 0).</p>")
+    return "\n".join([
+        "<!DOCTYPE html>",
+        '<html lang="en">',
+        "<head>",
+        '<meta charset="utf-8">',
+        '<meta name="viewport" content="width=device-width, initial-scale=1">',
+        '<meta name="generator" content="splitting">',
+        f"<title>{escape(heading)}</title>",
+        f"<style>\n{_css()}</style>",
+        "</head>",
+        "<body>",
+        f"<header><h1>{escape(heading)}</h1>",
+        f'<p class="meta">Predicted with splitting {escape(_version())} on {date.today().isoformat()}; '
+        f"{len(predictions)} phase{'s' if len(predictions) != 1 else ''}.</p>",
+        note_html,
+        legend,
+        f'<nav class="contents" aria-label="Contents"><h2>Contents</h2><ol>{toc}</ol></nav>',
+        "</header>",
+        "<main>",
+        *phases,
+        across,
+        "</main>",
+        "<footer>Self-contained report: styles and figures are inline; no scripts and no network access "
+        "are needed.</footer>",
+        "</body>",
+        "</html>",
+        "",
+    ])
+
+
+def write_report(path: str | os.PathLike[str], predictions: Sequence[tuple[str, CrystalPrediction]], *,
+                 title: str | None = None, notes: Sequence[str] = (),
+                 modes: Mapping[str, ModeTable] | None = None) -> Path:
+    """Write :func:`html_report` to ``path`` atomically (the suffix should be ``.html``).
+
+    Raises
+    ------
+    InputError
+        If the suffix is not ``.html``/``.htm`` or the folder does not exist.
+    """
+    target = Path(path)
+    if target.suffix.lower() not in (".html", ".htm"):
+        raise InputError(f"{target}: the report is HTML; give a file name ending in .html")
+    return atomic_write_text(target, html_report(predictions, title=title, notes=notes, modes=modes))

@@ -1,0 +1,1072 @@
+"""Explain a measured spectrum: which predicted mode can each observed line be?
+
+:func:`explain` takes a crystal prediction, a peak list and the free-unit mode table(s)
+and gives, for every measured line, a ranked list of candidate explanations, each with a
+short reason; lines with no candidate are reported as unexplained. It also counts the
+observed lines band by band and compares them with the numbers of components predicted
+for the given crystal and for any alternative predictions (candidate phases).
+
+Candidates
+----------
+For a line at ``x`` (cm-1) and a free fundamental at ``nu0`` with ``d = |x - nu0|``,
+within the tolerance ``tol`` (default :data:`DEFAULT_TOLERANCE_CM1`, the largest
+solid-state shift of an internal mode from its free value that is considered):
+
+``fundamental``
+    the band has factor-group components active in the technique, and the free mode is
+    active too: the line is one of those components.
+``site_activated``
+    the free mode is inactive in the technique, but the lower symmetry of the site makes
+    factor-group components active.
+``disorder_activated``
+    no factor-group component is active, but a site-group component is active under the
+    site group's own rules: the line needs loss of translational order (orientational
+    disorder, defects), where the site-group picture applies.
+``lattice``
+    ``x`` is below ``lattice_max_cm1`` (default :data:`LATTICE_MAX_CM1` = 250 cm-1, where
+    the translational and librational modes of molecular crystals usually lie; common
+    practice) and the prediction has lattice modes active in the technique. No position
+    is predicted for lattice modes, so the score does not depend on ``x``.
+``overtone`` / ``combination``
+    ``2 nu_i`` or ``nu_i + nu_j`` of the unit's fundamentals
+    (:mod:`splitting.spectra.combinations`), allowed in the technique in the crystal's
+    factor group, within ``tol`` of the harmonic sum.
+``isotopologue``
+    a weaker line below a stronger line ``y`` that is a component of a band, at
+    ``y + shift`` within ``max(1 cm-1, |shift| / 2)``, for an isotopomer that makes up at
+    least :data:`MIN_ISOTOPOMER_SHARE` of the units. The shift is the mode table's
+    ``isotope_shift`` for that isotope if given, otherwise the symmetry-only estimate of
+    :mod:`splitting.spectra.isotopologues` times ``y``.
+``second_phase``
+    an alternative prediction (``alternatives``) has more active components in this band
+    than the given one, so the line could come from that phase.
+
+Scoring (transparent and deterministic)
+---------------------------------------
+``score = prior(kind) * (1 - 0.5 * d / tol)`` with the priors in :data:`PRIORS`
+(fundamental 1.0, lattice 0.7, site-activated 0.6, second phase 0.5, isotopologue 0.45,
+disorder-activated 0.35, overtone and combination 0.3), so a candidate inside its window
+keeps between half and all of its prior. For isotopologues ``d`` and ``tol`` are the
+deviation from ``y + shift`` and the satellite window; lattice candidates take the
+prior. One extra rule: a band cannot show more lines than it has predicted components.
+If more lines fall in its window than the prediction allows, the strongest keep the
+``fundamental`` (or ``site_activated``) score and the weaker surplus lines have it
+multiplied by :data:`SURPLUS_FACTOR` (0.4), which lets satellites, combinations or
+activated modes win there. Candidates are ranked by score, then by the order of
+:data:`PRIORS`, then by name; at most :data:`MAX_CANDIDATES` are kept per line.
+
+Band counts
+-----------
+:func:`count_components` assigns each line to the nearest free fundamental within the
+window and counts lines per band; :func:`compare_counts` sets these counts against the
+number of factor-group components active in the technique (and, for a disordered phase,
+against the site-group count). The total absolute difference ranks candidate phases.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from ..errors import DataError, InputError
+from .catalogue import FreeMode, ModeTable, bundled_tables, formula_counts, load_mode_table
+from .measured import Peak, PeakList, normalise_technique
+
+__all__ = [
+    "DEFAULT_TOLERANCE_CM1",
+    "LATTICE_MAX_CM1",
+    "MAX_CANDIDATES",
+    "MIN_ISOTOPOMER_SHARE",
+    "PRIORS",
+    "SURPLUS_FACTOR",
+    "BandCount",
+    "Candidate",
+    "Explanation",
+    "LineExplanation",
+    "PhaseComparison",
+    "compare_counts",
+    "count_components",
+    "explain",
+    "explain_files",
+    "explanation_text",
+    "find_unit_table",
+]
+
+#: Largest distance (cm-1) of a line from a free fundamental (or a harmonic sum) that is
+#: still read as belonging to it: solid-state shifts of internal modes from gas or
+#: solution values reach a few tens of cm-1 (common practice).
+DEFAULT_TOLERANCE_CM1 = 40.0
+#: Lines below this (cm-1) may be lattice modes (translations, librations) (common practice).
+LATTICE_MAX_CM1 = 250.0
+#: Prior weight of each kind of explanation; the order also breaks ties.
+PRIORS: dict[str, float] = {
+    "fundamental": 1.0,
+    "lattice": 0.7,
+    "site_activated": 0.6,
+    "second_phase": 0.5,
+    "isotopologue": 0.45,
+    "disorder_activated": 0.35,
+    "overtone": 0.3,
+    "combination": 0.3,
+}
+#: Factor on the fundamental score of lines beyond the predicted number of components.
+SURPLUS_FACTOR = 0.4
+#: Smallest share of all units an isotopomer must have to explain a satellite line.
+MIN_ISOTOPOMER_SHARE = 1e-3
+#: Isotope shifts smaller than this (cm-1) are not resolved from the parent line.
+MIN_ISOTOPE_SHIFT_CM1 = 0.2
+#: Most candidates kept per line.
+MAX_CANDIDATES = 6
+
+_KIND_ORDER = {kind: i for i, kind in enumerate(PRIORS)}
+
+
+# --------------------------------------------------------------------------- results
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """One possible explanation of a measured line.
+
+    Attributes
+    ----------
+    kind : str
+        One of the keys of :data:`PRIORS`.
+    unit : str
+        Formula of the unit (empty for lattice modes).
+    band : str
+        Mode name (``"nu3"``), combination name (``"nu1 + nu4"``), ``"lattice"``.
+    species : tuple of str
+        Crystal (factor-group, or site-group for ``disorder_activated``) species of the
+        components that can give the line.
+    predicted_cm1 : float or None
+        Reference position, cm-1: free wavenumber, harmonic sum, or expected satellite
+        position; ``None`` for lattice modes.
+    score : float
+        Between 0 and 1 (module docstring).
+    reason : str
+        One-line explanation.
+    phase : str
+        Source of the prediction the candidate comes from.
+    """
+
+    kind: str
+    unit: str
+    band: str
+    species: tuple[str, ...]
+    predicted_cm1: float | None
+    score: float
+    reason: str
+    phase: str
+
+    @property
+    def label(self) -> str:
+        """Short text, e.g. ``"CO3 nu3 (fundamental)"``."""
+        head = f"{self.unit} {self.band}".strip()
+        return f"{head} ({self.kind.replace('_', ' ')})"
+
+    def to_dict(self) -> dict[str, Any]:
+        """Plain, JSON-ready dictionary of the fields."""
+        return {
+            "kind": self.kind,
+            "unit": self.unit,
+            "band": self.band,
+            "species": list(self.species),
+            "predicted_cm1": self.predicted_cm1,
+            "score": self.score,
+            "reason": self.reason,
+            "phase": self.phase,
+            "label": self.label,
+        }
+
+
+@dataclass(frozen=True)
+class LineExplanation:
+    """A measured line with its ranked candidates (best first; empty if unexplained)."""
+
+    peak: Peak
+    candidates: tuple[Candidate, ...]
+
+    @property
+    def explained(self) -> bool:
+        """True when at least one candidate was found."""
+        return bool(self.candidates)
+
+    @property
+    def label(self) -> str:
+        """Label of the best candidate, or ``"unexplained"``."""
+        return self.candidates[0].label if self.candidates else "unexplained"
+
+    def to_dict(self) -> dict[str, Any]:
+        """Plain, JSON-ready dictionary of the fields."""
+        return {
+            "peak": self.peak.to_dict(),
+            "explained": self.explained,
+            "best": self.label,
+            "candidates": [c.to_dict() for c in self.candidates],
+        }
+
+
+@dataclass(frozen=True)
+class BandCount:
+    """Observed and predicted numbers of lines of one free band.
+
+    Attributes
+    ----------
+    band : str
+        Mode name.
+    species : str
+        Free-unit species.
+    free_cm1 : float
+        Free wavenumber, cm-1.
+    observed : int
+        Lines counted in the band's window (:func:`count_components`).
+    predicted : int
+        Factor-group components active in the technique (distinct frequencies).
+    predicted_site : int
+        Site-group components active under the site group's rules (what a phase with
+        orientational disorder would show).
+    """
+
+    band: str
+    species: str
+    free_cm1: float
+    observed: int
+    predicted: int
+    predicted_site: int
+
+    def to_dict(self) -> dict[str, Any]:
+        """Plain, JSON-ready dictionary of the fields."""
+        return {
+            "band": self.band,
+            "species": self.species,
+            "free_cm1": self.free_cm1,
+            "observed": self.observed,
+            "predicted": self.predicted,
+            "predicted_site": self.predicted_site,
+        }
+
+
+@dataclass(frozen=True)
+class PhaseComparison:
+    """Band-by-band counts of one prediction against the measured lines.
+
+    Attributes
+    ----------
+    phase : str
+        Source of the prediction.
+    factor_group, site_group : str
+        Groups of the crystal and of the unit's site.
+    unit : str
+        Unit formula.
+    bands : tuple of BandCount
+    """
+
+    phase: str
+    factor_group: str
+    site_group: str
+    unit: str
+    bands: tuple[BandCount, ...]
+
+    @property
+    def mismatch(self) -> int:
+        """Sum over bands of ``|observed - predicted|`` (0 is a perfect count)."""
+        return sum(abs(b.observed - b.predicted) for b in self.bands)
+
+    @property
+    def site_mismatch(self) -> int:
+        """As :attr:`mismatch`, against the site-group counts (disordered reading)."""
+        return sum(abs(b.observed - b.predicted_site) for b in self.bands)
+
+    def to_dict(self) -> dict[str, Any]:
+        """Plain, JSON-ready dictionary of the fields."""
+        return {
+            "phase": self.phase,
+            "factor_group": self.factor_group,
+            "site_group": self.site_group,
+            "unit": self.unit,
+            "bands": [b.to_dict() for b in self.bands],
+            "mismatch": self.mismatch,
+            "site_mismatch": self.site_mismatch,
+        }
+
+
+@dataclass(frozen=True)
+class Explanation:
+    """Assignment of a measured spectrum against a crystal prediction.
+
+    Attributes
+    ----------
+    phase : str
+        Source of the prediction (structure file).
+    peaks_source : str or None
+        Where the lines came from.
+    technique : {"ir", "raman"} or None
+        Technique used for the selection rules (``None``: either).
+    tolerance_cm1, lattice_max_cm1 : float
+        Settings used, cm-1.
+    units : tuple of str
+        ``"formula: table name (point group)"`` for every unit with a mode table.
+    lines : tuple of LineExplanation
+        Every measured line, ascending.
+    comparisons : tuple of PhaseComparison
+        Band counts for the given prediction first, then for each alternative.
+    lattice_predicted : int
+        Lattice (translational + librational) frequencies active in the technique.
+    notes : tuple of str
+        Remarks (units without a mode table, ...).
+    """
+
+    phase: str
+    peaks_source: str | None
+    technique: str | None
+    tolerance_cm1: float
+    lattice_max_cm1: float
+    units: tuple[str, ...]
+    lines: tuple[LineExplanation, ...]
+    comparisons: tuple[PhaseComparison, ...]
+    lattice_predicted: int
+    notes: tuple[str, ...]
+
+    @property
+    def unexplained(self) -> tuple[Peak, ...]:
+        """Lines with no candidate."""
+        return tuple(line.peak for line in self.lines if not line.explained)
+
+    def to_dict(self) -> dict[str, Any]:
+        """Plain, JSON-ready dictionary of the fields."""
+        return {
+            "phase": self.phase,
+            "peaks_source": self.peaks_source,
+            "technique": self.technique,
+            "tolerance_cm1": self.tolerance_cm1,
+            "lattice_max_cm1": self.lattice_max_cm1,
+            "scoring": {
+                "priors": dict(PRIORS),
+                "surplus_factor": SURPLUS_FACTOR,
+                "rule": "prior * (1 - 0.5 * distance / window)",
+            },
+            "units": list(self.units),
+            "lines": [line.to_dict() for line in self.lines],
+            "unexplained_cm1": [p.position_cm1 for p in self.unexplained],
+            "comparisons": [c.to_dict() for c in self.comparisons],
+            "lattice_predicted": self.lattice_predicted,
+            "notes": list(self.notes),
+        }
+
+
+# --------------------------------------------------------------------------- helpers
+
+
+def _active(ir: bool, raman: bool, technique: str | None) -> bool:
+    if technique == "ir":
+        return ir
+    if technique == "raman":
+        return raman
+    return ir or raman
+
+
+def _technique_word(technique: str | None) -> str:
+    return {"ir": "IR", "raman": "Raman"}.get(technique or "", "IR- or Raman")
+
+
+def find_unit_table(formula: str) -> ModeTable:
+    """The bundled mode table whose formula has the same element counts as ``formula``.
+
+    ``"H4N"`` (as a crystal prediction writes the ammonium ion) finds the ``NH4`` table.
+
+    Raises
+    ------
+    DataError
+        If no bundled table, or more than one, matches.
+
+    Examples
+    --------
+    >>> find_unit_table("H4N").name
+    'ammonium'
+    """
+    wanted = formula_counts(formula)
+    matches = [t for t in bundled_tables().values() if formula_counts(t.formula) == wanted]
+    if len(matches) != 1:
+        what = "no bundled mode table" if not matches else "several bundled mode tables"
+        raise DataError(f"{what} for unit {formula}; pass a mode table (modes=...)")
+    return matches[0]
+
+
+@dataclass(frozen=True)
+class _Band:
+    mode: FreeMode
+    free_active: bool
+    factor_labels: tuple[str, ...]
+    factor_count: int
+    site_labels: tuple[str, ...]
+    site_count: int
+
+
+@dataclass(frozen=True)
+class _UnitBands:
+    orbit: Any  # UnitOrbit
+    table: ModeTable
+    bands: tuple[_Band, ...]
+
+
+def _unit_bands(prediction: Any, orbit: Any, table: ModeTable, technique: str | None) -> _UnitBands:
+    from ..activity import activity_table
+
+    if orbit.free_group != table.point_group:
+        raise InputError(
+            f"mode table {table.name!r} is for point group {table.point_group}, but unit {orbit.formula} "
+            f"of {prediction.source} has free group {orbit.free_group}"
+        )
+    free_rules = {a.label: a for a in activity_table(table.point_group)}
+    site_rules = {a.label: a for a in activity_table(orbit.site_group)}
+    corr = {c.free: c for c in orbit.correlation}
+    bands = []
+    for mode in table.modes:
+        if mode.species not in corr:
+            raise InputError(
+                f"mode table {table.name!r}: species {mode.species} of {mode.name} is not a vibrational "
+                f"species of unit {orbit.formula} in {prediction.source}"
+            )
+        c = corr[mode.species]
+        rule = free_rules[mode.species]
+        ir = rule.ir_active if mode.ir is None else mode.ir
+        raman = rule.raman_active if mode.raman is None else mode.raman
+        fl, fc, sl, sc = [], 0, [], 0
+        for lab, n in c.factor:
+            s = prediction.species_by_label(lab)
+            if _active(bool(s.ir), bool(s.raman), technique):
+                fl.append(lab)
+                fc += n
+        for lab, n in c.site:
+            a = site_rules[lab]
+            if _active(a.ir_active, a.raman_active, technique):
+                sl.append(lab)
+                sc += n
+        bands.append(_Band(mode, _active(ir, raman, technique), tuple(fl), fc, tuple(sl), sc))
+    return _UnitBands(orbit, table, tuple(bands))
+
+
+def _resolve(
+    prediction: Any, modes: ModeTable | str | os.PathLike[str] | None, unit: str | None, technique: str | None
+) -> tuple[list[_UnitBands], list[str]]:
+    notes: list[str] = []
+    molecules = [u for u in prediction.units if u.kind == "molecule"]
+    if isinstance(modes, (str, os.PathLike)):
+        modes = load_mode_table(modes)
+    if unit is not None:
+        try:
+            wanted = formula_counts(unit)
+        except InputError as exc:
+            raise InputError(f"unit: {exc}") from None
+        chosen = [u for u in molecules if formula_counts(u.formula) == wanted]
+        if not chosen:
+            names = ", ".join(u.formula for u in molecules) or "none"
+            raise InputError(f"unit {unit!r} is not a molecular unit of {prediction.source} (units: {names})")
+        molecules = chosen[:1]
+    out: list[_UnitBands] = []
+    if modes is not None:
+        wanted = formula_counts(modes.formula)
+        chosen = [u for u in molecules if formula_counts(u.formula) == wanted]
+        if not chosen:
+            names = ", ".join(u.formula for u in molecules) or "none"
+            raise InputError(
+                f"mode table {modes.name!r} ({modes.formula}) matches no molecular unit of "
+                f"{prediction.source} (units: {names})"
+            )
+        out.append(_unit_bands(prediction, chosen[0], modes, technique))
+        return out, notes
+    for orbit in molecules:
+        try:
+            table = find_unit_table(orbit.formula)
+        except DataError as exc:
+            notes.append(str(exc))
+            continue
+        if table.point_group != orbit.free_group:
+            notes.append(
+                f"bundled table {table.name!r} is for {table.point_group}, unit {orbit.formula} "
+                f"is {orbit.free_group} here; pass a matching mode table"
+            )
+            continue
+        out.append(_unit_bands(prediction, orbit, table, technique))
+    return out, notes
+
+
+def _peaks(peaks: Any) -> PeakList:
+    if isinstance(peaks, PeakList):
+        return peaks
+    raise InputError(
+        f"peaks must be a PeakList (see splitting.spectra.measured.read_peaks), got {type(peaks).__name__}"
+    )
+
+
+def _positions(peaks: PeakList | Sequence[Peak] | Sequence[float]) -> list[float]:
+    out = []
+    for p in peaks:
+        out.append(float(p.position_cm1) if isinstance(p, Peak) else float(p))
+    return out
+
+
+# --------------------------------------------------------------------------- counting
+
+
+def count_components(
+    peaks: PeakList | Sequence[Peak] | Sequence[float],
+    modes: ModeTable | Sequence[FreeMode],
+    window_cm1: float = DEFAULT_TOLERANCE_CM1,
+) -> dict[str, int]:
+    """Number of observed lines per free band.
+
+    Each line goes to the nearest free fundamental (first in table order on a tie) if
+    it lies within ``window_cm1`` of it; lines outside every window are not counted.
+
+    Parameters
+    ----------
+    peaks : PeakList, sequence of Peak, or sequence of float
+        Line positions, cm-1.
+    modes : ModeTable or sequence of FreeMode
+        The free fundamentals.
+    window_cm1 : float
+        Half width of a band's window, cm-1 (> 0).
+
+    Returns
+    -------
+    dict of str to int
+        Mode name to number of lines, for every mode (zeros included), in table order.
+
+    Examples
+    --------
+    >>> from splitting.spectra.catalogue import find_table
+    >>> count_components([1085.0, 1090.0, 712.0, 300.0], find_table("CO3"), 40.0)
+    {'nu1': 2, 'nu2': 0, 'nu3': 0, 'nu4': 1}
+    """
+    if not (isinstance(window_cm1, (int, float)) and window_cm1 > 0 and math.isfinite(window_cm1)):
+        raise InputError(f"window_cm1 must be a positive number of cm-1, got {window_cm1!r}")
+    mode_list = list(modes.modes if isinstance(modes, ModeTable) else modes)
+    counts = {m.name: 0 for m in mode_list}
+    for x in _positions(peaks):
+        best: FreeMode | None = None
+        for m in mode_list:
+            d = abs(x - m.wavenumber_cm1)
+            if d <= window_cm1 and (best is None or d < abs(x - best.wavenumber_cm1)):
+                best = m
+        if best is not None:
+            counts[best.name] += 1
+    return counts
+
+
+def _comparison(prediction: Any, ub: _UnitBands, observed: Mapping[str, int]) -> PhaseComparison:
+    bands = tuple(
+        BandCount(
+            b.mode.name,
+            b.mode.species,
+            b.mode.wavenumber_cm1,
+            int(observed.get(b.mode.name, 0)),
+            b.factor_count,
+            b.site_count,
+        )
+        for b in ub.bands
+    )
+    return PhaseComparison(prediction.source, prediction.factor_group, ub.orbit.site_group, ub.orbit.formula, bands)
+
+
+def compare_counts(
+    observed: Mapping[str, int],
+    prediction: Any,
+    *,
+    modes: ModeTable | str | os.PathLike[str] | None = None,
+    unit: str | None = None,
+    technique: str | None = None,
+) -> tuple[PhaseComparison, ...]:
+    """Observed line counts per band against the counts one prediction allows.
+
+    Parameters
+    ----------
+    observed : mapping of str to int
+        Output of :func:`count_components`.
+    prediction : CrystalPrediction
+        A candidate phase.
+    modes, unit
+        Mode table and unit, as in :func:`explain`.
+    technique : {"ir", "raman"} or None
+        Selection rules used (``None``: a component counts if IR or Raman active).
+
+    Returns
+    -------
+    tuple of PhaseComparison
+        One per unit with a mode table; :attr:`PhaseComparison.mismatch` ranks phases.
+    """
+    tech = normalise_technique(technique)
+    units, _ = _resolve(prediction, modes, unit, tech)
+    return tuple(_comparison(prediction, ub, observed) for ub in units)
+
+
+# --------------------------------------------------------------------------- explain
+
+
+def _closeness(d: float, window: float) -> float:
+    return 1.0 - 0.5 * d / window
+
+
+def _fundamental_candidates(x: float, ub: _UnitBands, tol: float, tech: str | None, phase: str) -> list[Candidate]:
+    out = []
+    word = _technique_word(tech)
+    for b in ub.bands:
+        m = b.mode
+        d = abs(x - m.wavenumber_cm1)
+        if d > tol:
+            continue
+        where = f"{m.name} ({m.species}, {m.wavenumber_cm1:g} cm-1 free), {x - m.wavenumber_cm1:+.1f} cm-1"
+        if b.factor_count:
+            kind = "fundamental" if b.free_active else "site_activated"
+            species = b.factor_labels
+            why = f"{where}: {b.factor_count} {word}-active factor-group component(s) {'/'.join(species)} predicted"
+            if kind == "site_activated":
+                why += f"; inactive in the free unit, made active by the {ub.orbit.site_group} site"
+        elif b.site_count:
+            kind = "disorder_activated"
+            species = b.site_labels
+            why = (
+                f"{where}: no active factor-group component; site-group component(s) "
+                f"{'/'.join(species)} of {ub.orbit.site_group} are active if translational order is lost"
+            )
+        else:
+            continue
+        out.append(
+            Candidate(
+                kind,
+                ub.orbit.formula,
+                m.name,
+                species,
+                m.wavenumber_cm1,
+                round(PRIORS[kind] * _closeness(d, tol), 4),
+                why,
+                phase,
+            )
+        )
+    return out
+
+
+def _combination_candidates(
+    x: float, ub: _UnitBands, combos: Sequence[Any], tol: float, tech: str | None, phase: str
+) -> list[Candidate]:
+    out = []
+    for c in combos:
+        d = abs(x - c.wavenumber_cm1)
+        if d > tol or not c.active(tech):
+            continue
+        rep = c.crystal_species if c.crystal_species is not None else c.species
+        why = (
+            f"{c.name}: harmonic sum {c.wavenumber_cm1:g} cm-1 ({x - c.wavenumber_cm1:+.1f}); "
+            f"symmetry {c.species} free, {rep} in {rep.group}, allowed in {_technique_word(tech)}"
+        )
+        out.append(
+            Candidate(
+                c.kind,
+                ub.orbit.formula,
+                c.name,
+                tuple(rep.labels),
+                c.wavenumber_cm1,
+                round(PRIORS[c.kind] * _closeness(d, tol), 4),
+                why,
+                phase,
+            )
+        )
+    return out
+
+
+def _isotopomer_lists(units: Sequence[_UnitBands], notes: list[str]) -> dict[str, tuple[Any, ...]]:
+    from ..errors import SplittingError
+    from .isotopologues import isotopomers
+
+    out: dict[str, tuple[Any, ...]] = {}
+    for ub in units:
+        orbit = ub.orbit
+        if not orbit.symbols or len(orbit.geometry) != len(orbit.symbols):
+            continue
+        try:
+            found = isotopomers(orbit.symbols, orbit.geometry)
+        except SplittingError as exc:
+            notes.append(f"isotopomers of {orbit.formula} not considered: {exc}")
+            continue
+        out[orbit.formula] = tuple(i for i in found if not i.parent and i.abundance >= MIN_ISOTOPOMER_SHARE)
+    return out
+
+
+def explain(
+    prediction: Any,
+    peaks: PeakList,
+    *,
+    modes: ModeTable | str | os.PathLike[str] | None = None,
+    unit: str | None = None,
+    technique: str | None = None,
+    tolerance_cm1: float = DEFAULT_TOLERANCE_CM1,
+    alternatives: Sequence[Any] = (),
+    lattice_max_cm1: float = LATTICE_MAX_CM1,
+) -> Explanation:
+    """Rank candidate explanations for every measured line (method in the module docstring).
+
+    Parameters
+    ----------
+    prediction : CrystalPrediction
+        Prediction for the crystal the spectrum was measured on.
+    peaks : PeakList
+        Measured lines (:func:`~splitting.spectra.measured.read_peaks` or
+        :func:`~splitting.spectra.peaks.find_peaks`).
+    modes : ModeTable, path or None
+        Free-unit fundamentals; ``None``: the bundled table of every molecular unit
+        (matched by element counts, so ``H4N`` finds ``NH4``).
+    unit : str or None
+        Formula of the unit to use when the crystal holds several.
+    technique : {"ir", "raman"} or None
+        Selection rules; ``None``: the technique of ``peaks``; if that is unknown too, a
+        component counts as active when it is IR or Raman active.
+    tolerance_cm1 : float
+        Window half width, cm-1 (:data:`DEFAULT_TOLERANCE_CM1`).
+    alternatives : sequence of CrystalPrediction
+        Other phases (a second phase, candidate low-symmetry structures); they feed
+        ``second_phase`` candidates and the band-count comparisons.
+    lattice_max_cm1 : float
+        Upper end of the lattice region, cm-1.
+
+    Returns
+    -------
+    Explanation
+
+    Raises
+    ------
+    InputError
+        Conflicting techniques, a mode table that fits no unit or whose point group
+        differs from the unit's, a bad tolerance, peaks that are not a PeakList.
+    """
+    from .combinations import overtones_and_combinations
+
+    peak_list = _peaks(peaks)
+    tech = normalise_technique(technique)
+    if tech is not None and peak_list.technique is not None and tech != peak_list.technique:
+        raise InputError(
+            f"{peak_list.source or 'peaks'}: the lines were measured by {peak_list.technique} "
+            f"but technique={technique!r} was passed"
+        )
+    tech = tech or peak_list.technique
+    for name, value in (("tolerance_cm1", tolerance_cm1), ("lattice_max_cm1", lattice_max_cm1)):
+        if not (isinstance(value, (int, float)) and not isinstance(value, bool) and value > 0 and math.isfinite(value)):
+            raise InputError(f"{name} must be a positive number of cm-1, got {value!r}")
+    tol = float(tolerance_cm1)
+    units, notes = _resolve(prediction, modes, unit, tech)
+    if tech is None:
+        notes.append("technique unknown: a component counts as active if it is IR or Raman active")
+    if not units:
+        notes.append("no unit with a mode table: only lattice modes can be assigned")
+    phase = prediction.source
+    word = _technique_word(tech)
+
+    lattice = [
+        (s.label, s.translational, s.librational)
+        for s in prediction.species
+        if (s.translational or s.librational) and _active(bool(s.ir), bool(s.raman), tech)
+    ]
+    lattice_count = sum(t + lib for _, t, lib in lattice)
+    lattice_text = ", ".join(f"{lab} ({t} transl., {lib} libr.)" for lab, t, lib in lattice)
+
+    combos = {
+        ub.orbit.formula: overtones_and_combinations(
+            ub.table.point_group,
+            [(b.mode.name, b.mode.species, b.mode.wavenumber_cm1) for b in ub.bands],
+            crystal={c.free: c.factor for c in ub.orbit.correlation},
+        )
+        for ub in units
+    }
+    iso = _isotopomer_lists(units, notes)
+
+    alt_bands: list[tuple[Any, dict[tuple[str, str], _Band]]] = []
+    for alt in alternatives:
+        try:
+            alt_units, _ = _resolve(alt, modes, unit, tech)
+        except InputError as exc:
+            notes.append(f"alternative {alt.source} not used: {exc}")
+            continue
+        alt_bands.append((alt, {(ub.orbit.formula, b.mode.name): b for ub in alt_units for b in ub.bands}))
+    main_bands = {(ub.orbit.formula, b.mode.name): b for ub in units for b in ub.bands}
+
+    lines = list(peak_list.peaks)
+    found: list[list[Candidate]] = [[] for _ in lines]
+    for i, p in enumerate(lines):
+        x = p.position_cm1
+        for ub in units:
+            found[i] += _fundamental_candidates(x, ub, tol, tech, phase)
+            found[i] += _combination_candidates(x, ub, combos[ub.orbit.formula], tol, tech, phase)
+        if x < lattice_max_cm1 and lattice:
+            found[i].append(
+                Candidate(
+                    "lattice",
+                    "",
+                    "lattice",
+                    tuple(lab for lab, _, _ in lattice),
+                    None,
+                    PRIORS["lattice"],
+                    f"below {lattice_max_cm1:g} cm-1: {lattice_count} {word}-active lattice frequencies "
+                    f"predicted: {lattice_text}",
+                    phase,
+                )
+            )
+        for alt, bands in alt_bands:
+            for (formula, name), b in bands.items():
+                here = main_bands.get((formula, name))
+                d = abs(x - b.mode.wavenumber_cm1)
+                if d > tol or b.factor_count <= (here.factor_count if here else 0):
+                    continue
+                found[i].append(
+                    Candidate(
+                        "second_phase",
+                        formula,
+                        name,
+                        b.factor_labels,
+                        b.mode.wavenumber_cm1,
+                        round(PRIORS["second_phase"] * _closeness(d, tol), 4),
+                        f"{name} has {b.factor_count} {word}-active components in {alt.source} "
+                        f"({alt.factor_group}) against {here.factor_count if here else 0} here",
+                        alt.source,
+                    )
+                )
+
+    # members of a band: lines whose best fundamental-type candidate is that band (before
+    # the surplus rule); they are the parents of satellites and are counted by the surplus rule
+    members: dict[tuple[str, str], list[int]] = {}
+    for i, cands in enumerate(found):
+        own = [c for c in cands if c.kind in ("fundamental", "site_activated") and c.phase == phase]
+        if own:
+            top = max(own, key=lambda c: (c.score, -_KIND_ORDER[c.kind]))
+            members.setdefault((top.unit, top.band), []).append(i)
+
+    for ub in units:
+        by_name = {b.mode.name: b for b in ub.bands}
+        for (formula, name), idx in members.items():
+            if formula != ub.orbit.formula:
+                continue
+            b = by_name[name]
+            for y_i in idx:
+                y = lines[y_i]
+                for iso_class in iso.get(formula, ()):
+                    given = b.mode.isotope_shifts.get(iso_class.substitution)
+                    if given is not None:
+                        shift, how = given, "shift from the mode table"
+                    else:
+                        shift = iso_class.shift_cm1(b.mode.species, y.position_cm1)
+                        how = "estimated shift (symmetry only, crude)"
+                    if abs(shift) < MIN_ISOTOPE_SHIFT_CM1:
+                        continue
+                    expected = y.position_cm1 + shift
+                    window = max(1.0, 0.5 * abs(shift))
+                    for i, p in enumerate(lines):
+                        d = abs(p.position_cm1 - expected)
+                        if i == y_i or d > window or not p.intensity < y.intensity:
+                            continue
+                        found[i].append(
+                            Candidate(
+                                "isotopologue",
+                                formula,
+                                name,
+                                (),
+                                round(expected, 3),
+                                round(PRIORS["isotopologue"] * _closeness(d, window), 4),
+                                f"{iso_class.substitution} isotopomer ({100 * iso_class.abundance:.2g} % of units, "
+                                f"{iso_class.point_group}) of the {name} line at {y.position_cm1:.1f} cm-1: "
+                                f"{how} {shift:+.1f} cm-1",
+                                phase,
+                            )
+                        )
+
+    # surplus rule: a band shows at most its predicted number of components
+    for ub in units:
+        for b in ub.bands:
+            idx = members.get((ub.orbit.formula, b.mode.name), [])
+            if len(idx) <= b.factor_count:
+                continue
+            ranked = sorted(idx, key=lambda i: (-lines[i].intensity, lines[i].position_cm1))
+            for i in ranked[b.factor_count :]:
+                found[i] = [
+                    Candidate(
+                        c.kind,
+                        c.unit,
+                        c.band,
+                        c.species,
+                        c.predicted_cm1,
+                        round(c.score * SURPLUS_FACTOR, 4),
+                        c.reason + f"; surplus: more lines than the {b.factor_count} predicted",
+                        c.phase,
+                    )
+                    if (c.unit, c.band, c.phase) == (ub.orbit.formula, b.mode.name, phase)
+                    and c.kind in ("fundamental", "site_activated")
+                    else c
+                    for c in found[i]
+                ]
+
+    explained = []
+    for p, cands in zip(lines, found, strict=True):
+        unique: dict[tuple[str, str, str, str], Candidate] = {}
+        for c in cands:
+            key = (c.kind, c.unit, c.band, c.phase)
+            if key not in unique or c.score > unique[key].score:
+                unique[key] = c
+        ranked = sorted(unique.values(), key=lambda c: (-c.score, _KIND_ORDER[c.kind], c.unit, c.band, c.phase))
+        explained.append(LineExplanation(p, tuple(ranked[:MAX_CANDIDATES])))
+
+    comparisons: list[PhaseComparison] = []
+    # only bands that can show lines in some phase compete for the lines in count_components
+    can_show = {key for key, b in main_bands.items() if b.factor_count or b.site_count}
+    for _, bands in alt_bands:
+        can_show |= {key for key, b in bands.items() if b.factor_count or b.site_count}
+    observed_by_unit = {
+        ub.orbit.formula: count_components(
+            peak_list, [b.mode for b in ub.bands if (ub.orbit.formula, b.mode.name) in can_show], tol
+        )
+        for ub in units
+    }
+    for ub in units:
+        comparisons.append(_comparison(prediction, ub, observed_by_unit[ub.orbit.formula]))
+    for alt, _ in alt_bands:
+        for ub in _resolve(alt, modes, unit, tech)[0]:
+            comparisons.append(_comparison(alt, ub, observed_by_unit.get(ub.orbit.formula, {})))
+
+    return Explanation(
+        phase=phase,
+        peaks_source=peak_list.source,
+        technique=tech,
+        tolerance_cm1=tol,
+        lattice_max_cm1=float(lattice_max_cm1),
+        units=tuple(f"{ub.orbit.formula}: {ub.table.name} ({ub.table.point_group}, {ub.table.phase})" for ub in units),
+        lines=tuple(explained),
+        comparisons=tuple(comparisons),
+        lattice_predicted=lattice_count,
+        notes=tuple(notes),
+    )
+
+
+# --------------------------------------------------------------------------- files and text
+
+
+def explain_files(
+    structure: str | os.PathLike[str],
+    peaks: str | os.PathLike[str] | None = None,
+    *,
+    spectrum: str | os.PathLike[str] | None = None,
+    modes: str | os.PathLike[str] | None = None,
+    technique: str | None = None,
+    figure: str | os.PathLike[str] | None = None,
+    tolerance_cm1: float = DEFAULT_TOLERANCE_CM1,
+    options: Any = None,
+) -> Explanation:
+    """Read the files, explain the lines, and optionally save the figure.
+
+    Everything is read and checked before anything is written; the figure (if asked
+    for) is written atomically, so on any error no file appears.
+
+    Parameters
+    ----------
+    structure : path
+        Crystal structure file (anything :func:`splitting.crystal.predict.predict` reads).
+    peaks : path or None
+        Peak list (:func:`~splitting.spectra.measured.read_peaks`); ``None``: found in
+        ``spectrum`` with :func:`~splitting.spectra.peaks.find_peaks`.
+    spectrum : path or None
+        Measured spectrum (:func:`~splitting.spectra.measured.read_spectrum`), drawn in
+        the figure.
+    modes : path or None
+        Mode-table TOML file; ``None``: bundled tables.
+    technique : {"ir", "raman"} or None
+        Technique; must agree with what the files say.
+    figure : path or None
+        Where to save the figure (format from the suffix, e.g. ``.png``, ``.pdf``, ``.svg``).
+    tolerance_cm1 : float
+        Window half width, cm-1.
+    options : splitting.crystal.predict.Options or None
+        Crystal-pipeline options.
+
+    Raises
+    ------
+    InputError
+        Missing, empty or malformed files; text in numeric columns; unsorted or
+        repeated x values; wavelength units; conflicting techniques; an output folder
+        that does not exist.
+    """
+    from ..crystal.predict import predict
+    from .measured import read_peaks, read_spectrum
+    from .peaks import find_peaks
+
+    if peaks is None and spectrum is None:
+        raise InputError("give a peak list or a spectrum to explain")
+    if figure is not None:
+        from .explain_plot import FIGURE_FORMATS
+
+        target = Path(figure)
+        if target.suffix.lower() not in FIGURE_FORMATS:
+            raise InputError(
+                f"{target}: unknown figure format {target.suffix!r}; use one of {', '.join(FIGURE_FORMATS)}"
+            )
+        folder = target.parent if str(target.parent) else Path(".")
+        if not folder.is_dir():
+            raise InputError(f"cannot write {figure}: folder {folder} does not exist")
+    spec = read_spectrum(spectrum, technique=technique) if spectrum is not None else None
+    if peaks is not None:
+        peak_list = read_peaks(peaks, technique=technique or (spec.technique if spec else None))
+    elif spec is not None:
+        peak_list = find_peaks(spec)
+    table = load_mode_table(modes) if modes is not None else None
+    prediction = predict(structure, options)
+    result = explain(prediction, peak_list, modes=table, technique=technique, tolerance_cm1=tolerance_cm1)
+    if figure is not None:
+        from .explain_plot import save_explanation_figure
+
+        save_explanation_figure(result, figure, spectrum=spec)
+    return result
+
+
+def explanation_text(explanation: Explanation) -> str:
+    """Plain-text report: one row per line with its best candidate, then the band counts."""
+    e = explanation
+    tech = {"ir": "infrared", "raman": "Raman"}.get(e.technique or "", "technique not given")
+    out = [
+        f"Explanation of {e.peaks_source or 'the measured lines'} against {e.phase} ({tech})",
+        f"window {e.tolerance_cm1:g} cm-1; lattice region below {e.lattice_max_cm1:g} cm-1",
+    ]
+    out += [f"unit {u}" for u in e.units]
+    out.append("")
+    out.append(f"{'line/cm-1':>10}  {'intensity':>10}  {'score':>5}  best candidate")
+    for line in e.lines:
+        p = line.peak
+        if line.candidates:
+            best = line.candidates[0]
+            out.append(f"{p.position_cm1:10.1f}  {p.intensity:10.4g}  {best.score:5.2f}  {best.label}")
+            out.append(f"{'':30}{best.reason}")
+            for other in line.candidates[1:3]:
+                out.append(f"{'':30}or {other.label} ({other.score:.2f})")
+        else:
+            out.append(f"{p.position_cm1:10.1f}  {p.intensity:10.4g}  {'-':>5}  unexplained")
+    n_un = len(e.unexplained)
+    out.append("")
+    out.append(
+        f"{len(e.lines) - n_un} of {len(e.lines)} lines explained; "
+        f"{n_un} unexplained{': ' if n_un else ''}" + ", ".join(f"{p.position_cm1:.1f}" for p in e.unexplained)
+    )
+    for comp in e.comparisons:
+        out.append("")
+        out.append(
+            f"band counts, {comp.unit} in {comp.phase} ({comp.factor_group}, site {comp.site_group}): "
+            f"mismatch {comp.mismatch} (site-group reading {comp.site_mismatch})"
+        )
+        out.append(f"{'band':>10}  {'species':>8}  {'free/cm-1':>9}  {'observed':>8}  {'predicted':>9}  {'site':>4}")
+        for b in comp.bands:
+            out.append(
+                f"{b.band:>10}  {b.species:>8}  {b.free_cm1:9.1f}  {b.observed:8d}  {b.predicted:9d}  "
+                f"{b.predicted_site:4d}"
+            )
+    if e.lattice_predicted:
+        out.append(f"lattice: {e.lattice_predicted} active frequencies predicted")
+    for note in e.notes:
+        out.append(f"note: {note}")
+    return "\n".join(out)
