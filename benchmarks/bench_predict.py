@@ -2,7 +2,7 @@
 
 Run with::
 
-    .venv/bin/python -m pytest benchmarks/bench_predict.py --benchmark-enable -q -p no:doctest
+    .venv/bin/python -m pytest benchmarks --benchmark-enable -q -p no:doctest
 
 Four timings:
 
@@ -44,8 +44,13 @@ def supercell_file(tmp_path_factory: pytest.TempPathFactory) -> Path:
 
 
 def _run_cli(path: Path) -> str:
-    done = subprocess.run([sys.executable, "-m", "splitting.cli", "predict", str(path)], capture_output=True,
-                          text=True, check=False, cwd=ROOT)
+    done = subprocess.run(
+        [sys.executable, "-m", "splitting.cli", "predict", str(path)],
+        capture_output=True,
+        text=True,
+        check=False,
+        cwd=ROOT,
+    )
     assert done.returncode == 0, done.stderr
     return done.stdout
 
@@ -74,8 +79,9 @@ def test_read_and_symmetry_supercell(benchmark, supercell_file: Path) -> None:
 
     def read_and_search() -> int:
         atoms = ase.io.read(supercell_file)
-        ds = spglib.get_symmetry_dataset((atoms.cell[:], atoms.get_scaled_positions(), atoms.numbers),
-                                         symprec=TOLERANCE)
+        ds = spglib.get_symmetry_dataset(
+            (atoms.cell[:], atoms.get_scaled_positions(), atoms.numbers), symprec=TOLERANCE
+        )
         return int(ds.number)
 
     old = spglib.error.OLD_ERROR_HANDLING
@@ -97,8 +103,11 @@ def test_predict_in_process_supercell(benchmark, supercell_file: Path) -> None:
     floor = _MEANS.get("read_symmetry")
     if floor:
         lines = [f"read + symmetry search (6480 atoms): {floor:.3f} s"]
-        for key, what in (("predict_in_process", "predict in-process"), ("cli_supercell", "CLI process"),
-                          ("cli_cell", "CLI process, 240-atom file")):
+        for key, what in (
+            ("predict_in_process", "predict in-process"),
+            ("cli_supercell", "CLI process"),
+            ("cli_cell", "CLI process, 240-atom file"),
+        ):
             if key in _MEANS:
                 lines.append(f"{what}: {_MEANS[key]:.3f} s = {_MEANS[key] / floor:.2f} x (read + symmetry)")
         print("\n" + "\n".join(lines))

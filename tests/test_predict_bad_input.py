@@ -124,9 +124,23 @@ def bad_files(tmp_path: Path) -> dict[str, Path]:
 
 
 KINDS = [
-    "malformed cif", "partial occupancy", "disordered C60", "disordered NH4Cl", "overlap cif", "overlap poscar",
-    "overlap across boundary", "xyz molecule", "cif without cell", "bundled free molecule", "overlapping xyz",
-    "single atom", "empty", "missing", "folder", "not a structure", "binary junk",
+    "malformed cif",
+    "partial occupancy",
+    "disordered C60",
+    "disordered NH4Cl",
+    "overlap cif",
+    "overlap poscar",
+    "overlap across boundary",
+    "xyz molecule",
+    "cif without cell",
+    "bundled free molecule",
+    "overlapping xyz",
+    "single atom",
+    "empty",
+    "missing",
+    "folder",
+    "not a structure",
+    "binary junk",
 ]
 
 
@@ -146,9 +160,12 @@ def test_bad_file(kind: str, json_flag: bool, bad_files: dict[str, Path], run_cl
 OVERLAPS = ["overlap cif", "overlap poscar", "overlap across boundary"]
 
 
-@pytest.mark.xfail(strict=True, reason="the overlap message of splitting/crystal/read.py (check_overlaps, called by "
-                   "load_structure) does not name the file: 'error: atoms 1 (C) and 2 (C) overlap (0.100 A apart); "
-                   "...' although the project rules ask every input error to name the file")
+@pytest.mark.xfail(
+    strict=True,
+    reason="the overlap message of splitting/crystal/read.py (check_overlaps, called by "
+    "load_structure) does not name the file: 'error: atoms 1 (C) and 2 (C) overlap (0.100 A apart); "
+    "...' although the project rules ask every input error to name the file",
+)
 @pytest.mark.parametrize("kind", OVERLAPS)
 def test_overlap_message_names_the_file(kind: str, bad_files: dict[str, Path], run_cli: Runner) -> None:
     path = bad_files[kind]
@@ -210,9 +227,12 @@ def test_argparse_errors_keep_stdout_empty(run_cli: Runner) -> None:
     assert "error:" in err and "Traceback" not in err
 
 
-@pytest.mark.xfail(strict=True, reason="the partial-occupancy message (splitting/crystal/read.py, load_structure) "
-                   "sends the user to 'splitting predict --help' for disorder options, but the predict parser "
-                   "(splitting/cli.py) has no option about disorder")
+@pytest.mark.xfail(
+    strict=True,
+    reason="the partial-occupancy message (splitting/crystal/read.py, load_structure) "
+    "sends the user to 'splitting predict --help' for disorder options, but the predict parser "
+    "(splitting/cli.py) has no option about disorder",
+)
 def test_disorder_hint_points_to_existing_help(bad_files: dict[str, Path], run_cli: Runner) -> None:
     message = assert_one_error_line(*run_cli(["predict", bad_files["partial occupancy"]]))
     assert "--help" in message

@@ -21,7 +21,8 @@ from splitting.crystal.results import CrystalPrediction
 
 ROOT = Path(__file__).resolve().parent.parent
 STRUCTURES = ROOT / "structures"
-ORDERED = sorted(p.name for p in STRUCTURES.glob("*.cif") if "disordered" not in p.name) + [
+ORDERED = [
+    *sorted(p.name for p in STRUCTURES.glob("*.cif") if "disordered" not in p.name),
     "calcite.vasp",
     "calcite.extxyz",
 ]
@@ -37,7 +38,7 @@ def _ok(result: tuple[int, str, str]) -> str:
     return out
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _api(name: str) -> CrystalPrediction:
     return predict(STRUCTURES / name)
 
@@ -103,8 +104,17 @@ def test_json_calcite_values(run_cli: Runner) -> None:
 
 def test_text_output_calcite(run_cli: Runner) -> None:
     out = _ok(run_cli(["predict", STRUCTURES / "calcite.cif"]))
-    for words in ("R-3c", "No. 167", "D3d", "CO3", "D3h", "6a", "6b", "Γ3N = A1g + 3A2g + 4Eg + 2A1u + 4A2u + 6Eu",
-                  "A1g + A1u"):
+    for words in (
+        "R-3c",
+        "No. 167",
+        "D3d",
+        "CO3",
+        "D3h",
+        "6a",
+        "6b",
+        "Γ3N = A1g + 3A2g + 4Eg + 2A1u + 4A2u + 6Eu",
+        "A1g + A1u",
+    ):
         assert words in out, words
     # one line per factor-group species in the species table
     for label in ("A1g", "A2g", "Eg", "A1u", "A2u", "Eu"):
@@ -160,13 +170,33 @@ def test_options_reach_the_pipeline() -> None:
     """The CLI options map onto Options one to one (one name per idea)."""
     from splitting.cli import _options, build_parser
 
-    args = build_parser().parse_args([
-        "predict", "x.cif", "--tolerance", "0.02", "--unit-tolerance", "0.1", "--free-group", "C60=Th",
-        "--units", "C60", "--bond", "C-C=1.7", "--bond-scale", "1.1", "--bond-metals",
-    ])
+    args = build_parser().parse_args(
+        [
+            "predict",
+            "x.cif",
+            "--tolerance",
+            "0.02",
+            "--unit-tolerance",
+            "0.1",
+            "--free-group",
+            "C60=Th",
+            "--units",
+            "C60",
+            "--bond",
+            "C-C=1.7",
+            "--bond-scale",
+            "1.1",
+            "--bond-metals",
+        ]
+    )
     assert _options(args) == Options(
-        tolerance=0.02, unit_tolerance=0.1, free_groups=(("C60", "Th"),), formulas=("C60",),
-        cutoffs=((("C", "C"), 1.7),), bond_scale=1.1, ionic_metals=False,
+        tolerance=0.02,
+        unit_tolerance=0.1,
+        free_groups=(("C60", "Th"),),
+        formulas=("C60",),
+        cutoffs=((("C", "C"), 1.7),),
+        bond_scale=1.1,
+        ionic_metals=False,
     )
 
 

@@ -51,16 +51,17 @@ NORMALISER_CLASSES: dict[int, list[set[str]]] = {
     227: [{"8a", "8b"}, {"16c", "16d"}],
 }
 
-HYPOTHESIS = settings(max_examples=6, deadline=None, database=None, derandomize=True,
-                      suppress_health_check=[HealthCheck.too_slow])
+HYPOTHESIS = settings(
+    max_examples=6, deadline=None, database=None, derandomize=True, suppress_health_check=[HealthCheck.too_slow]
+)
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _atoms(name: str) -> Atoms:
     return ase.io.read(STRUCTURES / name)
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _reference(name: str) -> CrystalPrediction:
     return predict_atoms(_atoms(name).copy(), source=name)
 
@@ -87,13 +88,23 @@ def signature(p: CrystalPrediction, *, exact_wyckoff: bool = True) -> dict[str, 
         "gamma_3n": p.gamma_3n.counts,
         "acoustic": p.acoustic.counts,
         "species": frozenset(
-            (s.label, s.dimension, s.acoustic, s.translational, s.librational, s.internal, s.optical, s.ir,
-             s.raman, s.raman_tensor, s.polar)
+            (
+                s.label,
+                s.dimension,
+                s.acoustic,
+                s.translational,
+                s.librational,
+                s.internal,
+                s.optical,
+                s.ir,
+                s.raman,
+                s.raman_tensor,
+                s.polar,
+            )
             for s in p.species
         ),
         "units": frozenset(
-            (u.formula, u.kind, u.free_group, u.site_group, wy(u.wyckoff), u.site_symmetry, u.count,
-             u.atoms_per_unit)
+            (u.formula, u.kind, u.free_group, u.site_group, wy(u.wyckoff), u.site_symmetry, u.count, u.atoms_per_unit)
             for u in p.units
         ),
         "orbit_modes": frozenset(
@@ -115,11 +126,13 @@ def assert_same(got: CrystalPrediction, ref: CrystalPrediction, *, exact_wyckoff
 
 def _rotation(q: tuple[float, float, float, float]) -> np.ndarray:
     w, x, y, z = np.array(q) / np.linalg.norm(q)
-    return np.array([
-        [1 - 2 * (y * y + z * z), 2 * (x * y - z * w), 2 * (x * z + y * w)],
-        [2 * (x * y + z * w), 1 - 2 * (x * x + z * z), 2 * (y * z - x * w)],
-        [2 * (x * z - y * w), 2 * (y * z + x * w), 1 - 2 * (x * x + y * y)],
-    ])
+    return np.array(
+        [
+            [1 - 2 * (y * y + z * z), 2 * (x * y - z * w), 2 * (x * z + y * w)],
+            [2 * (x * y + z * w), 1 - 2 * (x * x + z * z), 2 * (y * z - x * w)],
+            [2 * (x * z - y * w), 2 * (y * z + x * w), 1 - 2 * (x * x + y * y)],
+        ]
+    )
 
 
 def _primitive(atoms: Atoms) -> Atoms:
@@ -226,10 +239,12 @@ def test_rotation_and_shift_and_order_together() -> None:
 
 
 # ------------------------------------------------------------ known non-canonical output
-@pytest.mark.xfail(strict=True, reason="Wyckoff letter follows spglib's choice of origin: diamond shifted by "
-                   "(0.1, 0.2, 0.3) in fractions of a gives C on 8b instead of 8a "
-                   "(splitting/crystal/spacegroup.py, CellSymmetry.wyckoff_of); 8a and 8b are equivalent under the Euclidean normaliser, so a canonical choice "
-                   "is possible")
+@pytest.mark.xfail(
+    strict=True,
+    reason="Wyckoff letter follows spglib's choice of origin: diamond shifted by (0.1, 0.2, 0.3) in fractions "
+    "of a gives C on 8b instead of 8a (splitting/crystal/spacegroup.py, CellSymmetry.wyckoff_of); 8a and 8b "
+    "are equivalent under the Euclidean normaliser, so a canonical choice is possible",
+)
 def test_wyckoff_letter_independent_of_origin_diamond() -> None:
     atoms = _atoms("diamond.cif").copy()
     atoms.translate(np.array([0.1, 0.2, 0.3]) @ atoms.cell[:])
@@ -238,9 +253,12 @@ def test_wyckoff_letter_independent_of_origin_diamond() -> None:
     assert predict_atoms(atoms).unit("C").wyckoff == "8a"
 
 
-@pytest.mark.xfail(strict=True, reason="Wyckoff letter follows spglib's choice of origin: naphthalene (P2_1/a file) "
-                   "shifted by (0.5, 0.5, 0.5) in fractions of the cell reports the molecules on 2d instead of 2a "
-                   "(splitting/crystal/spacegroup.py, CellSymmetry.wyckoff_of)")
+@pytest.mark.xfail(
+    strict=True,
+    reason="Wyckoff letter follows spglib's choice of origin: naphthalene (P2_1/a file) "
+    "shifted by (0.5, 0.5, 0.5) in fractions of the cell reports the molecules on 2d instead of 2a "
+    "(splitting/crystal/spacegroup.py, CellSymmetry.wyckoff_of)",
+)
 def test_wyckoff_letter_independent_of_origin_naphthalene() -> None:
     atoms = _atoms("naphthalene_P21a.cif").copy()
     atoms.translate(np.array([0.5, 0.5, 0.5]) @ atoms.cell[:])
@@ -249,9 +267,12 @@ def test_wyckoff_letter_independent_of_origin_naphthalene() -> None:
     assert predict_atoms(atoms).unit("C10H8").wyckoff == "2a"
 
 
-@pytest.mark.xfail(strict=True, reason="Wyckoff letter follows the atom order: diamond.cif with atoms 3 and 4 "
-                   "swapped (order 0,1,3,2,4,5,6,7; same cell, same origin) gives C on 8b instead of 8a "
-                   "(splitting/crystal/spacegroup.py, CellSymmetry.wyckoff_of, through spglib's origin choice)")
+@pytest.mark.xfail(
+    strict=True,
+    reason="Wyckoff letter follows the atom order: diamond.cif with atoms 3 and 4 "
+    "swapped (order 0,1,3,2,4,5,6,7; same cell, same origin) gives C on 8b instead of 8a "
+    "(splitting/crystal/spacegroup.py, CellSymmetry.wyckoff_of, through spglib's origin choice)",
+)
 def test_wyckoff_letter_independent_of_atom_order_diamond() -> None:
     atoms = _atoms("diamond.cif")[[0, 1, 3, 2, 4, 5, 6, 7]]
     # diamond: C on 8a of Fd-3m, origin choice 1 (ITA No. 227; common practice)

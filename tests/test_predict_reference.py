@@ -38,14 +38,15 @@ ROOT = Path(__file__).resolve().parent.parent
 STRUCTURES = ROOT / "structures"
 
 #: every ordered crystal shipped in structures/ (the disordered files are refused by design)
-ORDERED = sorted(p.name for p in STRUCTURES.glob("*.cif") if "disordered" not in p.name) + [
+ORDERED = [
+    *sorted(p.name for p in STRUCTURES.glob("*.cif") if "disordered" not in p.name),
     "calcite.vasp",
     "calcite.extxyz",
 ]
 NAPHTHALENE = ["naphthalene_P21a.cif", "naphthalene_P21c.cif", "naphthalene_P21n.cif"]
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _predict(name: str) -> CrystalPrediction:
     """One prediction per bundled file (results are frozen, so sharing them is safe)."""
     return predict(STRUCTURES / name)
@@ -132,7 +133,14 @@ def test_naphthalene_type_correlation(name: str) -> None:
     # free naphthalene: 9Ag + 3B1g + 4B2g + 8B3g + 4Au + 8B1u + 8B2u + 4B3u (48 modes;
     # Mulliken axes, see test_molecule_reference.py; from memory)
     assert _rep(unit.free_vibrations) == {
-        "Ag": 9, "B1g": 3, "B2g": 4, "B3g": 8, "Au": 4, "B1u": 8, "B2u": 8, "B3u": 4,
+        "Ag": 9,
+        "B1g": 3,
+        "B2g": 4,
+        "B3g": 8,
+        "Au": 4,
+        "B1u": 8,
+        "B2u": 8,
+        "B3u": 4,
     }
     # D2h -> Ci: every g species -> Ag, every u -> Au; Ci -> C2h with Z = 2: Ag -> Ag + Bg,
     # Au -> Au + Bu (hand derivation; Fateley 1972 naphthalene-type table)
@@ -156,8 +164,12 @@ def test_naphthalene_type_correlation(name: str) -> None:
     assert _rep(p.gamma_3n) == {"Ag": 27, "Bg": 27, "Au": 27, "Bu": 27}
     # C2h activity (WDC character table): g Raman, u IR; no polar modes
     act = {s.label: (bool(s.ir), bool(s.raman), s.polar) for s in p.species}
-    assert act == {"Ag": (False, True, False), "Bg": (False, True, False),
-                   "Au": (True, False, False), "Bu": (True, False, False)}
+    assert act == {
+        "Ag": (False, True, False),
+        "Bg": (False, True, False),
+        "Au": (True, False, False),
+        "Bu": (True, False, False),
+    }
 
 
 # ------------------------------------------------------------------------------- C60
@@ -340,6 +352,8 @@ def test_gamma_3n_character_of_inversion(name: str) -> None:
     assert (fixed is not None) == p.centrosymmetric
     if fixed is None:
         return
-    chi = sum(d * n * (1 if lab.endswith("g") else -1)
-              for (lab, n), d in zip(p.gamma_3n.counts, p.gamma_3n.dimensions, strict=True))
+    chi = sum(
+        d * n * (1 if lab.endswith("g") else -1)
+        for (lab, n), d in zip(p.gamma_3n.counts, p.gamma_3n.dimensions, strict=True)
+    )
     assert chi == -3 * fixed

@@ -27,7 +27,7 @@ ROOT = Path(__file__).resolve().parent.parent
 STRUCTURES = ROOT / "structures"
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _atoms(name: str) -> Atoms:
     return ase.io.read(STRUCTURES / name)
 
@@ -79,8 +79,10 @@ def test_nh4cl_ammonium_and_chloride() -> None:
     assert _census(units) == Counter({("H4N", "molecule"): 1, ("Cl", "atom"): 1})
 
 
-@pytest.mark.parametrize("name, formula, count", [("alpha_N2_Pa-3.cif", "N2", 4), ("co2_Pa-3.cif", "CO2", 4),
-                                                  ("naphthalene_P21a.cif", "C10H8", 2)])
+@pytest.mark.parametrize(
+    "name, formula, count",
+    [("alpha_N2_Pa-3.cif", "N2", 4), ("co2_Pa-3.cif", "CO2", 4), ("naphthalene_P21a.cif", "C10H8", 2)],
+)
 def test_molecular_crystals(name: str, formula: str, count: int) -> None:
     _, units = _units(name)
     assert _census(units) == Counter({(formula, "molecule"): count})
@@ -169,10 +171,13 @@ def test_warning_for_ammonium_without_hydrogen() -> None:
     assert any("hydrogen" in w and "N" in w for w in p.warnings)
 
 
-@pytest.mark.xfail(strict=True, reason="splitting/crystal/predict.py, _warnings: a hydrogen-free organic unit made "
-                   "only of carbon is never flagged (the test asks for an element besides C), so naphthalene with "
-                   "its H deleted (unit C10, eight carbons with only two C neighbours) gives no warning; "
-                   "under-coordinated carbon would tell it from C60")
+@pytest.mark.xfail(
+    strict=True,
+    reason="splitting/crystal/predict.py, _warnings: a hydrogen-free organic unit made "
+    "only of carbon is never flagged (the test asks for an element besides C), so naphthalene with "
+    "its H deleted (unit C10, eight carbons with only two C neighbours) gives no warning; "
+    "under-coordinated carbon would tell it from C60",
+)
 def test_warning_for_naphthalene_without_hydrogen() -> None:
     p = predict_atoms(_without_hydrogen(_atoms("naphthalene_P21a.cif")))
     assert [u.formula for u in p.units] == ["C10"]

@@ -459,17 +459,18 @@ def correlation_diagram(prediction: CrystalPrediction, unit: str | UnitOrbit | N
 
 def _draw(plan: _Plan, ax: Axes, *, legend: bool, font: float = _FONT) -> DiagramArtists:
     fig = ax.figure
-    for attempt in range(8):
+    last = 11
+    for attempt in range(last + 1):
         ax.clear()
-        art = _draw_once(plan, ax, font=font, legend=legend)
-        renderer = _renderer(fig)
-        if not text_overlaps(art.texts(), renderer) or attempt == 7:
+        art = _draw_once(plan, ax, font=font, legend=legend, give_up=attempt == last)
+        if art is not None and (attempt == last or not text_overlaps(art.texts(), _renderer(fig))):
             return art
-        font *= 0.88
+        font *= 0.9
     raise AssertionError("unreachable")  # pragma: no cover
 
 
-def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool) -> DiagramArtists:
+def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool, give_up: bool) -> DiagramArtists | None:
+    """Draw at one font size; None as soon as the species labels overlap (unless ``give_up``)."""
     fig = ax.figure
     ax.set_axis_off()
     ax.set_xlim(-0.5, 2.55)
@@ -504,6 +505,9 @@ def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool) -> DiagramAr
         columns.append(col)
 
     renderer = _renderer(fig)
+    if not give_up and text_overlaps([t for col in columns for _, t in col] + [t for *_, t in degeneracy] + headers,
+                                     renderer):
+        return None
     to_data = ax.transData.inverted()
 
     def half_width(text) -> float:
@@ -545,14 +549,17 @@ def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool) -> DiagramAr
                               zorder=1)
             segments.append((stage, src, dst, n, line, (x0, y0, x1, y1)))
 
-    placed = [t for col in columns for _, t in col] + [t for _, _, t in degeneracy]
+    placed = [t.get_window_extent(renderer) for col in columns for _, t in col]
+    placed += [t.get_window_extent(renderer) for _, _, t in degeneracy]
+    others_px = {id(line): ax.transData.transform([(seg[0], seg[1]), (seg[2], seg[3])])
+                 for *_, line, seg in segments}
     for stage, src, dst, n, line, seg in segments:
         label = None
         if n > 1:
             dense_left = len(columns[0 if stage == "free-site" else 1]) >= len(columns[1 if stage == "free-site" else 2])
-            label = _place_multiplicity(ax, renderer, n, seg, [s[5] for s in segments if s[4] is not line], placed,
-                                        font * 0.68, prefer_left=dense_left)
-            placed.append(label)
+            others = [px for key, px in others_px.items() if key != id(line)]
+            label = _place_multiplicity(ax, renderer, n, seg, others, placed, font * 0.68, prefer_left=dense_left)
+            placed.append(label.get_window_extent(renderer))
         connectors.append(Connector(stage, src, dst, n, line, label))
 
     leg = None
@@ -597,11 +604,8 @@ def _place_multiplicity(ax, renderer, n: int, seg, others, placed, size: float, 
                       bbox={"boxstyle": "round,pad=0.18", "facecolor": "white", "edgecolor": "none"})
         bb = txt.get_window_extent(renderer).expanded(1.35, 1.3)
         clear = bb.expanded(1.6, 1.6)
-        clash = sum(bb.overlaps(p.get_window_extent(renderer)) for p in placed)
-        crossings = 0
-        for ox0, oy0, ox1, oy1 in others:
-            pts = ax.transData.transform([(ox0, oy0), (ox1, oy1)])
-            crossings += _segment_hits_box(pts[0], pts[1], clear)
+        clash = sum(bb.overlaps(p) for p in placed)
+        crossings = sum(_segment_hits_box(p, q, clear) for p, q in others)
         score = (clash, crossings)
         if best is None or score < best[0]:
             if best is not None:

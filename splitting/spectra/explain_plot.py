@@ -12,7 +12,8 @@ What is drawn (:func:`explanation_figure`):
   or positions), with the band name; bands with no active component are left out;
 * above the lines, their best assignments (``?`` for an unexplained line): neighbouring
   lines with the same assignment share one label (``Hg(1) ×8``) with a thin leader to
-  each line; a label is raised in steps where it would run into its neighbour's.
+  each line; labels sit in rows above the spectrum, and a label moves up a row where it
+  would run into its neighbour's.
 """
 
 from __future__ import annotations
@@ -149,7 +150,7 @@ def explanation_figure(
         free = [k for k in range(_LEVELS) if xc - half_text > ends[k]]
         level = free[0] if free else int(np.argmin(ends))
         ends[level] = xc + half_text + char
-        base = float(np.max(heights[members])) + (0.06 + 0.09 * level) * span
+        base = top + (0.06 + 0.09 * level) * span  # one row per level above the whole spectrum
         color = "tab:red" if not lines[members[0]].candidates else "tab:green"
         artists["labels"].append(ax.vlines(xs, heights[members] + 0.02 * span, base, color=color, lw=0.4))
         artists["labels"].append(ax.text(xc, base, text, ha="center", va="bottom", fontsize=7, color=color))

@@ -1,0 +1,157 @@
+"""The HTML report: self-contained, complete for every phase, well-formed, escaped."""
+
+from __future__ import annotations
+
+import re
+from html.parser import HTMLParser
+
+import pytest
+
+from splitting.crystal.predict import predict
+from splitting.errors import InputError
+from splitting.report.html import html_report, write_report
+from splitting.spectra.catalogue import find_table
+
+_VOID = {"meta", "br", "img", "input", "link", "hr", "wbr", "col", "area", "base", "source", "track"}
+_SVG_SELF = True  # SVG children may be self-closing (<path .../>)
+
+
+class _Checker(HTMLParser):
+    """Tag balance, ids, and what the page would load."""
+
+    def __init__(self) -> None:
+        super().__init__(convert_charrefs=True)
+        self.stack: list[str] = []
+        self.errors: list[str] = []
+        self.ids: list[str] = []
+        self.tags: dict[str, int] = {}
+        self.external: list[str] = []
+        self.text: list[str] = []
+
+    def handle_starttag(self, tag, attrs):
+        self.tags[tag] = self.tags.get(tag, 0) + 1
+        d = dict(attrs)
+        if "id" in d:
+            self.ids.append(d["id"])
+        for key in ("src", "href", "xlink:href"):
+            v = d.get(key)
+            if v and not v.startswith("#"):
+                self.external.append(v)
+        if tag not in _VOID:
+            self.stack.append(tag)
+
+    def handle_startendtag(self, tag, attrs):
+        self.tags[tag] = self.tags.get(tag, 0) + 1
+        d = dict(attrs)
+        if "id" in d:
+            self.ids.append(d["id"])
+        for key in ("src", "href", "xlink:href"):
+            v = d.get(key)
+            if v and not v.startswith("#"):
+                self.external.append(v)
+
+    def handle_endtag(self, tag):
+        if not self.stack or self.stack[-1] != tag:
+            self.errors.append(f"unexpected </{tag}> (open: {self.stack[-3:]})")
+            return
+        self.stack.pop()
+
+    def handle_data(self, data):
+        self.text.append(data)
+
+
+def _check(page: str) -> _Checker:
+    c = _Checker()
+    c.feed(page)
+    c.close()
+    assert not c.errors, c.errors[:5]
+    assert not c.stack, c.stack
+    assert len(c.ids) == len(set(c.ids)), "duplicate ids"
+    return c
+
+
+@pytest.fixture(scope="module")
+def calcite(structures_dir):
+    return predict(structures_dir / "calcite.cif")
+
+
+@pytest.fixture(scope="module")
+def c60(structures_dir):
+    return predict(structures_dir / "c60_ordered_Pa-3.cif")
+
+
+@pytest.fixture(scope="module")
+def c60_fcc(structures_dir):
+    return predict(structures_dir / "c60_fcc_Fm-3.cif")
+
+
+@pytest.fixture(scope="module")
+def two_phase(c60, c60_fcc):
+    return html_report([("Fm-3 <fcc>", c60_fcc), ("Pa-3 & ordered", c60)], title="C60 phases",
+                       notes=["a <note> & more"], modes={"C60": find_table("C60")})
+
+
+def test_single_phase_report(calcite):
+    page = html_report([("calcite", calcite)])
+    c = _check(page)
+    text = " ".join(c.text)
+    assert page.startswith("<!DOCTYPE html>")
+    assert c.tags["style"] == 1 and "script" not in c.tags and "link" not in c.tags
+    assert not c.external
+    # one correlation diagram (CO3; Ca is an atom) inline as SVG
+    assert c.tags["svg"] == 1
+    # the whole prediction: space group, factor group, axes, units, species, totals
+    assert "No. 167" in text and "D" in text
+    assert "x ∥ a" in text and "y ∥ b*" in text and "z ∥ c" in text
+    for u in calcite.units:
+        assert u.wyckoff in text
+    t = calcite.totals()
+    assert f"{t['optical']} optical frequencies" in text
+    assert f"{t['ir']} IR-active" in text and f"{t['raman']} Raman-active" in text
+    assert "mutual exclusion" in text
+    # species table: one row per factor species, with the label typeset
+    for s in calcite.species:
+        assert re.search(re.escape(s.label[0]) + r"<sub>" + re.escape(s.label[1:]) + "</sub>", page)
+    assert "@media print" in page and "break-before: page" in page
+
+
+def test_two_phase_report(two_phase, c60, c60_fcc):
+    c = _check(two_phase)
+    text = " ".join(c.text)
+    # two correlation diagrams and one line pattern across phases
+    assert c.tags["svg"] == 3
+    assert c.tags["section"] == 3
+    assert "Across the phases" in text
+    # labels, title and notes are escaped
+    assert "Fm-3 &lt;fcc&gt;" in two_phase and "Pa-3 &amp; ordered" in two_phase
+    assert "a &lt;note&gt; &amp; more" in two_phase
+    assert "<fcc>" not in two_phase and "<note>" not in two_phase
+    # the site axes of the ordered phase are stated
+    assert "[1,1,1]" in text
+    assert f"{c60.totals()['ir']} IR-active" in text and f"{c60_fcc.totals()['ir']} IR-active" in text
+
+
+def test_svg_ids_unique_and_resolved(two_phase):
+    ids = set(re.findall(r'\bid="([^"]+)"', two_phase))
+    for ref in re.findall(r'href="#([^"]+)"', two_phase):
+        assert ref in ids
+    for ref in re.findall(r"url\(#([^)]+)\)", two_phase):
+        assert ref in ids
+
+
+def test_warnings_shown(calcite):
+    import dataclasses
+
+    warned = dataclasses.replace(calcite, warnings=("units <overlap> here",))
+    page = html_report([("calcite", warned)])
+    assert 'class="warning"' in page and "units &lt;overlap&gt; here" in page
+
+
+def test_write_report(tmp_path, calcite):
+    out = write_report(tmp_path / "r.html", [("calcite", calcite)], title="Calcite")
+    page = out.read_text(encoding="utf-8")
+    assert "<title>Calcite</title>" in page
+    with pytest.raises(InputError, match="html"):
+        write_report(tmp_path / "r.pdf", [("calcite", calcite)])
+    with pytest.raises(InputError):
+        html_report([])
