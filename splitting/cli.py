@@ -146,6 +146,22 @@ def _lower(args: argparse.Namespace) -> int:
     return _emit(args, result.to_dict(), lambda: lowering_text(result))
 
 
+@_command("explain")
+def _explain(args: argparse.Namespace) -> int:
+    from .report.text import explanation_text
+    from .spectra.assign import explain_files
+
+    if args.peaks is None and args.spectrum is None:
+        raise InputError("give the measured lines with --peaks FILE or a raw spectrum with --spectrum FILE")
+    result = explain_files(args.file, args.peaks, spectrum=args.spectrum, modes=args.modes,
+                           technique=args.technique, figure=args.output, tolerance_cm1=args.window,
+                           options=_options(args))
+    code = _emit(args, result.to_dict(), lambda: explanation_text(result))
+    if args.output and not args.json:
+        print(f"figure written to {args.output}")
+    return code
+
+
 def _crystal_options(p: argparse.ArgumentParser) -> None:
     from .crystal.spacegroup import DEFAULT_CELL_TOLERANCE
     from .crystal.units import DEFAULT_BOND_SCALE
@@ -222,6 +238,20 @@ def build_parser() -> argparse.ArgumentParser:
     _crystal_options(lo)
     lo.add_argument("--json", action="store_true", help="print JSON instead of text")
 
+    ex = sub.add_parser("explain", help="assign measured lines: components, lattice modes, overtones, "
+                        "isotopologues; list what nothing explains")
+    ex.add_argument("file", help="crystal structure of the phase measured")
+    ex.add_argument("--peaks", metavar="CSV", help="peak list: position (cm-1), intensity[, width, polarisation]")
+    ex.add_argument("--spectrum", metavar="FILE", help="raw spectrum (two columns, CSV or JCAMP-DX); peaks are "
+                    "found in it when --peaks is not given, and it is drawn in the figure")
+    ex.add_argument("--modes", metavar="TOML", help="free-unit mode table (default: the bundled catalogue)")
+    ex.add_argument("--technique", choices=["ir", "raman"], help="what was measured (else read from the files)")
+    ex.add_argument("--window", type=float, default=40.0,
+                    help="largest distance (cm-1) of a line from the band it is assigned to (default 40)")
+    ex.add_argument("-o", "--output", metavar="FIGURE", help="write a figure (.svg, .pdf or .png)")
+    _crystal_options(ex)
+    ex.add_argument("--json", action="store_true", help="print JSON instead of text")
+
     for extra in _EXTRA_PARSERS:
         extra(sub)
     return p
@@ -234,7 +264,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``splitting`` command; returns the exit status."""
     parser = build_parser()
     args = parser.parse_args(argv)
-    for opt in ("tolerance", "unit_tolerance", "bond_scale"):
+    for opt in ("tolerance", "unit_tolerance", "bond_scale", "window"):
         value = getattr(args, opt, None)
         if value is not None and not value > 0:
             print(f"error: --{opt.replace('_', '-')} must be positive", file=sys.stderr)

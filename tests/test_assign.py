@@ -13,13 +13,13 @@ import pytest
 
 from splitting.crystal.predict import predict
 from splitting.errors import DataError, InputError
+from splitting.report.text import explanation_text
 from splitting.spectra.assign import (
     PRIORS,
     SURPLUS_FACTOR,
     compare_counts,
     count_components,
     explain,
-    explanation_text,
     find_unit_table,
 )
 from splitting.spectra.catalogue import find_table

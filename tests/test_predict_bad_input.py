@@ -7,6 +7,7 @@ problems with a file the message names the file.  The same holds with ``--json``
 
 from __future__ import annotations
 
+import re
 from collections.abc import Callable, Sequence
 from pathlib import Path
 
@@ -152,24 +153,8 @@ def test_bad_file(kind: str, json_flag: bool, bad_files: dict[str, Path], run_cl
         path.write_bytes(bytes(range(256)) * 4)
     argv = ["predict", str(path)] + (["--json"] if json_flag else [])
     code, out, err = run_cli(argv)
-    # the message names the file; not yet for overlapping atoms (strict xfail below)
-    names = None if kind in OVERLAPS else path.name
-    assert_one_error_line(code, out, err, names=names)
-
-
-OVERLAPS = ["overlap cif", "overlap poscar", "overlap across boundary"]
-
-
-@pytest.mark.xfail(
-    strict=True,
-    reason="the overlap message of splitting/crystal/read.py (check_overlaps, called by "
-    "load_structure) does not name the file: 'error: atoms 1 (C) and 2 (C) overlap (0.100 A apart); "
-    "...' although the project rules ask every input error to name the file",
-)
-@pytest.mark.parametrize("kind", OVERLAPS)
-def test_overlap_message_names_the_file(kind: str, bad_files: dict[str, Path], run_cli: Runner) -> None:
-    path = bad_files[kind]
-    assert_one_error_line(*run_cli(["predict", path]), names=path.name)
+    # the message names the file (its name; the folder by its path)
+    assert_one_error_line(code, out, err, names=path.name)
 
 
 @pytest.mark.parametrize(
@@ -227,15 +212,19 @@ def test_argparse_errors_keep_stdout_empty(run_cli: Runner) -> None:
     assert "error:" in err and "Traceback" not in err
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="the partial-occupancy message (splitting/crystal/read.py, load_structure) "
-    "sends the user to 'splitting predict --help' for disorder options, but the predict parser "
-    "(splitting/cli.py) has no option about disorder",
-)
-def test_disorder_hint_points_to_existing_help(bad_files: dict[str, Path], run_cli: Runner) -> None:
-    message = assert_one_error_line(*run_cli(["predict", bad_files["partial occupancy"]]))
-    assert "--help" in message
-    code, out, _ = run_cli(["predict", "--help"])
+@pytest.mark.parametrize("kind", ["partial occupancy", "disordered C60", "overlap cif"])
+def test_hints_name_options_that_exist(kind: str, bad_files: dict[str, Path], run_cli: Runner) -> None:
+    """Every option a message suggests (``--something``) is an option of ``splitting predict``."""
+    message = assert_one_error_line(*run_cli(["predict", bad_files[kind]]))
+    code, help_text, _ = run_cli(["predict", "--help"])
     assert code == 0
-    assert "disorder" in out
+    for option in re.findall(r"--[a-z][a-z-]*", message):
+        assert option in help_text, option
+
+
+def test_partial_occupancy_without_model_also_fails_when_declared_disordered(
+    bad_files: dict[str, Path], run_cli: Runner
+) -> None:
+    # Cl at occupancy 0.5 with nothing completing it: no orientation to pick (invented file)
+    message = assert_one_error_line(*run_cli(["predict", bad_files["partial occupancy"], "--disordered"]))
+    assert "partial_occupancy_no_model.cif" in message

@@ -270,3 +270,49 @@ def disordered_text(pred) -> str:
     lines.append("One-orientation ordered model (every unit in one orientation), for reference:")
     lines.append(prediction_text(pred.ordered_model))
     return "\n".join(lines)
+
+
+def explanation_text(explanation) -> str:
+    """Plain-text report: one row per line with its best candidate, then the band counts."""
+    e = explanation
+    tech = {"ir": "infrared", "raman": "Raman"}.get(e.technique or "", "technique not given")
+    out = [
+        f"Explanation of {e.peaks_source or 'the measured lines'} against {e.phase} ({tech})",
+        f"window {e.tolerance_cm1:g} cm-1; lattice region below {e.lattice_max_cm1:g} cm-1",
+    ]
+    out += [f"unit {u}" for u in e.units]
+    out.append("")
+    out.append(f"{'line/cm-1':>10}  {'intensity':>10}  {'score':>5}  best candidate")
+    for line in e.lines:
+        p = line.peak
+        if line.candidates:
+            best = line.candidates[0]
+            out.append(f"{p.position_cm1:10.1f}  {p.intensity:10.4g}  {best.score:5.2f}  {best.label}")
+            out.append(f"{'':30}{best.reason}")
+            for other in line.candidates[1:3]:
+                out.append(f"{'':30}or {other.label} ({other.score:.2f})")
+        else:
+            out.append(f"{p.position_cm1:10.1f}  {p.intensity:10.4g}  {'-':>5}  unexplained")
+    n_un = len(e.unexplained)
+    out.append("")
+    out.append(
+        f"{len(e.lines) - n_un} of {len(e.lines)} lines explained; "
+        f"{n_un} unexplained{': ' if n_un else ''}" + ", ".join(f"{p.position_cm1:.1f}" for p in e.unexplained)
+    )
+    for comp in e.comparisons:
+        out.append("")
+        out.append(
+            f"band counts, {comp.unit} in {comp.phase} ({comp.factor_group}, site {comp.site_group}): "
+            f"mismatch {comp.mismatch} (site-group reading {comp.site_mismatch})"
+        )
+        out.append(f"{'band':>10}  {'species':>8}  {'free/cm-1':>9}  {'observed':>8}  {'predicted':>9}  {'site':>4}")
+        for b in comp.bands:
+            out.append(
+                f"{b.band:>10}  {b.species:>8}  {b.free_cm1:9.1f}  {b.observed:8d}  {b.predicted:9d}  "
+                f"{b.predicted_site:4d}"
+            )
+    if e.lattice_predicted:
+        out.append(f"lattice: {e.lattice_predicted} active frequencies predicted")
+    for note in e.notes:
+        out.append(f"note: {note}")
+    return "\n".join(out)
