@@ -162,6 +162,22 @@ def _explain(args: argparse.Namespace) -> int:
     return code
 
 
+@_command("demo")
+def _demo(args: argparse.Namespace) -> int:
+    from .demo import SCENARIO, run_demo
+
+    result = run_demo(args.out)
+    if args.json:
+        print(json.dumps(result.to_dict(), indent=2))
+        return 0
+    print(SCENARIO)
+    print(f"\nwrote {len(result.files)} files to {result.folder}:")
+    for f in result.files:
+        print(f"  {f.name}")
+    print(f"\nopen {result.folder / 'report.html'} in a browser to read the report")
+    return 0
+
+
 def _crystal_options(p: argparse.ArgumentParser) -> None:
     from .crystal.spacegroup import DEFAULT_CELL_TOLERANCE
     from .crystal.units import DEFAULT_BOND_SCALE
@@ -251,6 +267,10 @@ def build_parser() -> argparse.ArgumentParser:
     ex.add_argument("-o", "--output", metavar="FIGURE", help="write a figure (.svg, .pdf or .png)")
     _crystal_options(ex)
     ex.add_argument("--json", action="store_true", help="print JSON instead of text")
+
+    de = sub.add_parser("demo", help="run the bundled scenario (a made-up lab's low-temperature run) end to end")
+    de.add_argument("--out", default="demo-output", help="folder for the report, figures and tables")
+    de.add_argument("--json", action="store_true", help="print the list of files as JSON")
 
     for extra in _EXTRA_PARSERS:
         extra(sub)

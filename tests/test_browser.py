@@ -19,9 +19,18 @@ from splitting.report.html import write_report
 
 pytestmark = pytest.mark.browser
 
-_FLAGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
-          "--disable-background-networking", "--disable-component-update", "--disable-sync",
-          "--disable-extensions", "--hide-scrollbars"]
+_FLAGS = [
+    "--headless",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-quic",
+    "--no-first-run",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+    "--disable-extensions",
+    "--hide-scrollbars",
+]
 
 
 def _install_chromium() -> str | None:
@@ -31,8 +40,13 @@ def _install_chromium() -> str | None:
     env = dict(os.environ, DEBIAN_FRONTEND="noninteractive")
     try:
         subprocess.run(["apt-get", "update"], check=True, capture_output=True, timeout=600, env=env)
-        subprocess.run(["apt-get", "install", "-y", "--no-install-recommends", "chromium"], check=True,
-                       capture_output=True, timeout=900, env=env)
+        subprocess.run(
+            ["apt-get", "install", "-y", "--no-install-recommends", "chromium"],
+            check=True,
+            capture_output=True,
+            timeout=900,
+            env=env,
+        )
     except (subprocess.SubprocessError, OSError):
         return None
     return shutil.which("chromium")
@@ -42,8 +56,10 @@ def _install_chromium() -> str | None:
 def chromium() -> str:
     exe = shutil.which("chromium") or _install_chromium()
     if exe is None:
-        pytest.skip("headless Chromium not available: install Debian's 'chromium' package "
-                    "(or run as root with CI=1 or SPLITTING_BROWSER_TESTS=1 to install it automatically)")
+        pytest.skip(
+            "headless Chromium not available: install Debian's 'chromium' package "
+            "(or run as root with CI=1 or SPLITTING_BROWSER_TESTS=1 to install it automatically)"
+        )
     return exe
 
 
@@ -62,19 +78,16 @@ def _run(chromium: str, profile: Path, *args: str) -> subprocess.CompletedProces
 def _console_errors(stderr: str) -> list[str]:
     # the page has no scripts, so any console message (Chromium logs them as "...:CONSOLE:...",
     # uncaught exceptions as "Uncaught ...") or a failed load is a fault
-    return [line for line in stderr.splitlines()
-            if ":CONSOLE" in line or "Uncaught" in line or "net::ERR_" in line]
+    return [line for line in stderr.splitlines() if ":CONSOLE" in line or "Uncaught" in line or "net::ERR_" in line]
 
 
 def test_report_renders_in_chromium(chromium, report, tmp_path):
     shot = tmp_path / "shot.png"
-    res = _run(chromium, tmp_path / "profile-shot", f"--screenshot={shot}", "--window-size=1200,2000",
-               report.as_uri())
+    res = _run(chromium, tmp_path / "profile-shot", f"--screenshot={shot}", "--window-size=1200,2000", report.as_uri())
     assert shot.exists(), res.stderr[-2000:]
     assert not _console_errors(res.stderr), _console_errors(res.stderr)
 
     import matplotlib.image as mpimg
-    import numpy as np
 
     img = mpimg.imread(shot)
     assert img.shape[0] >= 1900 and img.shape[1] >= 1100

@@ -87,8 +87,12 @@ def c60_fcc(structures_dir):
 
 @pytest.fixture(scope="module")
 def two_phase(c60, c60_fcc):
-    return html_report([("Fm-3 <fcc>", c60_fcc), ("Pa-3 & ordered", c60)], title="C60 phases",
-                       notes=["a <note> & more"], modes={"C60": find_table("C60")})
+    return html_report(
+        [("Fm-3 <fcc>", c60_fcc), ("Pa-3 & ordered", c60)],
+        title="C60 phases",
+        notes=["a <note> & more"],
+        modes={"C60": find_table("C60")},
+    )
 
 
 def test_single_phase_report(calcite):

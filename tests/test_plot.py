@@ -51,8 +51,18 @@ def calcite(structures_dir):
 # ------------------------------------------------------------------ typesetting
 @pytest.mark.parametrize(
     ("label", "expected"),
-    [("A1g", "A$_{1g}$"), ("E'", "E$'$"), ("E1''", "E$_{1}''$"), ("T1u", "T$_{1u}$"), ("Σg+", "Σ$_{g}^{+}$"),
-     ("Πu", "Π$_{u}$"), ("A", "A"), ("B3u", "B$_{3u}$"), ("Σ-", "Σ$^{-}$"), ("A2''", "A$_{2}''$")],
+    [
+        ("A1g", "A$_{1g}$"),
+        ("E'", "E$'$"),
+        ("E1''", "E$_{1}''$"),
+        ("T1u", "T$_{1u}$"),
+        ("Σg+", "Σ$_{g}^{+}$"),
+        ("Πu", "Π$_{u}$"),
+        ("A", "A"),
+        ("B3u", "B$_{3u}$"),
+        ("Σ-", "Σ$^{-}$"),
+        ("A2''", "A$_{2}''$"),
+    ],
 )
 def test_mathtext(label, expected):
     assert mathtext(label) == expected
@@ -64,7 +74,7 @@ def test_mathtext_parses_in_matplotlib():
     parser = MathTextParser("path")
     for label in ("A1g", "E'", "E1''", "T1u", "Σg+", "Πu", "A2''", "Σu-"):
         text = mathtext(label)
-        math = text[text.index("$"):] if "$" in text else None
+        math = text[text.index("$") :] if "$" in text else None
         if math:
             parser.parse(math)  # raises ValueError on bad mathtext
 
@@ -90,8 +100,9 @@ def test_other_markups():
 def test_plot_package_does_not_import_matplotlib():
     import subprocess
 
-    code = ("import sys, splitting.plot, splitting.report.tables, splitting.report.html; "
-            "print('matplotlib' in sys.modules)")
+    code = (
+        "import sys, splitting.plot, splitting.report.tables, splitting.report.html; print('matplotlib' in sys.modules)"
+    )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
 

@@ -35,8 +35,14 @@ def test_species_csv_matches_prediction(name, request):
     assert header[:7] == ["species", "dim", "internal", "translational", "librational", "acoustic", "optical"]
     assert [r[0] for r in body] == [s.label for s in pred.species]
     for r, s in zip(body, pred.species, strict=True):
-        assert [int(x) for x in r[1:7]] == [s.dimension, s.internal, s.translational, s.librational, s.acoustic,
-                                            s.optical]
+        assert [int(x) for x in r[1:7]] == [
+            s.dimension,
+            s.internal,
+            s.translational,
+            s.librational,
+            s.acoustic,
+            s.optical,
+        ]
         assert (r[7] != "-") == bool(s.ir) and (r[8] != "-") == bool(s.raman)
     # sum of optical column = the prediction's total optical frequencies
     assert sum(int(r[6]) for r in body) == pred.totals()["optical"]
@@ -104,7 +110,8 @@ def test_latex_correlation(calcite):
 
 def test_escaping():
     assert escape_latex("a_b & 5% #1 {x} ~ ^ \\") == (
-        r"a\_b \& 5\% \#1 \{x\} \textasciitilde{} \textasciicircum{} \textbackslash{}")
+        r"a\_b \& 5\% \#1 \{x\} \textasciitilde{} \textasciicircum{} \textbackslash{}"
+    )
     text = render_table(["a|b", "c"], [["x|y", "z"]], "markdown")
     assert r"a\|b" in text and r"x\|y" in text
     text = render_table(["a", "b"], [["1,2", 'say "hi"']], "csv")

@@ -221,6 +221,11 @@ def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source:
                 dim = free.group.get_species(label).dimension
                 correlation.append(Correlation(label, dim, n, site_rep, fac))
                 internal = internal + fac * n
+        site_to_factor = tuple(
+            (sp.label, induce(factor, site_cell, site.group.characters_at_operations()[k],
+                              what=f"{sp.label} of site {site.name}"))
+            for k, sp in enumerate(site.group.species)
+        )
         orbit_results.append(UnitOrbit(
             formula=u0.formula, kind=u0.kind, atoms_per_unit=len(u0.atoms), count=len(orbit),
             count_conventional=int(wyck.rstrip("abcdefghijklmnopqrstuvwxyzα")), wyckoff=wyck,
@@ -229,6 +234,7 @@ def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source:
             centre=tuple(float(x) for x in (centre @ np.linalg.inv(cell.lattice))), free_vibrations=free_vib,
             correlation=tuple(correlation), internal=internal, translations=trans, librations=lib,
             symbols=tuple(u0.symbols), geometry=tuple(tuple(float(c) for c in p) for p in (u0.positions - centre)),
+            site_to_factor=site_to_factor,
         ))
     gamma = _gamma_3n(cell, factor)
     acoustic = fg.group.vector

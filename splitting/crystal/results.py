@@ -85,6 +85,9 @@ class UnitOrbit:
     geometry : tuple of (float, float, float)
         Cartesian positions (angstrom) of the first unit's atoms relative to its centre,
         in the crystal's Cartesian frame.
+    site_to_factor : tuple of (str, Representation)
+        For every species of the site group, the factor-group species it induces (the
+        second step of the correlation, shared by internal and external modes).
     """
 
     formula: str
@@ -108,6 +111,14 @@ class UnitOrbit:
     librations: Representation
     symbols: tuple[str, ...] = ()
     geometry: tuple[tuple[float, float, float], ...] = ()
+    site_to_factor: tuple[tuple[str, Representation], ...] = ()
+
+    def induced(self, site_label: str) -> Representation:
+        """Factor-group components induced by one site species (all units of the orbit)."""
+        for lab, rep in self.site_to_factor:
+            if lab == site_label:
+                return rep
+        raise KeyError(site_label)
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
@@ -123,6 +134,8 @@ class UnitOrbit:
             "correlation": [c.to_dict() for c in self.correlation],
             "internal": str(self.internal), "translations": str(self.translations),
             "librations": str(self.librations),
+            "site_to_factor": [{"site": lab, "factor": _rep_list(rep), "factor_text": str(rep)}
+                               for lab, rep in self.site_to_factor],
             "symbols": list(self.symbols),
             "geometry_angstrom": [[round(c, 5) for c in p] for p in self.geometry],
         }

@@ -74,14 +74,22 @@ class Unit:
 
 def parse_cutoffs(items: list[str] | None) -> dict[tuple[str, str], float]:
     """Parse ``["C-H=1.2", "Pb-I=0"]`` into ``{("C", "H"): 1.2, ("I", "Pb"): 0.0}``."""
+    from ase.data import chemical_symbols
+
     out: dict[tuple[str, str], float] = {}
     for item in items or []:
         try:
             pair, value = item.split("=")
-            a, b = pair.split("-")
-            out[tuple(sorted((a.strip(), b.strip())))] = float(value)
+            a, b = (x.strip() for x in pair.split("-"))
+            distance = float(value)
         except ValueError:
             raise InputError(f"bond cut-off {item!r} is not of the form A-B=distance (angstrom)") from None
+        unknown = [x for x in (a, b) if x not in chemical_symbols[1:]]
+        if unknown:
+            raise InputError(f"bond cut-off {item!r}: {', '.join(unknown)} is not an element symbol")
+        if distance < 0:
+            raise InputError(f"bond cut-off {item!r}: the distance must not be negative")
+        out[tuple(sorted((a, b)))] = distance
     return out
 
 

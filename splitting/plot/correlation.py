@@ -91,6 +91,8 @@ def text_overlaps(texts: Sequence[Text], renderer, *, pad: float = 0.0) -> list[
         if a.overlaps(b) and min(a.x1, b.x1) - max(a.x0, b.x0) > 0.5 and min(a.y1, b.y1) - max(a.y0, b.y0) > 0.5:
             clashes.append((ta, tb))
     return clashes
+
+
 _ROW_PITCH_IN = 0.40  # inches per row at the default font size
 _FONT = 12.0
 
@@ -122,8 +124,7 @@ class Connector:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form (without the artists)."""
-        return {"stage": self.stage, "source": self.source, "target": self.target,
-                "multiplicity": self.multiplicity}
+        return {"stage": self.stage, "source": self.source, "target": self.target, "multiplicity": self.multiplicity}
 
 
 @dataclass(frozen=True)
@@ -184,12 +185,16 @@ class DiagramArtists:
     def to_dict(self) -> dict[str, object]:
         """JSON-ready summary of what was drawn."""
         return {
-            "unit": self.unit, "band": self.band, "groups": list(self.groups),
-            "free": [lab for lab, _ in self.free], "site": [lab for lab, _ in self.site],
+            "unit": self.unit,
+            "band": self.band,
+            "groups": list(self.groups),
+            "free": [lab for lab, _ in self.free],
+            "site": [lab for lab, _ in self.site],
             "factor": [lab for lab, _ in self.factor],
             "connectors": [c.to_dict() for c in self.connectors],
             "marks": [[lab, kind] for lab, kind, _ in self.marks],
-            "free_marks": [[lab, kind] for lab, kind, _ in self.free_marks], "font_size": self.font_size,
+            "free_marks": [[lab, kind] for lab, kind, _ in self.free_marks],
+            "font_size": self.font_size,
         }
 
 
@@ -249,6 +254,7 @@ def select_unit(prediction: CrystalPrediction, unit: str | UnitOrbit | None) -> 
 
 def _relabelings(labels: Sequence[str]) -> list[dict[str, str]]:
     """Permutations of labels that differ only in their numeric index (B1 <-> B2 ...)."""
+
     def key(lab: str) -> str:
         return "".join(ch for ch in lab if not ch.isdigit())
 
@@ -317,11 +323,16 @@ def site_induction(unit: UnitOrbit, factor_group: str) -> dict[str, Representati
                 if answer not in answers:
                     answers.append(answer)
     if not answers:
-        raise SymmetryError(f"{unit.formula}: no embedding of {unit.site_group} in {factor_group} reproduces the "
-                            "predicted correlation")
+        raise SymmetryError(
+            f"{unit.formula}: no embedding of {unit.site_group} in {factor_group} reproduces the predicted correlation"
+        )
     chosen = answers[0]
-    return {s: Representation(first.factor.group, tuple(zip(factor_labels, chosen[s], strict=True)),
-                              first.factor.dimensions) for s in used}
+    return {
+        s: Representation(
+            first.factor.group, tuple(zip(factor_labels, chosen[s], strict=True)), first.factor.dimensions
+        )
+        for s in used
+    }
 
 
 def _induced(site: Representation, ind: dict[str, tuple[int, ...]]) -> tuple[int, ...]:
@@ -389,10 +400,16 @@ def _plan(prediction: CrystalPrediction, unit: str | UnitOrbit | None, band: str
         (f"factor group, {hermann_mauguin_mathtext(sg.symbol)}", schoenflies_mathtext(prediction.factor_group)),
     )
     return _Plan(
-        unit=u.formula, band=band, groups=(u.free_group or "C1", u.site_group, prediction.factor_group),
+        unit=u.formula,
+        band=band,
+        groups=(u.free_group or "C1", u.site_group, prediction.factor_group),
         free=tuple((c.free, c.free_dimension) for c in corr),
-        site=tuple((s, dims_site[s]) for s in site), factor=tuple((f, dims_factor[f]) for f in factor),
-        free_site=free_site, site_factor=site_factor, activity=activity, free_activity=free_activity,
+        site=tuple((s, dims_site[s]) for s in site),
+        factor=tuple((f, dims_factor[f]) for f in factor),
+        free_site=free_site,
+        site_factor=site_factor,
+        activity=activity,
+        free_activity=free_activity,
         headings=headings,
     )
 
@@ -423,8 +440,14 @@ def _size(plan: _Plan) -> tuple[float, float]:
     return 5.6, 1.25 + _ROW_PITCH_IN * max(rows, 2) + 0.4
 
 
-def correlation_diagram(prediction: CrystalPrediction, unit: str | UnitOrbit | None = None, *,
-                        band: str | None = None, ax: Axes | None = None, legend: bool = True) -> DiagramArtists:
+def correlation_diagram(
+    prediction: CrystalPrediction,
+    unit: str | UnitOrbit | None = None,
+    *,
+    band: str | None = None,
+    ax: Axes | None = None,
+    legend: bool = True,
+) -> DiagramArtists:
     """Draw the correlation diagram free group -> site group -> factor group of one unit.
 
     Parameters
@@ -481,10 +504,12 @@ def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool, give_up: boo
 
     headers = []
     for x, (caption, symbol) in zip(_COLUMN_X, plan.headings, strict=True):
-        headers.append(ax.text(x, head_y + 0.62, caption, ha="center", va="bottom", fontsize=font * 0.72,
-                               color=COLOURS["muted"]))
-        headers.append(ax.text(x, head_y + 0.55, symbol, ha="center", va="top", fontsize=font * 1.25,
-                               color=COLOURS["ink"]))
+        headers.append(
+            ax.text(x, head_y + 0.62, caption, ha="center", va="bottom", fontsize=font * 0.72, color=COLOURS["muted"])
+        )
+        headers.append(
+            ax.text(x, head_y + 0.55, symbol, ha="center", va="top", fontsize=font * 1.25, color=COLOURS["ink"])
+        )
 
     columns: list[list[tuple[str, Any]]] = []
     free_marks: list[tuple[str, str, Any]] = []
@@ -496,17 +521,34 @@ def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool, give_up: boo
         for i, (lab, dim) in enumerate(entries):
             y = rows * (n - i - 0.5) / n - 0.1
             positions[(k, lab)] = y
-            t = ax.text(_COLUMN_X[k], y, mathtext(lab), ha="center", va="center_baseline", fontsize=font,
-                        color=COLOURS["ink"], zorder=3)
+            t = ax.text(
+                _COLUMN_X[k],
+                y,
+                mathtext(lab),
+                ha="center",
+                va="center_baseline",
+                fontsize=font,
+                color=COLOURS["ink"],
+                zorder=3,
+            )
             col.append((lab, t))
-            d = ax.text(_COLUMN_X[k], y - 0.30, str(dim), ha="center", va="top", fontsize=small,
-                        color=COLOURS["muted"], zorder=3)
+            d = ax.text(
+                _COLUMN_X[k],
+                y - 0.30,
+                str(dim),
+                ha="center",
+                va="top",
+                fontsize=small,
+                color=COLOURS["muted"],
+                zorder=3,
+            )
             degeneracy.append((name, lab, d))
         columns.append(col)
 
     renderer = _renderer(fig)
-    if not give_up and text_overlaps([t for col in columns for _, t in col] + [t for *_, t in degeneracy] + headers,
-                                     renderer):
+    if not give_up and text_overlaps(
+        [t for col in columns for _, t in col] + [t for *_, t in degeneracy] + headers, renderer
+    ):
         return None
     to_data = ax.transData.inverted()
 
@@ -527,11 +569,19 @@ def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool, give_up: boo
             x = _COLUMN_X[k] + sign * (widths[(k, lab)] + 0.10)
             ir, raman = act.get(lab, (False, False))
             kinds = [kind for kind, on in (("ir", ir), ("raman", raman)) if on]
-            for kind in (kinds if sign > 0 else kinds[::-1]):
+            for kind in kinds if sign > 0 else kinds[::-1]:
                 st = ACTIVITY_STYLE[kind]
-                (m,) = ax.plot([x], [y], linestyle="none", marker=st["marker"], markersize=font * 0.55,
-                               markerfacecolor=st["face"], markeredgecolor=st["edge"], markeredgewidth=1.2,
-                               zorder=4)
+                (m,) = ax.plot(
+                    [x],
+                    [y],
+                    linestyle="none",
+                    marker=st["marker"],
+                    markersize=font * 0.55,
+                    markerfacecolor=st["face"],
+                    markeredgecolor=st["edge"],
+                    markeredgewidth=1.2,
+                    zorder=4,
+                )
                 if k == 2:
                     marks.append((lab, kind, m))
                 else:
@@ -545,18 +595,19 @@ def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool, give_up: boo
             x0 = _COLUMN_X[a] + widths[(a, src)] + pad
             x1 = _COLUMN_X[b] - widths[(b, dst)] - pad
             y0, y1 = positions[(a, src)], positions[(b, dst)]
-            (line,) = ax.plot([x0, x1], [y0, y1], color=COLOURS["line"], linewidth=1.0, solid_capstyle="round",
-                              zorder=1)
+            (line,) = ax.plot(
+                [x0, x1], [y0, y1], color=COLOURS["line"], linewidth=1.0, solid_capstyle="round", zorder=1
+            )
             segments.append((stage, src, dst, n, line, (x0, y0, x1, y1)))
 
     placed = [t.get_window_extent(renderer) for col in columns for _, t in col]
     placed += [t.get_window_extent(renderer) for _, _, t in degeneracy]
-    others_px = {id(line): ax.transData.transform([(seg[0], seg[1]), (seg[2], seg[3])])
-                 for *_, line, seg in segments}
+    others_px = {id(line): ax.transData.transform([(seg[0], seg[1]), (seg[2], seg[3])]) for *_, line, seg in segments}
     for stage, src, dst, n, line, seg in segments:
         label = None
         if n > 1:
-            dense_left = len(columns[0 if stage == "free-site" else 1]) >= len(columns[1 if stage == "free-site" else 2])
+            left = 0 if stage == "free-site" else 1
+            dense_left = len(columns[left]) >= len(columns[left + 1])
             others = [px for key, px in others_px.items() if key != id(line)]
             label = _place_multiplicity(ax, renderer, n, seg, others, placed, font * 0.68, prefer_left=dense_left)
             placed.append(label.get_window_extent(renderer))
@@ -564,13 +615,33 @@ def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool, give_up: boo
 
     leg = None
     if legend:
-        leg = ax.legend(handles=legend_handles(font), loc="upper center", bbox_to_anchor=(0.5, -0.01), ncol=4,
-                        frameon=False, fontsize=font * 0.68, handlelength=1.4, columnspacing=1.2, handletextpad=0.4)
+        leg = ax.legend(
+            handles=legend_handles(font),
+            loc="upper center",
+            bbox_to_anchor=(0.5, -0.01),
+            ncol=4,
+            frameon=False,
+            fontsize=font * 0.68,
+            handlelength=1.4,
+            columnspacing=1.2,
+            handletextpad=0.4,
+        )
 
     return DiagramArtists(
-        figure=fig, ax=ax, unit=plan.unit, band=plan.band, groups=plan.groups,
-        free=tuple(columns[0]), site=tuple(columns[1]), factor=tuple(columns[2]), degeneracy=tuple(degeneracy),
-        headers=tuple(headers), connectors=tuple(connectors), marks=tuple(marks), free_marks=tuple(free_marks), legend=leg,
+        figure=fig,
+        ax=ax,
+        unit=plan.unit,
+        band=plan.band,
+        groups=plan.groups,
+        free=tuple(columns[0]),
+        site=tuple(columns[1]),
+        factor=tuple(columns[2]),
+        degeneracy=tuple(degeneracy),
+        headers=tuple(headers),
+        connectors=tuple(connectors),
+        marks=tuple(marks),
+        free_marks=tuple(free_marks),
+        legend=leg,
         font_size=font,
     )
 
@@ -580,12 +651,24 @@ def legend_handles(font: float = _FONT) -> list[Line2D]:
     from matplotlib.lines import Line2D
 
     handles = [
-        Line2D([], [], linestyle="none", marker=st["marker"], markersize=font * 0.55, markerfacecolor=st["face"],
-               markeredgecolor=st["edge"], markeredgewidth=1.2, label=st["label"])
+        Line2D(
+            [],
+            [],
+            linestyle="none",
+            marker=st["marker"],
+            markersize=font * 0.55,
+            markerfacecolor=st["face"],
+            markeredgecolor=st["edge"],
+            markeredgewidth=1.2,
+            label=st["label"],
+        )
         for st in (ACTIVITY_STYLE["ir"], ACTIVITY_STYLE["raman"])
     ]
-    handles.append(Line2D([], [], linestyle="none", marker="$3$", markersize=font * 0.5, color=COLOURS["muted"],
-                          label="degeneracy"))
+    handles.append(
+        Line2D(
+            [], [], linestyle="none", marker="$3$", markersize=font * 0.5, color=COLOURS["muted"], label="degeneracy"
+        )
+    )
     handles.append(Line2D([], [], color=COLOURS["line"], linewidth=1.0, label="correlation (number: multiplicity)"))
     return handles
 
@@ -598,10 +681,19 @@ def _place_multiplicity(ax, renderer, n: int, seg, others, placed, size: float, 
     x0, y0, x1, y1 = seg
     best = None
     near = (0.3, 0.24, 0.38, 0.18, 0.46, 0.54, 0.62, 0.7, 0.78)
-    for t in (near if prefer_left else [1 - v for v in near]):
+    for t in near if prefer_left else [1 - v for v in near]:
         x, y = x0 + t * (x1 - x0), y0 + t * (y1 - y0)
-        txt = ax.text(x, y, str(n), ha="center", va="center", fontsize=size, color=COLOURS["ink"], zorder=2,
-                      bbox={"boxstyle": "round,pad=0.18", "facecolor": "white", "edgecolor": "none"})
+        txt = ax.text(
+            x,
+            y,
+            str(n),
+            ha="center",
+            va="center",
+            fontsize=size,
+            color=COLOURS["ink"],
+            zorder=2,
+            bbox={"boxstyle": "round,pad=0.18", "facecolor": "white", "edgecolor": "none"},
+        )
         bb = txt.get_window_extent(renderer).expanded(1.35, 1.3)
         clear = bb.expanded(1.6, 1.6)
         clash = sum(bb.overlaps(p) for p in placed)
@@ -628,8 +720,9 @@ def _segment_hits_box(p, q, bb) -> int:
     return 0
 
 
-def phase_correlation_diagram(phases: Sequence[tuple[str, CrystalPrediction]], unit_formula: str, *,
-                              band: str | None = None) -> PhaseDiagramArtists:
+def phase_correlation_diagram(
+    phases: Sequence[tuple[str, CrystalPrediction]], unit_formula: str, *, band: str | None = None
+) -> PhaseDiagramArtists:
     """Correlation diagrams of one unit in several phases, one panel per phase, side by side.
 
     Parameters
@@ -663,11 +756,29 @@ def phase_correlation_diagram(phases: Sequence[tuple[str, CrystalPrediction]], u
     for k, ((label, _), plan) in enumerate(zip(phases, plans, strict=True)):
         ax = fig.add_axes((k / n + 0.01 / n, foot, 0.98 / n, 1 - foot - 0.4 / height))
         panels.append(_draw(plan, ax, legend=False))
-        title = fig.text((k + 0.5) / n, 1 - 0.08 / height, label, ha="center", va="top",
-                         fontsize=_FONT * 1.05, fontweight="bold", color=COLOURS["ink"])
+        title = fig.text(
+            (k + 0.5) / n,
+            1 - 0.08 / height,
+            label,
+            ha="center",
+            va="top",
+            fontsize=_FONT * 1.05,
+            fontweight="bold",
+            color=COLOURS["ink"],
+        )
         fit_width(title, 0.95 * width / n * fig.dpi, _renderer(fig))
         titles.append(title)
-    fig.legend(handles=legend_handles(), loc="lower center", bbox_to_anchor=(0.5, 0.1 / height), ncol=4,
-               frameon=False, fontsize=_FONT * 0.68, handlelength=1.4, columnspacing=1.2, handletextpad=0.4)
-    return PhaseDiagramArtists(figure=fig, phases=tuple(lab for lab, _ in phases), panels=tuple(panels),
-                               titles=tuple(titles))
+    fig.legend(
+        handles=legend_handles(),
+        loc="lower center",
+        bbox_to_anchor=(0.5, 0.1 / height),
+        ncol=4,
+        frameon=False,
+        fontsize=_FONT * 0.68,
+        handlelength=1.4,
+        columnspacing=1.2,
+        handletextpad=0.4,
+    )
+    return PhaseDiagramArtists(
+        figure=fig, phases=tuple(lab for lab, _ in phases), panels=tuple(panels), titles=tuple(titles)
+    )

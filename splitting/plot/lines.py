@@ -49,11 +49,15 @@ def _save(fig: Figure, fmt: str, *, dpi: float = 300) -> bytes:
     import matplotlib
 
     buf = io.BytesIO()
-    metadata: dict[str, Any] = {"svg": {"Date": None}, "pdf": {"CreationDate": None, "ModDate": None},
-                                "png": {"Software": None}}[fmt]
+    metadata: dict[str, Any] = {
+        "svg": {"Date": None},
+        "pdf": {"CreationDate": None, "ModDate": None},
+        "png": {"Software": None},
+    }[fmt]
     with matplotlib.rc_context({"svg.hashsalt": "splitting", "svg.fonttype": "path", "pdf.fonttype": 42}):
-        fig.savefig(buf, format=fmt, dpi=dpi, metadata=metadata, facecolor="white", bbox_inches="tight",
-                    pad_inches=0.08)
+        fig.savefig(
+            buf, format=fmt, dpi=dpi, metadata=metadata, facecolor="white", bbox_inches="tight", pad_inches=0.08
+        )
     return buf.getvalue()
 
 
@@ -80,8 +84,9 @@ def write_figure(fig: Figure, path: str | os.PathLike[str], *, dpi: float = 300)
     target = Path(path)
     fmt = FIGURE_FORMATS.get(target.suffix.lower())
     if fmt is None:
-        raise InputError(f"{target}: unknown figure format {target.suffix or '(no suffix)'!r}; "
-                         f"use {', '.join(FIGURE_FORMATS)}")
+        raise InputError(
+            f"{target}: unknown figure format {target.suffix or '(no suffix)'!r}; use {', '.join(FIGURE_FORMATS)}"
+        )
     return atomic_write_bytes(target, _save(fig, fmt, dpi=dpi))
 
 
@@ -98,12 +103,11 @@ def figure_svg(fig: Figure, *, prefix: str = "") -> str:
         HTML page without clashing ids.
     """
     text = _save(fig, "svg").decode("utf-8")
-    text = text[text.index("<svg"):]
+    text = text[text.index("<svg") :]
     if prefix:
         ids = set(_ID.findall(text))
         text = _ID.sub(lambda m: f'id="{prefix}{m[1]}"', text)
-        text = re.sub(r'(href=")#([^"]+)"',
-                      lambda m: f'{m[1]}#{prefix}{m[2]}"' if m[2] in ids else m[0], text)
+        text = re.sub(r'(href=")#([^"]+)"', lambda m: f'{m[1]}#{prefix}{m[2]}"' if m[2] in ids else m[0], text)
         text = re.sub(r"url\(#([^)]+)\)", lambda m: f"url(#{prefix}{m[1]})" if m[1] in ids else m[0], text)
     return text
 
@@ -146,8 +150,15 @@ class Stick:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form (without the artist)."""
-        return {"column": self.column, "band": self.band, "mode": self.mode, "species": self.species,
-                "dimension": self.dimension, "ir": self.ir, "raman": self.raman}
+        return {
+            "column": self.column,
+            "band": self.band,
+            "mode": self.mode,
+            "species": self.species,
+            "dimension": self.dimension,
+            "ir": self.ir,
+            "raman": self.raman,
+        }
 
 
 @dataclass(frozen=True)
@@ -195,9 +206,12 @@ class LinePatternArtists:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready summary."""
-        return {"unit": self.unit, "columns": list(self.columns),
-                "bands": [{"species": b, "mode": m, "wavenumber_cm1": w} for b, m, w in self.bands],
-                "sticks": [s.to_dict() for s in self.sticks]}
+        return {
+            "unit": self.unit,
+            "columns": list(self.columns),
+            "bands": [{"species": b, "mode": m, "wavenumber_cm1": w} for b, m, w in self.bands],
+            "sticks": [s.to_dict() for s in self.sticks],
+        }
 
 
 @dataclass(frozen=True)
@@ -222,8 +236,10 @@ def _bands(unit, band: str | None, modes: ModeTable | None) -> list[_Band]:
         from ..groups.catalogue import canonical_name
 
         if canonical_name(modes.point_group) != canonical_name(unit.free_group):
-            raise InputError(f"mode table {modes.name!r} is for point group {modes.point_group}, but {unit.formula} "
-                             f"is {unit.free_group} in the crystal")
+            raise InputError(
+                f"mode table {modes.name!r} is for point group {modes.point_group}, but {unit.formula} "
+                f"is {unit.free_group} in the crystal"
+            )
         out = [_Band(m.species, m.name, float(m.wavenumber_cm1)) for m in modes.modes if m.species in species]
         if not out:
             raise InputError(f"mode table {modes.name!r} has no mode of the species of {unit.formula}")
@@ -267,7 +283,7 @@ def _spread(nominal: Sequence[float], heights: Sequence[float], top: float) -> l
         for k in range(len(blocks) - 1):
             a, b = blocks[k], blocks[k + 1]
             if place(a) + size(a) + _BAND_GAP_PT > place(b) - 1e-9:
-                blocks[k:k + 2] = [a + b]
+                blocks[k : k + 2] = [a + b]
                 changed = True
                 break
     centres = [0.0] * len(nominal)
@@ -279,8 +295,13 @@ def _spread(nominal: Sequence[float], heights: Sequence[float], top: float) -> l
     return centres
 
 
-def line_pattern(phases: Sequence[tuple[str, CrystalPrediction]], unit_formula: str, *, band: str | None = None,
-                 modes: ModeTable | None = None) -> LinePatternArtists:
+def line_pattern(
+    phases: Sequence[tuple[str, CrystalPrediction]],
+    unit_formula: str,
+    *,
+    band: str | None = None,
+    modes: ModeTable | None = None,
+) -> LinePatternArtists:
     """Predicted components of every band of a unit, one column per phase, as stick clusters.
 
     Parameters
@@ -409,13 +430,34 @@ def _draw_pattern(phases, units, columns, bands, content, centres, top, scale, f
             title = f"free {formula_mathtext(u0.formula)}"
         width = _FREE_W if k == 0 else _COL_W
         cx = x0 + width / 2
-        head = ax.annotate(title, (cx, top), xytext=(0, 30), textcoords="offset points", ha="center",
-                           va="bottom", fontsize=_FONT, fontweight="bold", color=COLOURS["ink"],
-                           annotation_clip=False, linespacing=1.1)
+        head = ax.annotate(
+            title,
+            (cx, top),
+            xytext=(0, 30),
+            textcoords="offset points",
+            ha="center",
+            va="bottom",
+            fontsize=_FONT,
+            fontweight="bold",
+            color=COLOURS["ink"],
+            annotation_clip=False,
+            linespacing=1.1,
+        )
         fit_width(head, (width - 0.1) * fig.dpi, fig.canvas.get_renderer())
         headers.append(head)
-        headers.append(ax.annotate(sub, (cx, top), xytext=(0, 14), textcoords="offset points", ha="center",
-                                   va="bottom", fontsize=small, color=COLOURS["muted"], annotation_clip=False))
+        headers.append(
+            ax.annotate(
+                sub,
+                (cx, top),
+                xytext=(0, 14),
+                textcoords="offset points",
+                ha="center",
+                va="bottom",
+                fontsize=small,
+                color=COLOURS["muted"],
+                annotation_clip=False,
+            )
+        )
 
     sticks: list[Stick] = []
     labels = []
@@ -438,53 +480,117 @@ def _draw_pattern(phases, units, columns, bands, content, centres, top, scale, f
                 length = 0.12 + 0.075 * dim
                 y_first = y
                 for _ in range(count):
-                    (line,) = ax.plot([x0, x0 + length], [y, y], color=COLOURS["ink"], linewidth=1.6,
-                                      solid_capstyle="butt", zorder=3)
+                    (line,) = ax.plot(
+                        [x0, x0 + length], [y, y], color=COLOURS["ink"], linewidth=1.6, solid_capstyle="butt", zorder=3
+                    )
                     sticks.append(Stick(name, b.species, b.mode, species, dim, ir, raman, line))
                     y -= _STICK_GAP_PT * pt
                 y_mid = (y_first + y + _STICK_GAP_PT) / 2
                 y = y + _STICK_GAP_PT - _GROUP_GAP_PT
                 text = (f"{count}" if count > 1 else "") + mathtext(species)
-                lab = ax.text(x0 + 0.58, y_mid, text, ha="left", va="center_baseline", fontsize=small,
-                              color=COLOURS["ink"], zorder=3)
+                lab = ax.text(
+                    x0 + 0.58,
+                    y_mid,
+                    text,
+                    ha="left",
+                    va="center_baseline",
+                    fontsize=small,
+                    color=COLOURS["ink"],
+                    zorder=3,
+                )
                 labels.append((name, b.species, species, lab))
                 mx = x0 + 0.58 + (0.42 if count > 1 else 0.32)
                 for kind, on in (("ir", ir), ("raman", raman)):
                     if not on:
                         continue
                     st = ACTIVITY_STYLE[kind]
-                    (m,) = ax.plot([mx], [y_mid], linestyle="none", marker=st["marker"], markersize=4.6,
-                                   markerfacecolor=st["face"], markeredgecolor=st["edge"], markeredgewidth=1.0,
-                                   zorder=4)
+                    (m,) = ax.plot(
+                        [mx],
+                        [y_mid],
+                        linestyle="none",
+                        marker=st["marker"],
+                        markersize=4.6,
+                        markerfacecolor=st["face"],
+                        markeredgecolor=st["edge"],
+                        markeredgewidth=1.0,
+                        zorder=4,
+                    )
                     marks.append((name, b.species, kind, m))
                     mx += 0.1
             ends.append((x0, x0 + 0.58 + 0.62))
         # dotted guides between the columns at the cluster centre
         for k in range(len(row) - 1):
-            ax.plot([ends[k][1] - 0.02, ends[k + 1][0] - 0.05], [yc, yc], color=COLOURS["guide"], linewidth=0.8,
-                    linestyle=(0, (1, 2)), zorder=1)
+            ax.plot(
+                [ends[k][1] - 0.02, ends[k + 1][0] - 0.05],
+                [yc, yc],
+                color=COLOURS["guide"],
+                linewidth=0.8,
+                linestyle=(0, (1, 2)),
+                zorder=1,
+            )
         if b.mode is not None:
-            ax.text(0.08, yc, _mode_mathtext(b.mode), ha="left", va="center_baseline", fontsize=small,
-                    color=COLOURS["muted"])
+            ax.text(
+                0.08,
+                yc,
+                _mode_mathtext(b.mode),
+                ha="left",
+                va="center_baseline",
+                fontsize=small,
+                color=COLOURS["muted"],
+            )
             if scale is not None:
                 lo, hi = scale
                 yt = (b.wavenumber - lo) / (hi - lo) * top
-                ax.plot([0.0, 0.04, 0.06], [yt, yt, yc], color=COLOURS["guide"], linewidth=0.8, zorder=1,
-                        clip_on=False)
+                if abs(yt - yc) > 2.0:  # the cluster was moved away from its wavenumber: lead back to it
+                    ax.plot(
+                        [0.0, 0.04, 0.06], [yt, yt, yc], color=COLOURS["guide"], linewidth=0.8, zorder=1, clip_on=False
+                    )
 
     handles = [
-        Line2D([], [], linestyle="none", marker=ACTIVITY_STYLE[k]["marker"], markersize=5,
-               markerfacecolor=ACTIVITY_STYLE[k]["face"], markeredgecolor=ACTIVITY_STYLE[k]["edge"],
-               markeredgewidth=1.0, label=ACTIVITY_STYLE[k]["label"]) for k in ("ir", "raman")
+        Line2D(
+            [],
+            [],
+            linestyle="none",
+            marker=ACTIVITY_STYLE[k]["marker"],
+            markersize=5,
+            markerfacecolor=ACTIVITY_STYLE[k]["face"],
+            markeredgecolor=ACTIVITY_STYLE[k]["edge"],
+            markeredgewidth=1.0,
+            label=ACTIVITY_STYLE[k]["label"],
+        )
+        for k in ("ir", "raman")
     ]
     handles.append(Line2D([], [], color=COLOURS["ink"], linewidth=1.6, label="one frequency (length: degeneracy)"))
-    fig.legend(handles=handles, loc="lower center", ncol=3, frameon=False, fontsize=small * 0.95,
-               bbox_to_anchor=(0.5, 0.2 / H), handlelength=1.6, columnspacing=1.4)
-    headers.append(fig.text(0.5, 0.06 / H, "order within a cluster is arbitrary (no frequencies are predicted)",
-                            ha="center", va="bottom", fontsize=small * 0.85, color=COLOURS["muted"]))
+    fig.legend(
+        handles=handles,
+        loc="lower center",
+        ncol=3,
+        frameon=False,
+        fontsize=small * 0.95,
+        bbox_to_anchor=(0.5, 0.2 / H),
+        handlelength=1.6,
+        columnspacing=1.4,
+    )
+    headers.append(
+        fig.text(
+            0.5,
+            0.06 / H,
+            "order within a cluster is arbitrary (no frequencies are predicted)",
+            ha="center",
+            va="bottom",
+            fontsize=small * 0.85,
+            color=COLOURS["muted"],
+        )
+    )
 
     return LinePatternArtists(
-        figure=fig, ax=ax, unit=u0.formula, columns=tuple(columns),
-        bands=tuple((b.species, b.mode, b.wavenumber) for b in bands), sticks=tuple(sticks), labels=tuple(labels),
-        headers=tuple(headers), marks=tuple(marks),
+        figure=fig,
+        ax=ax,
+        unit=u0.formula,
+        columns=tuple(columns),
+        bands=tuple((b.species, b.mode, b.wavenumber) for b in bands),
+        sticks=tuple(sticks),
+        labels=tuple(labels),
+        headers=tuple(headers),
+        marks=tuple(marks),
     )

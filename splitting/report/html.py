@@ -54,8 +54,9 @@ def _rep_html(rep: Representation) -> str:
 
 
 def _axes_html(axes: Mapping[str, str]) -> str:
-    return ", ".join(f'<span class="nowrap"><i>{k}</i> &#8741; {escape(axes[k])}</span>'
-                     for k in ("x", "y", "z") if k in axes)
+    return ", ".join(
+        f'<span class="nowrap"><i>{k}</i> &#8741; {escape(axes[k])}</span>' for k in ("x", "y", "z") if k in axes
+    )
 
 
 def _point_group_hm(symbol: str) -> str:
@@ -63,17 +64,20 @@ def _point_group_hm(symbol: str) -> str:
     return re.sub(r"-(\d)", r'<span class="bar">\1</span>', escape(symbol))
 
 
-def _table(headers: Sequence[str], rows: Sequence[Sequence[str]], *, numeric: Sequence[int] = (),
-           caption: str | None = None) -> str:
+def _table(
+    headers: Sequence[str], rows: Sequence[Sequence[str]], *, numeric: Sequence[int] = (), caption: str | None = None
+) -> str:
     """HTML table; cells are already HTML."""
     head = "".join(f'<th scope="col"{" class=num" if i in numeric else ""}>{h}</th>' for i, h in enumerate(headers))
     body = []
     for r in rows:
-        cells = "".join(f'<td{" class=num" if i in numeric else ""}>{c}</td>' for i, c in enumerate(r))
+        cells = "".join(f"<td{' class=num' if i in numeric else ''}>{c}</td>" for i, c in enumerate(r))
         body.append(f"<tr>{cells}</tr>")
     cap = f"<caption>{caption}</caption>" if caption else ""
-    return (f'<div class="table-wrap"><table>{cap}<thead><tr>{head}</tr></thead>'
-            f"<tbody>{''.join(body)}</tbody></table></div>")
+    return (
+        f'<div class="table-wrap"><table>{cap}<thead><tr>{head}</tr></thead>'
+        f"<tbody>{''.join(body)}</tbody></table></div>"
+    )
 
 
 class _Figures:
@@ -94,18 +98,27 @@ def _facts(pred: CrystalPrediction) -> str:
     centro = "centrosymmetric" if pred.centrosymmetric else "non-centrosymmetric"
     items = [
         ("structure", escape(pred.source)),
-        ("cell", f"{formula_html(pred.formula)} (primitive cell, {pred.atoms_primitive} atoms; "
-                 f"{pred.atoms_input} as given)"),
-        ("space group", f"{hermann_mauguin_html(sg.symbol)} (No. {sg.number}, {schoenflies_html(sg.schoenflies)}), "
-                        f"{escape(sg.crystal_system)}; distance tolerance {sg.tolerance:g} &#197;"),
+        (
+            "cell",
+            f"{formula_html(pred.formula)} (primitive cell, {pred.atoms_primitive} atoms; {pred.atoms_input} as given)",
+        ),
+        (
+            "space group",
+            f"{hermann_mauguin_html(sg.symbol)} (No. {sg.number}, {schoenflies_html(sg.schoenflies)}), "
+            f"{escape(sg.crystal_system)}; distance tolerance {sg.tolerance:g} &#197;",
+        ),
         ("factor group", f"{schoenflies_html(pred.factor_group)} ({_point_group_hm(sg.point_group)}), {centro}"),
-        ("axes of the labels", f"{_axes_html(pred.factor_axes)} "
-                               "<span class=muted>(species, dipole and polarisability components refer to these "
-                               "crystal directions)</span>"),
+        (
+            "axes of the labels",
+            f"{_axes_html(pred.factor_axes)} "
+            "<span class=muted>(species, dipole and polarisability components refer to these "
+            "crystal directions)</span>",
+        ),
     ]
     if sg.other_tolerances:
-        tried = "; ".join(f"{t:g} &#197; &rarr; {hermann_mauguin_html(sym)} (No. {n})"
-                          for t, n, sym in sg.other_tolerances)
+        tried = "; ".join(
+            f"{t:g} &#197; &rarr; {hermann_mauguin_html(sym)} (No. {n})" for t, n, sym in sg.other_tolerances
+        )
         items.append(("other tolerances", tried))
     rows = "".join(f"<dt>{k}</dt><dd>{v}</dd>" for k, v in items)
     return f'<dl class="facts">{rows}</dl>'
@@ -114,39 +127,76 @@ def _facts(pred: CrystalPrediction) -> str:
 def _units(pred: CrystalPrediction) -> str:
     rows = []
     for u in pred.units:
-        rows.append([
-            formula_html(u.formula), escape(u.kind), schoenflies_html(u.free_group) if u.free_group else "&ndash;",
-            escape(u.wyckoff), escape(u.site_symmetry), schoenflies_html(u.site_group), str(u.count),
-            f"{u.max_deviation:.3f}" if u.free_group else "&ndash;", _axes_html(u.site_axes),
-        ])
-    return _table(["unit", "kind", "free group", "Wyckoff", "site symmetry", "site group", "Z (primitive)",
-                   "deviation / &#197;", "site axes"], rows, numeric=(6, 7),
-                  caption="Units: Z is the number in the primitive cell; deviation is the largest displacement "
-                          "of an atom from the ideal free-unit geometry.")
+        rows.append(
+            [
+                formula_html(u.formula),
+                escape(u.kind),
+                schoenflies_html(u.free_group) if u.free_group else "&ndash;",
+                escape(u.wyckoff),
+                escape(u.site_symmetry),
+                schoenflies_html(u.site_group),
+                str(u.count),
+                f"{u.max_deviation:.3f}" if u.free_group else "&ndash;",
+                _axes_html(u.site_axes),
+            ]
+        )
+    return _table(
+        [
+            "unit",
+            "kind",
+            "free group",
+            "Wyckoff",
+            "site symmetry",
+            "site group",
+            "Z (primitive)",
+            "deviation / &#197;",
+            "site axes",
+        ],
+        rows,
+        numeric=(6, 7),
+        caption="Units: Z is the number in the primitive cell; deviation is the largest displacement "
+        "of an atom from the ideal free-unit geometry.",
+    )
 
 
 def _correlation(pred: CrystalPrediction, u: UnitOrbit, figures: _Figures) -> str:
     from ..plot.correlation import correlation_diagram
 
-    rows = [[species_html(c.free), str(c.free_dimension), str(c.modes), _rep_html(c.site), _rep_html(c.factor)]
-            for c in u.correlation]
-    table = _table([f"free ({schoenflies_html(u.free_group or 'C1')})", "dim", "fundamentals",
-                    f"site {escape(u.wyckoff)} ({schoenflies_html(u.site_group)})",
-                    f"factor group ({schoenflies_html(pred.factor_group)})"], rows, numeric=(1, 2),
-                   caption="Site and factor-group components of one fundamental of each free species "
-                           "(all units of the orbit together in the factor group).")
+    rows = [
+        [species_html(c.free), str(c.free_dimension), str(c.modes), _rep_html(c.site), _rep_html(c.factor)]
+        for c in u.correlation
+    ]
+    table = _table(
+        [
+            f"free ({schoenflies_html(u.free_group or 'C1')})",
+            "dim",
+            "fundamentals",
+            f"site {escape(u.wyckoff)} ({schoenflies_html(u.site_group)})",
+            f"factor group ({schoenflies_html(pred.factor_group)})",
+        ],
+        rows,
+        numeric=(1, 2),
+        caption="Site and factor-group components of one fundamental of each free species "
+        "(all units of the orbit together in the factor group).",
+    )
     art = correlation_diagram(pred, u)
     svg = figures.svg(art.figure)
-    caption = (f"Correlation diagram of {formula_html(u.formula)}: free group {schoenflies_html(u.free_group)} "
-               f"&rarr; site group {schoenflies_html(u.site_group)} (Wyckoff {escape(u.wyckoff)}) &rarr; factor "
-               f"group {schoenflies_html(pred.factor_group)}. {_MARK_IR} IR active, {_MARK_RAMAN} Raman active; "
-               "small grey numbers give the degeneracy, numbers on lines the multiplicity.")
-    lattice = (f"<p>Lattice modes from {formula_html(u.formula)}: translations {_rep_html(u.translations)}; "
-               f"librations {_rep_html(u.librations)}.</p>")
+    caption = (
+        f"Correlation diagram of {formula_html(u.formula)}: free group {schoenflies_html(u.free_group)} "
+        f"&rarr; site group {schoenflies_html(u.site_group)} (Wyckoff {escape(u.wyckoff)}) &rarr; factor "
+        f"group {schoenflies_html(pred.factor_group)}. {_MARK_IR} IR active, {_MARK_RAMAN} Raman active; "
+        "small grey numbers give the degeneracy, numbers on lines the multiplicity."
+    )
+    lattice = (
+        f"<p>Lattice modes from {formula_html(u.formula)}: translations {_rep_html(u.translations)}; "
+        f"librations {_rep_html(u.librations)}.</p>"
+    )
     sa = _axes_html(u.site_axes)
     axes = f"<p class=muted>Site-group labels use {sa}.</p>" if sa else ""
-    return (f"<h3>Correlation: {formula_html(u.formula)}</h3>{axes}{table}"
-            f'<figure class="diagram">{svg}<figcaption>{caption}</figcaption></figure>{lattice}')
+    return (
+        f"<h3>Correlation: {formula_html(u.formula)}</h3>{axes}{table}"
+        f'<figure class="diagram">{svg}<figcaption>{caption}</figcaption></figure>{lattice}'
+    )
 
 
 def _species(pred: CrystalPrediction) -> str:
@@ -154,20 +204,35 @@ def _species(pred: CrystalPrediction) -> str:
     for s in pred.species:
         marks = (_MARK_IR if s.ir else "") + (_MARK_RAMAN if s.raman else "")
         activity = escape(s.activity) + (" (polar)" if s.polar else "")
-        rows.append([species_html(s.label), str(s.dimension), str(s.internal), str(s.translational),
-                     str(s.librational), str(s.acoustic), str(s.optical), f"{marks} {activity}",
-                     escape(", ".join(s.ir)) or "&ndash;", escape(", ".join(s.raman)) or "&ndash;"])
-    table = _table(["species", "dim", "internal", "transl.", "librat.", "acoustic", "optical", "activity",
-                    "IR", "Raman"], rows, numeric=(1, 2, 3, 4, 5, 6),
-                   caption="Factor-group species at k = 0; counts are distinct frequencies (optical = internal "
-                           "+ translational + librational; acoustic modes are not optical).")
+        rows.append(
+            [
+                species_html(s.label),
+                str(s.dimension),
+                str(s.internal),
+                str(s.translational),
+                str(s.librational),
+                str(s.acoustic),
+                str(s.optical),
+                f"{marks} {activity}",
+                escape(", ".join(s.ir)) or "&ndash;",
+                escape(", ".join(s.raman)) or "&ndash;",
+            ]
+        )
+    table = _table(
+        ["species", "dim", "internal", "transl.", "librat.", "acoustic", "optical", "activity", "IR", "Raman"],
+        rows,
+        numeric=(1, 2, 3, 4, 5, 6),
+        caption="Factor-group species at k = 0; counts are distinct frequencies (optical = internal "
+        "+ translational + librational; acoustic modes are not optical).",
+    )
     t = pred.totals()
     lines = [
         f"&Gamma;<sub>3N</sub> = {_rep_html(pred.gamma_3n)} (whole-cell count, checked against the sum over units); "
         f"acoustic: {_rep_html(pred.acoustic)}.",
         f"<strong>{t['optical']}</strong> optical frequencies: <strong>{t['ir']}</strong> IR-active, "
         f"<strong>{t['raman']}</strong> Raman-active, <strong>{t['silent']}</strong> silent"
-        + (f", {t['polar']} polar (split into LO and TO)" if t["polar"] else "") + ".",
+        + (f", {t['polar']} polar (split into LO and TO)" if t["polar"] else "")
+        + ".",
     ]
     if pred.centrosymmetric:
         lines.append("Centrosymmetric factor group: no frequency is both IR and Raman active (mutual exclusion).")
@@ -177,13 +242,14 @@ def _species(pred: CrystalPrediction) -> str:
 
 
 def _phase(index: int, label: str, pred: CrystalPrediction, figures: _Figures) -> str:
-    out = [f'<section class="phase" id="phase-{index}">',
-           f"<h2>{escape(label)}</h2>", _facts(pred)]
+    out = [f'<section class="phase" id="phase-{index}">', f"<h2>{escape(label)}</h2>", _facts(pred)]
     for w in pred.warnings:
         out.append(f'<div class="warning" role="note"><strong>Warning.</strong>{escape(w)}</div>')
     if pred.space_group.tolerance_sensitive:
-        out.append('<div class="warning" role="note"><strong>Warning.</strong>another distance tolerance gives '
-                   "another space group; check the structure.</div>")
+        out.append(
+            '<div class="warning" role="note"><strong>Warning.</strong>another distance tolerance gives '
+            "another space group; check the structure.</div>"
+        )
     out.append("<h3>Units and sites</h3>")
     out.append(_units(pred))
     for u in pred.units:
@@ -194,8 +260,9 @@ def _phase(index: int, label: str, pred: CrystalPrediction, figures: _Figures) -
     return "\n".join(out)
 
 
-def _across(predictions: Sequence[tuple[str, CrystalPrediction]], modes: Mapping[str, ModeTable],
-            figures: _Figures) -> str:
+def _across(
+    predictions: Sequence[tuple[str, CrystalPrediction]], modes: Mapping[str, ModeTable], figures: _Figures
+) -> str:
     from ..plot.lines import line_pattern
 
     shared = None
@@ -204,24 +271,32 @@ def _across(predictions: Sequence[tuple[str, CrystalPrediction]], modes: Mapping
         shared = formulas if shared is None else shared & formulas
     out = []
     for formula in sorted(shared or ()):
-        groups = {next(u for u in p.units if u.formula == formula and u.correlation).free_group
-                  for _, p in predictions}
+        groups = {next(u for u in p.units if u.formula == formula and u.correlation).free_group for _, p in predictions}
         if len(groups) != 1:
             continue
         art = line_pattern(predictions, formula, modes=modes.get(formula))
-        caption = (f"Bands of {formula_html(formula)} across the phases: each stick is one distinct frequency of "
-                   "the factor group (length grows with the degeneracy); "
-                   f"{_MARK_IR} IR active, {_MARK_RAMAN} Raman active. No frequencies are predicted: the order "
-                   "of the sticks within a cluster is arbitrary.")
-        out.append(f"<h3>{formula_html(formula)}</h3><figure class=pattern>{figures.svg(art.figure)}"
-                   f"<figcaption>{caption}</figcaption></figure>")
+        caption = (
+            f"Bands of {formula_html(formula)} across the phases: each stick is one distinct frequency of "
+            "the factor group (length grows with the degeneracy); "
+            f"{_MARK_IR} IR active, {_MARK_RAMAN} Raman active. No frequencies are predicted: the order "
+            "of the sticks within a cluster is arbitrary."
+        )
+        out.append(
+            f"<h3>{formula_html(formula)}</h3><figure class=pattern>{figures.svg(art.figure)}"
+            f"<figcaption>{caption}</figcaption></figure>"
+        )
     if not out:
         return ""
-    return ('<section class="phase" id="across"><h2>Across the phases</h2>' + "\n".join(out) + "</section>")
+    return '<section class="phase" id="across"><h2>Across the phases</h2>' + "\n".join(out) + "</section>"
 
 
-def html_report(predictions: Sequence[tuple[str, CrystalPrediction]], *, title: str | None = None,
-                notes: Sequence[str] = (), modes: Mapping[str, ModeTable] | None = None) -> str:
+def html_report(
+    predictions: Sequence[tuple[str, CrystalPrediction]],
+    *,
+    title: str | None = None,
+    notes: Sequence[str] = (),
+    modes: Mapping[str, ModeTable] | None = None,
+) -> str:
     """The whole report as one self-contained HTML document.
 
     Parameters
@@ -255,42 +330,51 @@ def html_report(predictions: Sequence[tuple[str, CrystalPrediction]], *, title: 
     if across:
         toc += '<li><a href="#across">Across the phases</a></li>'
     note_html = ("<ul class=notes>" + "".join(f"<li>{escape(n)}</li>" for n in notes) + "</ul>") if notes else ""
-    legend = (f'<p class="legend">{_MARK_IR} IR active &nbsp; {_MARK_RAMAN} Raman active. Species labels follow '
-              "Mulliken's conventions in the axes stated for each phase; counts are at the centre of the "
-              "Brillouin zone (k = 0).</p>")
-    return "\n".join([
-        "<!DOCTYPE html>",
-        '<html lang="en">',
-        "<head>",
-        '<meta charset="utf-8">',
-        '<meta name="viewport" content="width=device-width, initial-scale=1">',
-        '<meta name="generator" content="splitting">',
-        f"<title>{escape(heading)}</title>",
-        f"<style>\n{_css()}</style>",
-        "</head>",
-        "<body>",
-        f"<header><h1>{escape(heading)}</h1>",
-        f'<p class="meta">Predicted with splitting {escape(_version())} on {date.today().isoformat()}; '
-        f"{len(predictions)} phase{'s' if len(predictions) != 1 else ''}.</p>",
-        note_html,
-        legend,
-        f'<nav class="contents" aria-label="Contents"><h2>Contents</h2><ol>{toc}</ol></nav>',
-        "</header>",
-        "<main>",
-        *phases,
-        across,
-        "</main>",
-        "<footer>Self-contained report: styles and figures are inline; no scripts and no network access "
-        "are needed.</footer>",
-        "</body>",
-        "</html>",
-        "",
-    ])
+    legend = (
+        f'<p class="legend">{_MARK_IR} IR active &nbsp; {_MARK_RAMAN} Raman active. Species labels follow '
+        "Mulliken's conventions in the axes stated for each phase; counts are at the centre of the "
+        "Brillouin zone (k = 0).</p>"
+    )
+    return "\n".join(
+        [
+            "<!DOCTYPE html>",
+            '<html lang="en">',
+            "<head>",
+            '<meta charset="utf-8">',
+            '<meta name="viewport" content="width=device-width, initial-scale=1">',
+            '<meta name="generator" content="splitting">',
+            f"<title>{escape(heading)}</title>",
+            f"<style>\n{_css()}</style>",
+            "</head>",
+            "<body>",
+            f"<header><h1>{escape(heading)}</h1>",
+            f'<p class="meta">Predicted with splitting {escape(_version())} on {date.today().isoformat()}; '
+            f"{len(predictions)} phase{'s' if len(predictions) != 1 else ''}.</p>",
+            note_html,
+            legend,
+            f'<nav class="contents" aria-label="Contents"><h2>Contents</h2><ol>{toc}</ol></nav>',
+            "</header>",
+            "<main>",
+            *phases,
+            across,
+            "</main>",
+            "<footer>Self-contained report: styles and figures are inline; no scripts and no network access "
+            "are needed.</footer>",
+            "</body>",
+            "</html>",
+            "",
+        ]
+    )
 
 
-def write_report(path: str | os.PathLike[str], predictions: Sequence[tuple[str, CrystalPrediction]], *,
-                 title: str | None = None, notes: Sequence[str] = (),
-                 modes: Mapping[str, ModeTable] | None = None) -> Path:
+def write_report(
+    path: str | os.PathLike[str],
+    predictions: Sequence[tuple[str, CrystalPrediction]],
+    *,
+    title: str | None = None,
+    notes: Sequence[str] = (),
+    modes: Mapping[str, ModeTable] | None = None,
+) -> Path:
     """Write :func:`html_report` to ``path`` atomically (the suffix should be ``.html``).
 
     Raises

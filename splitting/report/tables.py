@@ -36,8 +36,16 @@ __all__ = ["TABLE_FORMATS", "correlation_table", "escape_latex", "render_table",
 TABLE_FORMATS = ("markdown", "latex", "csv")
 
 _LATEX_SPECIAL = {
-    "\\": r"\textbackslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "#": r"\#", "_": r"\_",
-    "{": r"\{", "}": r"\}", "~": r"\textasciitilde{}", "^": r"\textasciicircum{}",
+    "\\": r"\textbackslash{}",
+    "&": r"\&",
+    "%": r"\%",
+    "$": r"\$",
+    "#": r"\#",
+    "_": r"\_",
+    "{": r"\{",
+    "}": r"\}",
+    "~": r"\textasciitilde{}",
+    "^": r"\textasciicircum{}",
     "²": r"\textsuperscript{2}",
 }
 
@@ -66,8 +74,14 @@ def _check(fmt: str) -> None:
         raise InputError(f"unknown table format {fmt!r}; use one of {', '.join(TABLE_FORMATS)}")
 
 
-def render_table(headers: Sequence[str], rows: Sequence[Sequence[object]], fmt: str, *,
-                 align: str | None = None, caption: str | None = None) -> str:
+def render_table(
+    headers: Sequence[str],
+    rows: Sequence[Sequence[object]],
+    fmt: str,
+    *,
+    align: str | None = None,
+    caption: str | None = None,
+) -> str:
     """Render rows as a Markdown, LaTeX (booktabs) or CSV table.
 
     Parameters
@@ -99,16 +113,22 @@ def render_table(headers: Sequence[str], rows: Sequence[Sequence[object]], fmt: 
         return str(c) if isinstance(c, _Cell) else esc(str(c))
 
     if fmt == "markdown":
-        out = ["| " + " | ".join(_escape_markdown(h) for h in headers) + " |",
-               "| " + " | ".join("---" for _ in headers) + " |"]
+        out = [
+            "| " + " | ".join(_escape_markdown(h) for h in headers) + " |",
+            "| " + " | ".join("---" for _ in headers) + " |",
+        ]
         out += ["| " + " | ".join(cell(c, _escape_markdown) for c in r) + " |" for r in rows]
         return "\n".join(out)
     spec = align or ("l" + "c" * (len(headers) - 1))
     out = []
     if caption:
         out.append(f"% {caption}")
-    out += [rf"\begin{{tabular}}{{{spec}}}", r"\toprule",
-            " & ".join(cell(h, escape_latex) for h in headers) + r" \\", r"\midrule"]
+    out += [
+        rf"\begin{{tabular}}{{{spec}}}",
+        r"\toprule",
+        " & ".join(cell(h, escape_latex) for h in headers) + r" \\",
+        r"\midrule",
+    ]
     out += [" & ".join(cell(c, escape_latex) for c in r) + r" \\" for r in rows]
     out += [r"\bottomrule", r"\end{tabular}"]
     return "\n".join(out)
@@ -157,13 +177,23 @@ def species_table(prediction: CrystalPrediction, fmt: str = "markdown") -> str:
     headers = ["species", "dim", "internal", "translational", "librational", "acoustic", "optical", "IR", "Raman"]
     rows = []
     for s in prediction.species:
-        rows.append([_species(s.label, fmt), s.dimension, s.internal, s.translational, s.librational, s.acoustic,
-                     s.optical, _join(s.ir, fmt), _join(s.raman, fmt)])
+        rows.append(
+            [
+                _species(s.label, fmt),
+                s.dimension,
+                s.internal,
+                s.translational,
+                s.librational,
+                s.acoustic,
+                s.optical,
+                _join(s.ir, fmt),
+                _join(s.raman, fmt),
+            ]
+        )
     return render_table(headers, rows, fmt, align="lrrrrrrll")
 
 
-def correlation_table(prediction: CrystalPrediction, unit: str | UnitOrbit | None = None,
-                      fmt: str = "markdown") -> str:
+def correlation_table(prediction: CrystalPrediction, unit: str | UnitOrbit | None = None, fmt: str = "markdown") -> str:
     """Correlation of one unit: free species, number of fundamentals, site and factor-group species.
 
     The site and factor columns are for one fundamental of the free species (all units of
@@ -187,14 +217,25 @@ def correlation_table(prediction: CrystalPrediction, unit: str | UnitOrbit | Non
     _check(fmt)
     u = select_unit(prediction, unit)
     free, site = u.free_group or "C1", u.site_group
-    headers = [f"free ({free})", "dim", "modes", f"site {u.wyckoff} ({site})",
-               f"factor group ({prediction.factor_group})"]
+    headers = [
+        f"free ({free})",
+        "dim",
+        "modes",
+        f"site {u.wyckoff} ({site})",
+        f"factor group ({prediction.factor_group})",
+    ]
     if fmt == "latex":
         from ..plot.mulliken import schoenflies_latex
 
-        headers = [_Cell(f"free ({schoenflies_latex(free)})"), "dim", "modes",
-                   _Cell(f"site {escape_latex(u.wyckoff)} ({schoenflies_latex(site)})"),
-                   _Cell(f"factor group ({schoenflies_latex(prediction.factor_group)})")]
-    rows = [[_species(c.free, fmt), c.free_dimension, c.modes, _rep(c.site, fmt), _rep(c.factor, fmt)]
-            for c in u.correlation]
+        headers = [
+            _Cell(f"free ({schoenflies_latex(free)})"),
+            "dim",
+            "modes",
+            _Cell(f"site {escape_latex(u.wyckoff)} ({schoenflies_latex(site)})"),
+            _Cell(f"factor group ({schoenflies_latex(prediction.factor_group)})"),
+        ]
+    rows = [
+        [_species(c.free, fmt), c.free_dimension, c.modes, _rep(c.site, fmt), _rep(c.factor, fmt)]
+        for c in u.correlation
+    ]
     return render_table(headers, rows, fmt, align="lrrll")
