@@ -32,6 +32,9 @@ def atomic_write_bytes(path: str | os.PathLike[str], data: bytes) -> Path:
     try:
         with os.fdopen(fd, "wb") as handle:
             handle.write(data)
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)  # as an ordinary new file would be
         os.replace(tmp, target)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)

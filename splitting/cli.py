@@ -162,6 +162,64 @@ def _explain(args: argparse.Namespace) -> int:
     return code
 
 
+def _phase_predictions(args: argparse.Namespace) -> list[tuple[str, object]]:
+    """Ordered predictions for every file; a disordered file contributes its one-orientation model."""
+    from .phases.compare import load_phase
+
+    labels = args.labels or [os.path.basename(f) for f in args.files]
+    if len(labels) != len(args.files):
+        raise InputError(f"{len(labels)} labels for {len(args.files)} files")
+    opts = _options(args)
+    out = []
+    for f, lab in zip(args.files, labels, strict=True):
+        phase = load_phase(f, lab, opts)
+        out.append((lab if phase.ordered else f"{lab} (one-orientation model)", phase.crystal))
+    return out
+
+
+@_command("draw")
+def _draw(args: argparse.Namespace) -> int:
+    from .plot import correlation_diagram, line_pattern, phase_correlation_diagram, write_figure
+
+    suffix = os.path.splitext(args.output)[1].lower()
+    if suffix not in (".svg", ".pdf", ".png"):
+        raise InputError(f"{args.output}: the figure type comes from the suffix: .svg, .pdf or .png")
+    phases = _phase_predictions(args)
+    unit = args.unit
+    if unit is None:
+        molecular = [u.formula for u in phases[0][1].units if u.correlation]
+        if not molecular:
+            raise InputError(f"{args.files[0]}: no molecular unit to draw")
+        unit = molecular[0]
+    if args.kind == "lines":
+        from .spectra.catalogue import find_table
+
+        try:
+            modes = find_table(unit)
+        except SplittingError:
+            modes = None
+        art = line_pattern(phases, unit, band=args.band, modes=modes)
+    elif len(phases) > 1:
+        art = phase_correlation_diagram(phases, unit, band=args.band)
+    else:
+        art = correlation_diagram(phases[0][1], unit, band=args.band)
+    write_figure(art.figure, args.output)
+    print(f"figure written to {args.output}")
+    return 0
+
+
+@_command("report")
+def _report(args: argparse.Namespace) -> int:
+    from .report.html import write_report
+
+    if not args.output.lower().endswith((".html", ".htm")):
+        raise InputError(f"{args.output}: the report is an HTML file; give a name ending in .html")
+    phases = _phase_predictions(args)
+    write_report(args.output, phases, title=args.title, notes=args.note or ())
+    print(f"report written to {args.output}")
+    return 0
+
+
 @_command("demo")
 def _demo(args: argparse.Namespace) -> int:
     from .demo import SCENARIO, run_demo
@@ -267,6 +325,25 @@ def build_parser() -> argparse.ArgumentParser:
     ex.add_argument("-o", "--output", metavar="FIGURE", help="write a figure (.svg, .pdf or .png)")
     _crystal_options(ex)
     ex.add_argument("--json", action="store_true", help="print JSON instead of text")
+
+    dr = sub.add_parser("draw", help="correlation diagram (one file), phases side by side (several files) or "
+                        "line pattern (--kind lines); SVG, PDF or PNG by suffix")
+    dr.add_argument("files", nargs="+", help="structure file(s), upper phase first")
+    dr.add_argument("-o", "--output", required=True, metavar="FIGURE", help="output .svg, .pdf or .png")
+    dr.add_argument("--unit", metavar="FORMULA", help="which unit (default: the first molecular unit)")
+    dr.add_argument("--band", metavar="SPECIES", help="one free-unit species only, e.g. T1u")
+    dr.add_argument("--kind", choices=["correlation", "lines"], default="correlation",
+                    help="correlation diagram (default) or the predicted line pattern of each phase")
+    dr.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, one per file")
+    _crystal_options(dr)
+
+    rp = sub.add_parser("report", help="one self-contained HTML page with the whole prediction, tables and figures")
+    rp.add_argument("files", nargs="+", help="structure file(s), upper phase first")
+    rp.add_argument("-o", "--output", required=True, metavar="HTML", help="output .html file")
+    rp.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, one per file")
+    rp.add_argument("--title", help="title of the report")
+    rp.add_argument("--note", action="append", metavar="TEXT", help="a note printed at the top; repeatable")
+    _crystal_options(rp)
 
     de = sub.add_parser("demo", help="run the bundled scenario (a made-up lab's low-temperature run) end to end")
     de.add_argument("--out", default="demo-output", help="folder for the report, figures and tables")

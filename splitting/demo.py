@@ -19,7 +19,7 @@ from pathlib import Path
 from ._io import atomic_write_text
 from .errors import DataError
 
-__all__ = ["run_demo", "DemoOutputs", "SCENARIO"]
+__all__ = ["SCENARIO", "DemoOutputs", "run_demo"]
 
 SCENARIO = (
     "Harbour Bay cryo-spectroscopy group (a made-up lab): solid C60, cooled from 300 K to 90 K through the "
@@ -113,10 +113,16 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
     # 2. which ordered phase would the line counts point to?
     ir_peaks = _data("c60_90K_ir_peaks.csv")
     raman_peaks = _data("c60_90K_raman_peaks.csv")
-    t1u = [m for m in table.modes if m.species == "T1u"]
-    counts = [n for n in count_components(read_peaks(ir_peaks), t1u, window_cm1=15.0).values() if n]
-    typical = max(set(counts), key=counts.count)  # the count most T1u bands show
-    ranking = lower(model, opts, observed=(("T1u", "ir", typical),))
+    def typical(peaks: Path, species: str) -> int:
+        """The number of components most bands of one species show (window 15 cm-1)."""
+        modes = [m for m in table.modes if m.species == species]
+        counts = [n for n in count_components(read_peaks(peaks), modes, window_cm1=15.0).values() if n]
+        return max(set(counts), key=counts.count)
+
+    raman_list = read_peaks(raman_peaks)
+    observed = (("T1u", "ir", typical(ir_peaks, "T1u")), ("Ag", "raman", typical(raman_peaks, "Ag")),
+                ("lattice", "raman", sum(1 for p in raman_list.peaks if p.position_cm1 < 100)))
+    ranking = lower(model, opts, observed=observed)
     save_text("candidates.txt", lowering_text(ranking))
     save_json("candidates.json", ranking.to_dict())
     # 3. after the run: assign the (invented) 90 K lines
@@ -140,6 +146,7 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
             for r in explained),
         "Cryogens, class 3B/4 lasers and pressure cells are hazardous: follow your local rules (docs/safety.md).",
     ]
+    notes[1:1] = [f"300 K phase: {u.statement}" for u in seq.phases[0].disorder.units] if seq.phases[0].disorder else []
     report = folder / "report.html"
     write_report(report, [("300 K (one-orientation model)", warm_model), ("90 K", cold_pred)],
                  title="Harbour Bay C60 cooling run (demo scenario; invented data)", notes=notes)

@@ -166,7 +166,14 @@ class Candidate:
 
     def bands(self) -> list[BandState]:
         """Every band in this candidate."""
-        return Phase(self.space_group[1], self.prediction.source, self.prediction, None).bands()
+        return self._phase().bands()
+
+    def lattice(self) -> dict[str, object]:
+        """Optical lattice-mode counts of this candidate."""
+        return self._phase().lattice()
+
+    def _phase(self) -> Phase:
+        return Phase(self.space_group[1], self.prediction.source, self.prediction, None)
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
@@ -297,7 +304,12 @@ def _realise(cell: CellSymmetry, m: np.ndarray, ops: list[tuple[np.ndarray, np.n
 def parse_observed(items: list[str] | None) -> tuple[tuple[str, str, int], ...]:
     """Parse ``["T1u:ir=3", "Hg:raman=5"]`` into ``(("T1u", "ir", 3), ("Hg", "raman", 5))``.
 
-    A unit may be named: ``"C60/T1u:ir=3"``.
+    A unit may be named: ``"C60/T1u:ir=3"``; ``"lattice:raman=5"`` counts the optical lattice lines.
+
+    Examples
+    --------
+    >>> parse_observed(["T1u:ir=3", "lattice:raman=5"])
+    (('T1u', 'ir', 3), ('lattice', 'raman', 5))
     """
     out = []
     for item in items or []:
@@ -305,7 +317,7 @@ def parse_observed(items: list[str] | None) -> tuple[tuple[str, str, int], ...]:
             band, rest = item.split(":")
             tech, n = rest.split("=")
             tech = tech.strip().lower()
-            if tech not in ("ir", "raman", "total"):
+            if tech not in ("ir", "raman", "total") or (band.strip() == "lattice" and tech == "total"):
                 raise ValueError
             out.append((band.strip(), tech, int(n)))
         except ValueError:
@@ -313,9 +325,16 @@ def parse_observed(items: list[str] | None) -> tuple[tuple[str, str, int], ...]:
     return tuple(out)
 
 
-def _score(bands: list[BandState], observed: tuple[tuple[str, str, int], ...]) -> tuple[float, tuple[str, ...]]:
+def _score(bands: list[BandState], observed: tuple[tuple[str, str, int], ...], lattice: dict[str, object]
+           ) -> tuple[float, tuple[str, ...]]:
     score, reasons = 0.0, []
     for band, tech, n in observed:
+        if band == "lattice":
+            pred = sum(int(lattice[f"{kind}_{tech}"]) for kind in ("translational", "librational"))
+            if pred != n:
+                score += abs(pred - n)
+                reasons.append(f"lattice: predicts {pred} {tech} lattice line{'s' if pred != 1 else ''}, {n} observed")
+            continue
         unit, _, name = band.rpartition("/")
         matches = [b for b in bands if b.band == name and (not unit or b.unit == unit)]
         if not matches:
@@ -402,7 +421,7 @@ def lower(path: str | os.PathLike[str] | None = None, options: Options | None = 
     if observed:
         scored = []
         for c in cands:
-            s, reasons = _score(c.bands(), observed)
+            s, reasons = _score(c.bands(), observed, c.lattice())
             scored.append(replace(c, score=s, reasons=reasons))
         cands = sorted(scored, key=lambda c: (c.score, c.index, -c.space_group[0]))
     else:

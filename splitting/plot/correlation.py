@@ -252,87 +252,23 @@ def select_unit(prediction: CrystalPrediction, unit: str | UnitOrbit | None) -> 
     return unit
 
 
-def _relabelings(labels: Sequence[str]) -> list[dict[str, str]]:
-    """Permutations of labels that differ only in their numeric index (B1 <-> B2 ...)."""
-
-    def key(lab: str) -> str:
-        return "".join(ch for ch in lab if not ch.isdigit())
-
-    groups: dict[str, list[str]] = {}
-    for lab in labels:
-        groups.setdefault(key(lab), []).append(lab)
-    choices = [[dict(zip(g, p, strict=True)) for p in itertools.permutations(g)] for g in groups.values()]
-    out = []
-    for combo in itertools.product(*choices):
-        merged: dict[str, str] = {}
-        for part in combo:
-            merged.update(part)
-        out.append(merged)
-        if len(out) >= 5000:  # pragma: no cover - no point group has this many
-            break
-    return out
-
-
 def site_induction(unit: UnitOrbit, factor_group: str) -> dict[str, Representation]:
-    """Factor-group species induced by each site species of ``unit`` (one unit per site).
+    """Factor-group species induced by each site species of ``unit`` that occurs in its correlation.
 
-    The prediction stores, per free species, the site components and the factor-group
-    components; the link site -> factor is recovered by Frobenius reciprocity from every
-    embedding of the site group in the factor group (multiplicity of factor species ``f``
-    in the induced representation of site species ``s`` = multiplicity of ``s`` in the
-    restriction of ``f``), keeping the embedding and labelling of the site axes that
-    reproduce every stored correlation.
-
-    Returns
-    -------
-    dict
-        Site species (those that occur in the unit's correlation) -> Representation of
-        the factor group.
+    Read from the prediction (``UnitOrbit.site_to_factor``, computed by the correlation engine).
 
     Raises
     ------
     SymmetryError
-        If no embedding reproduces the stored correlation.
-
-    Examples
-    --------
-    >>> from splitting.crystal.predict import predict
-    >>> pred = predict("structures/calcite.cif")  # doctest: +SKIP
-    >>> str(site_induction(pred.unit("CO3"), pred.factor_group)["E"])  # doctest: +SKIP
-    'Eg + Eu'
+        If the prediction carries no site-to-factor map for this unit.
     """
-    from ..groups import Representation, point_group
-    from ..groups.subgroups import embeddings
-
+    stored = dict(unit.site_to_factor)
     used = _site_order(unit)
-    first = unit.correlation[0]
-    factor_labels = [lab for lab, _ in first.factor.counts]
-    site_labels = [lab for lab, _ in first.site.counts]
-    answers: list[dict[str, tuple[int, ...]]] = []
-    # <Ind s, f>_F = <s, Res f>_S; a complex-conjugate pair merged into one E species has norm 2
-    fg, sg = point_group(factor_group), point_group(unit.site_group)
-    norm_f = {f: 2 if fg.get_species(f).separably_degenerate else 1 for f in factor_labels}
-    norm_s = {s: 2 if sg.get_species(s).separably_degenerate else 1 for s in site_labels}
-    for emb in embeddings(factor_group, unit.site_group):
-        restrict = dict(emb.correlation())
-        base = {s: tuple(restrict[f][s] * norm_s[s] // norm_f[f] for f in factor_labels) for s in site_labels}
-        for relabel in _relabelings(site_labels):
-            ind = {relabel[s]: v for s, v in base.items()}
-            if all(_induced(c.site, ind) == tuple(n for _, n in c.factor.counts) for c in unit.correlation):
-                answer = {s: ind[s] for s in used}
-                if answer not in answers:
-                    answers.append(answer)
-    if not answers:
-        raise SymmetryError(
-            f"{unit.formula}: no embedding of {unit.site_group} in {factor_group} reproduces the predicted correlation"
-        )
-    chosen = answers[0]
-    return {
-        s: Representation(
-            first.factor.group, tuple(zip(factor_labels, chosen[s], strict=True)), first.factor.dimensions
-        )
-        for s in used
-    }
+    missing = [s for s in used if s not in stored]
+    if missing:
+        raise SymmetryError(f"{unit.formula}: the prediction has no site-to-factor map for {', '.join(missing)}")
+    del factor_group
+    return {s: stored[s] for s in used}
 
 
 def _induced(site: Representation, ind: dict[str, tuple[int, ...]]) -> tuple[int, ...]:

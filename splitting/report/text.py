@@ -239,7 +239,13 @@ def lowering_text(result, *, limit: int = 40) -> str:
     rows = []
     for k, c in enumerate(result.candidates[:limit], 1):
         sites = "; ".join(f"{u.formula} {u.wyckoff} {u.site_group} x{u.count}" for u in c.prediction.units)
-        bands = ", ".join(f"{b.band} {b.ir}/{b.raman}" for b in c.bands()[:6])
+        wanted = {name.rpartition("/")[2] for name, _, _ in result.observed}
+        shown = [b for b in c.bands() if b.band in wanted] or c.bands()[:6]
+        bands = ", ".join(f"{b.band} {b.ir}/{b.raman}" for b in shown)
+        if "lattice" in wanted:
+            lat = c.lattice()
+            bands += f", lattice {lat['translational_ir'] + lat['librational_ir']}/" \
+                     f"{lat['translational_raman'] + lat['librational_raman']}"
         score = "-" if c.score is None else f"{c.score:g}"
         rows.append([k, f"{c.space_group[1]} ({c.space_group[0]})", c.kind, c.index, c.point_group, sites, bands,
                      score])
