@@ -20,7 +20,7 @@ import numpy as np
 
 from ..errors import BookkeepingError, SymmetryError
 from .operations import reflection, rotation
-from .representation import Representation
+from .representation import Representation, SpeciesList
 
 __all__ = ["LAMBDA_LETTERS", "LinearGroup", "linear_group"]
 
@@ -82,7 +82,7 @@ def _label(m: int, refl: int, parity: int) -> str:
 
 
 @dataclass(frozen=True, eq=False)
-class LinearGroup:
+class LinearGroup(SpeciesList):
     """C∞v or D∞h with species up to angular momentum ``max_m``.
 
     Examples
@@ -121,16 +121,6 @@ class LinearGroup:
             for m in range(1, self.max_m + 1):
                 out.append(LinearSpecies(_label(m, 0, p), m, 0, p))
         return tuple(out)
-
-    @cached_property
-    def labels(self) -> tuple[str, ...]:
-        """Labels in order."""
-        return tuple(s.label for s in self.species)
-
-    @cached_property
-    def dimensions(self) -> tuple[int, ...]:
-        """Dimensions in order."""
-        return tuple(s.dimension for s in self.species)
 
     def get_species(self, label: str) -> LinearSpecies:
         """Species by label (also accepts ASCII spellings such as ``Sigma_g+``, ``Pi_u``)."""

@@ -12,7 +12,7 @@ from .catalogue import HERMANN_MAUGUIN, canonical_name, generators
 from .characters import character_table, conjugacy_classes
 from .labels import class_names, mulliken_labels
 from .operations import close_group, describe, find_operation, multiplication_table
-from .representation import Representation
+from .representation import Representation, SpeciesList
 
 __all__ = ["ConjugacyClass", "PointGroup", "Species", "point_group"]
 
@@ -67,7 +67,7 @@ class Species:
 
 
 @dataclass(frozen=True, eq=False)
-class PointGroup:
+class PointGroup(SpeciesList):
     """A finite point group in its standard orientation.
 
     Build with :func:`point_group`; see ``splitting.groups.catalogue`` for the orientation.
@@ -113,16 +113,6 @@ class PointGroup:
     def hermann_mauguin(self) -> str | None:
         """Short Hermann-Mauguin symbol for a crystallographic group, else None."""
         return HERMANN_MAUGUIN.get(self.name)
-
-    @cached_property
-    def labels(self) -> tuple[str, ...]:
-        """Mulliken labels of the species in order."""
-        return tuple(s.label for s in self.species)
-
-    @cached_property
-    def dimensions(self) -> tuple[int, ...]:
-        """Dimensions of the species in order."""
-        return tuple(s.dimension for s in self.species)
 
     @cached_property
     def class_sizes(self) -> np.ndarray:

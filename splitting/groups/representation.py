@@ -7,7 +7,23 @@ from dataclasses import dataclass
 
 from ..errors import BookkeepingError
 
-__all__ = ["Representation"]
+__all__ = ["Representation", "SpeciesList"]
+
+
+class SpeciesList:
+    """Labels and dimensions of a group's ``species`` (shared by finite and linear groups)."""
+
+    species: tuple
+
+    @property
+    def labels(self) -> tuple[str, ...]:
+        """Labels of the species, in table order."""
+        return tuple(s.label for s in self.species)
+
+    @property
+    def dimensions(self) -> tuple[int, ...]:
+        """Dimensions of the species, in table order."""
+        return tuple(s.dimension for s in self.species)
 
 
 @dataclass(frozen=True)

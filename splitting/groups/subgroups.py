@@ -20,8 +20,8 @@ from .representation import Representation
 __all__ = ["Embedding", "embeddings", "subgroup_classes", "subgroup_lattice"]
 
 
-def _closure(table: np.ndarray, base: frozenset[int], gens: tuple[int, ...]) -> frozenset[int]:
-    """Smallest subgroup holding ``base`` (already a group, or empty) and ``gens``."""
+def closure(table: np.ndarray, base: frozenset[int] | set[int], gens: tuple[int, ...] | list[int]) -> frozenset[int]:
+    """Smallest subgroup holding ``base`` (already a group, or empty) and ``gens`` (indices into ``table``)."""
     elems = set(base) | {0}
     frontier = list(elems)
     while frontier:
@@ -43,7 +43,7 @@ def subgroup_lattice(name: str) -> tuple[frozenset[int], ...]:
     table = g.table
     cyclic: dict[frozenset[int], int] = {}
     for a in range(g.order):
-        cyclic.setdefault(_closure(table, frozenset(), (a,)), a)
+        cyclic.setdefault(closure(table, frozenset(), (a,)), a)
     found: dict[frozenset[int], tuple[int, ...]] = {c: (a,) for c, a in cyclic.items()}
     frontier = list(found)
     while frontier:
@@ -53,12 +53,26 @@ def subgroup_lattice(name: str) -> tuple[frozenset[int], ...]:
             for _c, a in cyclic.items():
                 if a in s:
                     continue
-                j = _closure(table, s, (*gens, a))
+                j = closure(table, s, (*gens, a))
                 if j not in found:
                     found[j] = (*gens, a)
                     new.append(j)
         frontier = new
     return tuple(sorted(found, key=lambda s: (len(s), sorted(s))))
+
+
+def generators_of(table: np.ndarray, members: frozenset[int]) -> list[int]:
+    """A small generating set of the subgroup ``members`` (greedy, smallest indices first)."""
+    gens: list[int] = []
+    span: frozenset[int] = frozenset({0})
+    for g in sorted(members):
+        if g in span:
+            continue
+        gens.append(g)
+        span = closure(table, span, gens)
+        if span == members:
+            break
+    return gens
 
 
 def _conjugate(g: PointGroup, sub: frozenset[int], h: int) -> frozenset[int]:

@@ -28,7 +28,7 @@ from ..crystal.read import load_structure
 from ..crystal.results import CrystalPrediction
 from ..crystal.spacegroup import CellSymmetry, analyse_cell
 from ..errors import InputError
-from ..groups.subgroups import subgroup_classes
+from ..groups.subgroups import generators_of, subgroup_classes
 from .compare import BandState, Phase
 
 __all__ = ["DEFAULT_MAX_INDEX", "Candidate", "Lowering", "lower", "parse_observed", "sublattices"]
@@ -207,34 +207,6 @@ class Lowering:
                 "candidates": [c.to_dict() for c in self.candidates]}
 
 
-def _generators(table: np.ndarray, members: frozenset[int]) -> list[int]:
-    gens: list[int] = []
-    span = {0}
-    for g in sorted(members):
-        if g in span:
-            continue
-        gens.append(g)
-        span = _closure(table, span, gens)
-        if span == set(members):
-            break
-    return gens
-
-
-def _closure(table: np.ndarray, start: set[int], gens: list[int]) -> set[int]:
-    elems = set(start) | {0}
-    frontier = list(elems)
-    while frontier:
-        new = []
-        for a in frontier:
-            for g in gens:
-                p = int(table[a, g])
-                if p not in elems:
-                    elems.add(p)
-                    new.append(p)
-        frontier = new
-    return elems
-
-
 def _close_ops(gens: list[tuple[np.ndarray, np.ndarray]], m: np.ndarray, order: int
                ) -> list[tuple[np.ndarray, np.ndarray]] | None:
     """Close (W, t) pairs modulo the sublattice m; None if some rotation gets two translations."""
@@ -392,7 +364,7 @@ def lower(path: str | os.PathLike[str] | None = None, options: Options | None = 
             continue
         cell_ops = [by_std[s] for s in sorted(members)]
         w_frac = np.rint(cell.frac_rotations[cell_ops]).astype(int)
-        gens_std = _generators(g.table, members)
+        gens_std = generators_of(g.table, members)
         gens = [(np.rint(cell.frac_rotations[by_std[s]]).astype(int), cell.frac_translations[by_std[s]])
                 for s in gens_std]
         for mult in range(1, max_index // i + 1):

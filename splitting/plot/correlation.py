@@ -551,17 +551,7 @@ def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool, give_up: boo
 
     leg = None
     if legend:
-        leg = ax.legend(
-            handles=legend_handles(font),
-            loc="upper center",
-            bbox_to_anchor=(0.5, -0.01),
-            ncol=4,
-            frameon=False,
-            fontsize=font * 0.68,
-            handlelength=1.4,
-            columnspacing=1.2,
-            handletextpad=0.4,
-        )
+        leg = _legend(ax, font, loc="upper center", bbox_to_anchor=(0.5, -0.01))
 
     return DiagramArtists(
         figure=fig,
@@ -580,6 +570,12 @@ def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool, give_up: boo
         legend=leg,
         font_size=font,
     )
+
+
+def _legend(target, font: float, **where):
+    """The activity legend, one row, on an Axes or a Figure."""
+    return target.legend(handles=legend_handles(font), ncol=4, frameon=False, fontsize=font * 0.68,
+                         handlelength=1.4, columnspacing=1.2, handletextpad=0.4, **where)
 
 
 def legend_handles(font: float = _FONT) -> list[Line2D]:
@@ -704,17 +700,7 @@ def phase_correlation_diagram(
         )
         fit_width(title, 0.95 * width / n * fig.dpi, _renderer(fig))
         titles.append(title)
-    fig.legend(
-        handles=legend_handles(),
-        loc="lower center",
-        bbox_to_anchor=(0.5, 0.1 / height),
-        ncol=4,
-        frameon=False,
-        fontsize=_FONT * 0.68,
-        handlelength=1.4,
-        columnspacing=1.2,
-        handletextpad=0.4,
-    )
+    _legend(fig, _FONT, loc="lower center", bbox_to_anchor=(0.5, 0.1 / height))
     return PhaseDiagramArtists(
         figure=fig, phases=tuple(lab for lab, _ in phases), panels=tuple(panels), titles=tuple(titles)
     )
