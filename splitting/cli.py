@@ -142,6 +142,22 @@ def _lower(args: argparse.Namespace) -> int:
     from .report.text import lowering_text
 
     observed = parse_observed(args.observed)
+    if args.peaks:
+        from .crystal.predict import predict
+        from .spectra.assign import find_unit_table, observed_counts
+        from .spectra.catalogue import load_mode_table
+        from .spectra.measured import read_peaks
+
+        peaks = read_peaks(args.peaks, technique=args.technique)
+        if peaks.technique is None:
+            raise InputError(f"{args.peaks}: say whether the lines are IR or Raman (--technique or a "
+                             "'# technique:' line)")
+        parent = predict(args.file, _options(args))
+        units = [u.formula for u in parent.units if u.correlation]
+        if not units:
+            raise InputError(f"{args.file}: no molecular unit whose bands could be counted")
+        table = load_mode_table(args.modes) if args.modes else find_unit_table(units[0])
+        observed = observed + observed_counts(peaks, table, technique=peaks.technique, window_cm1=args.window)
     result = lower(args.file, _options(args), max_index=args.max_index, observed=observed)
     return _emit(args, result.to_dict(), lambda: lowering_text(result))
 
@@ -308,7 +324,12 @@ def build_parser() -> argparse.ArgumentParser:
     lo.add_argument("file", help="ordered parent structure")
     lo.add_argument("--max-index", type=int, default=8, help="largest subgroup index (default 8)")
     lo.add_argument("--observed", nargs="+", metavar="BAND:TECH=N",
-                    help="observed components, e.g. T1u:ir=3 Hg:raman=5 (optionally UNIT/BAND)")
+                    help="observed components, e.g. T1u:ir=3 Hg:raman=5 lattice:raman=5 (optionally UNIT/BAND)")
+    lo.add_argument("--peaks", metavar="CSV", help="count the observed components from a peak list instead")
+    lo.add_argument("--modes", metavar="TOML", help="free-unit mode table for --peaks (default: bundled catalogue)")
+    lo.add_argument("--technique", choices=["ir", "raman"], help="technique of --peaks (else from the file)")
+    lo.add_argument("--window", type=float, default=15.0,
+                    help="largest distance (cm-1) of a line from its free band when counting (default 15)")
     _crystal_options(lo)
     lo.add_argument("--json", action="store_true", help="print JSON instead of text")
 

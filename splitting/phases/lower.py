@@ -297,6 +297,16 @@ def parse_observed(items: list[str] | None) -> tuple[tuple[str, str, int], ...]:
     return tuple(out)
 
 
+#: cost of a predicted component that was not observed (weak or unresolved lines are common),
+#: against 1 for an observed line that the candidate cannot produce (common practice: the
+#: predicted number is an upper bound of what a spectrum shows)
+MISSING_COST = 0.25
+
+
+def _misfit(pred: int, n: int) -> float:
+    return float(n - pred) if n > pred else MISSING_COST * (pred - n)
+
+
 def _score(bands: list[BandState], observed: tuple[tuple[str, str, int], ...], lattice: dict[str, object]
            ) -> tuple[float, tuple[str, ...]]:
     score, reasons = 0.0, []
@@ -304,7 +314,7 @@ def _score(bands: list[BandState], observed: tuple[tuple[str, str, int], ...], l
         if band == "lattice":
             pred = sum(int(lattice[f"{kind}_{tech}"]) for kind in ("translational", "librational"))
             if pred != n:
-                score += abs(pred - n)
+                score += _misfit(pred, n)
                 reasons.append(f"lattice: predicts {pred} {tech} lattice line{'s' if pred != 1 else ''}, {n} observed")
             continue
         unit, _, name = band.rpartition("/")
@@ -316,7 +326,7 @@ def _score(bands: list[BandState], observed: tuple[tuple[str, str, int], ...], l
         b = matches[0]
         pred = {"ir": b.ir, "raman": b.raman, "total": b.total}[tech]
         if pred != n:
-            score += abs(pred - n)
+            score += _misfit(pred, n)
             reasons.append(f"{band}: predicts {pred} {tech.upper() if tech == 'ir' else tech} "
                            f"component{'s' if pred != 1 else ''}, {n} observed")
     return score, tuple(reasons)
@@ -335,6 +345,8 @@ def lower(path: str | os.PathLike[str] | None = None, options: Options | None = 
         Largest index (point-group index x cell multiple) to enumerate.
     observed : tuple of (band, technique, count)
         Observed numbers of components, e.g. ``(("T1u", "ir", 3),)``; see :func:`parse_observed`.
+        The misfit of a candidate adds 1 for every observed line it cannot produce and
+        ``MISSING_COST`` for every predicted component not observed.
     """
     if max_index < 2:
         raise InputError("the largest index must be at least 2")

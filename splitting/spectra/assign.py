@@ -94,6 +94,7 @@ __all__ = [
     "explain",
     "explain_files",
     "find_unit_table",
+    "observed_counts",
 ]
 
 #: Largest distance (cm-1) of a line from a free fundamental (or a harmonic sum) that is
@@ -320,6 +321,50 @@ def count_components(
         if best is not None:
             counts[best.name] += 1
     return counts
+
+
+def observed_counts(
+    peaks: PeakList,
+    modes: ModeTable,
+    *,
+    technique: str,
+    window_cm1: float = 15.0,
+    unit: str | None = None,
+) -> tuple[tuple[str, str, int], ...]:
+    """Observed components per free species, for ranking candidate phases.
+
+    For every species of the mode table, the number of lines that most of its fundamentals
+    show (lines assigned to the nearest fundamental within ``window_cm1``); lines below the
+    lowest fundamental minus the window are counted as lattice lines.
+
+    Returns
+    -------
+    tuple of (band, technique, count)
+        ``band`` is the species, prefixed ``"unit/"`` when ``unit`` is given, or ``"lattice"``.
+
+    Examples
+    --------
+    >>> from splitting.spectra.catalogue import find_table
+    >>> c60 = find_table("C60")
+    >>> observed_counts([524.8, 526.9, 528.3, 20.0], c60, technique="ir")
+    (('T1u', 'ir', 3), ('lattice', 'ir', 1))
+    """
+    tech = normalise_technique(technique)
+    positions = _positions(peaks)
+    out: list[tuple[str, str, int]] = []
+    counts = count_components(positions, modes, window_cm1)
+    for species in dict.fromkeys(m.species for m in modes.modes):
+        per_mode = [counts.get(m.name, 0) for m in modes.modes if m.species == species]
+        seen = [n for n in per_mode if n]
+        if not seen:
+            continue
+        typical = max(sorted(set(seen)), key=seen.count)
+        out.append((f"{unit}/{species}" if unit else species, tech, typical))
+    lowest = min(m.wavenumber_cm1 for m in modes.modes)
+    lattice = sum(1 for x in positions if x < lowest - window_cm1)
+    if lattice:
+        out.append(("lattice", tech, lattice))
+    return tuple(out)
 
 
 def _comparison(prediction: Any, ub: _UnitBands, observed: Mapping[str, int]) -> PhaseComparison:
