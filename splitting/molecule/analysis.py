@@ -40,6 +40,8 @@ class ModeSpecies:
         Dipole components (empty: IR inactive).
     raman : tuple of str
         Polarisability components (empty: Raman inactive).
+    raman_tensor : tuple of tuple of str
+        3x3 pattern of the Raman tensor in the unit's axes ("0" where an element vanishes).
     """
 
     label: str
@@ -47,6 +49,7 @@ class ModeSpecies:
     count: int
     ir: tuple[str, ...]
     raman: tuple[str, ...]
+    raman_tensor: tuple[tuple[str, ...], ...] = ()
 
     @property
     def activity(self) -> str:
@@ -58,7 +61,8 @@ class ModeSpecies:
         """JSON-ready form."""
         return {"label": self.label, "dimension": self.dimension, "count": self.count,
                 "ir": bool(self.ir), "raman": bool(self.raman),
-                "ir_components": list(self.ir), "raman_components": list(self.raman)}
+                "ir_components": list(self.ir), "raman_components": list(self.raman),
+                "raman_tensor": [list(r) for r in self.raman_tensor]}
 
 
 def hill_formula(symbols: list[str]) -> str:
@@ -233,7 +237,7 @@ def analyse_unit(numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE, po
     vib = g3n - trans - rot
     act = {a.label: a for a in activity_table(sym.group.name)}
     modes = tuple(
-        ModeSpecies(lab, d, n, act[lab].ir, act[lab].raman)
+        ModeSpecies(lab, d, n, act[lab].ir, act[lab].raman, act[lab].raman_tensor)
         for (lab, n), d in zip(vib.counts, vib.dimensions, strict=True)
         if n
     )
