@@ -39,8 +39,12 @@ def test_nh4cl_two_orientations_averaged_oh_one_orientation_td(nh4cl):
     # two NH4+ orientations; averaged site m-3m (ITA Pm-3m 1a); one orientation: -43m = Td
     # (Levy & Peterson 1952)
     assert (u.formula, u.state, u.orientations) == ("H4N", "static", 2)
-    assert (u.averaged_site_group, u.averaged_wyckoff, u.orientation_site_group, u.free_group) == ("Oh", "1a", "Td",
-                                                                                                   "Td")
+    assert (u.averaged_site_group, u.averaged_wyckoff, u.orientation_site_group, u.free_group) == (
+        "Oh",
+        "1a",
+        "Td",
+        "Td",
+    )
     # Td free ion at a Td site: A1 -> A1, E -> E, T2 -> T2 (nu3 and nu4: 2 modes)
     assert [(p.free, p.modes, str(p.site)) for p in u.pattern] == [("A1", 1, "A1"), ("E", 1, "E"), ("T2", 2, "T2")]
     assert "static disorder" in u.statement and "Davydov" in u.statement
@@ -85,7 +89,12 @@ def test_c60_merohedral_disorder():
     (u,) = d.units
     # two standard orientations (David et al. 1991); averaged m-3m (ITA Fm-3m 4a); one orientation m-3 (Th)
     assert (u.formula, u.orientations, u.averaged_site_group, u.averaged_wyckoff, u.orientation_site_group) == (
-        "C60", 2, "Oh", "4a", "Th")
+        "C60",
+        2,
+        "Oh",
+        "4a",
+        "Th",
+    )
     # Ih -> Th (standard orientation): T1u -> Tu, Hg -> Eg + Tg (Wilson, Decius & Cross correlation tables)
     pat = {p.free: str(p.site) for p in u.pattern}
     assert pat["T1u"] == "Tu" and pat["Hg"] == "Eg + Tg"

@@ -120,8 +120,15 @@ def test_c60_lower_t_subgroups_of_fm3(c60_lowering):
     # T F23 (2), D2h Fmmm (3), S6 R-3 (4), C2v Fmm2, D2 F222, C2h C2/m (6), C3 R3 (8)
     # (ITA A1 maximal ones F23, Fmmm, R-3 from memory; the rest follow: common practice)
     t = {(c.space_group[0], c.point_group, c.index) for c in c60_lowering.candidates if c.kind == "t"}
-    assert t == {(196, "T", 2), (69, "D2h", 3), (148, "S6", 4), (42, "C2v", 6), (22, "D2", 6), (12, "C2h", 6),
-                 (146, "C3", 8)}
+    assert t == {
+        (196, "T", 2),
+        (69, "D2h", 3),
+        (148, "S6", 4),
+        (42, "C2v", 6),
+        (22, "D2", 6),
+        (12, "C2h", 6),
+        (146, "C3", 8),
+    }
 
 
 # ----------------------------------------------------------------------------- NH4Cl
@@ -143,8 +150,12 @@ def test_nh4cl_step_is_t_of_index_2(nh4cl):
 def test_nh4cl_one_orientation_site_is_td(nh4cl):
     u = nh4cl.phases[0].disorder.unit("H4N")
     # averaged site m-3m (ITA Pm-3m 1a); one NH4+ orientation keeps -43m = Td (Levy & Peterson 1952)
-    assert (u.orientations, u.averaged_site_group, u.averaged_wyckoff, u.orientation_site_group) == (2, "Oh", "1a",
-                                                                                                     "Td")
+    assert (u.orientations, u.averaged_site_group, u.averaged_wyckoff, u.orientation_site_group) == (
+        2,
+        "Oh",
+        "1a",
+        "Td",
+    )
 
 
 def test_nh4cl_internal_modes_unchanged(nh4cl):

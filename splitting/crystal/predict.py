@@ -10,6 +10,7 @@ Gamma_3N, computed independently from the atoms, must equal the sum species by s
 from __future__ import annotations
 
 import os
+import re
 from dataclasses import dataclass
 
 import numpy as np
@@ -142,6 +143,12 @@ def _warnings(cell: CellSymmetry, units: tuple[Unit, ...]) -> list[str]:
     return out
 
 
+def _multiplicity(wyckoff: str, count: int) -> int:
+    """Multiplicity from a Wyckoff position such as "8A" (spglib writes the 27th letter as A); else ``count``."""
+    m = re.match(r"\d+", wyckoff)
+    return int(m.group()) if m else count
+
+
 def _undercoordinated_carbon(unit: Unit) -> bool:
     """True when a non-linear unit has carbon atoms with fewer than three bonded neighbours (common practice)."""
     from ase.data import covalent_radii
@@ -228,7 +235,7 @@ def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source:
         )
         orbit_results.append(UnitOrbit(
             formula=u0.formula, kind=u0.kind, atoms_per_unit=len(u0.atoms), count=len(orbit),
-            count_conventional=int(wyck.rstrip("abcdefghijklmnopqrstuvwxyzα")), wyckoff=wyck,
+            count_conventional=_multiplicity(wyck, len(orbit)), wyckoff=wyck,
             site_symmetry=site_symbol, site_group=site.name, site_axes=_axes_text(cell, site),
             free_group=free_name, free_group_source=free_source, free_axes=free_axes, max_deviation=deviation,
             centre=tuple(float(x) for x in (centre @ np.linalg.inv(cell.lattice))), free_vibrations=free_vib,

@@ -135,10 +135,11 @@ class CellSymmetry:
         Wyckoff letter of every primitive-cell atom.
     site_symbols : tuple of str
         Oriented site-symmetry symbol of every primitive-cell atom (ITA).
-    equivalent : numpy.ndarray
-        Index of the first symmetry-equivalent atom, for every atom.
     input_atoms : int
         Number of atoms in the cell as given.
+    sites_named : bool
+        False for a cell built from operations alone (a candidate phase whose atoms do not
+        show its lower symmetry): Wyckoff letters are then unknown.
     """
 
     info: SpaceGroupInfo
@@ -152,8 +153,8 @@ class CellSymmetry:
     conventional: np.ndarray = field(repr=False)
     wyckoffs: tuple[str, ...] = field(repr=False)
     site_symbols: tuple[str, ...] = field(repr=False)
-    equivalent: np.ndarray = field(repr=False)
     input_atoms: int = 0
+    sites_named: bool = True
 
     @property
     def cartesian(self) -> np.ndarray:
@@ -217,6 +218,8 @@ class CellSymmetry:
         """
         inv = np.linalg.inv(self.lattice)
         ratio = abs(np.linalg.det(self.conventional) / np.linalg.det(self.lattice))
+        if not self.sites_named:
+            return [("?", "?") for _ in points]
         frac, numbers, slot, sizes = [self.frac], [self.numbers], [], []
         count = len(self.numbers)
         kind = int(np.max(self.numbers)) + 1000
@@ -257,8 +260,38 @@ def _info(ds, tolerance: float, others) -> SpaceGroupInfo:
 
     with _quiet_spglib():
         t = spglib.get_spacegroup_type(ds.hall_number)
-    return SpaceGroupInfo(int(ds.number), t.international_short, t.schoenflies, int(ds.hall_number),
-                          t.pointgroup_international, crystal_system(int(ds.number)), tolerance, tuple(others))
+    return _info_of_type(t, tolerance, others)
+
+
+def _info_of_type(t, tolerance: float, others=()) -> SpaceGroupInfo:
+    return SpaceGroupInfo(int(t.number), t.international_short, t.schoenflies, int(t.hall_number),
+                          t.pointgroup_international, crystal_system(int(t.number)), tolerance, tuple(others))
+
+
+def cell_from_operations(lattice: np.ndarray, frac: np.ndarray, numbers: np.ndarray, rotations: np.ndarray,
+                         translations: np.ndarray, conventional: np.ndarray) -> CellSymmetry:
+    """A cell whose space group is given as operations (fractional, in this lattice's basis).
+
+    Used for candidate phases whose atoms alone do not show the lower symmetry; the type is
+    named from the operations (spglib), Wyckoff letters are left unknown.
+    """
+    import spglib
+
+    w = np.rint(rotations).astype(np.intc)
+    t = np.asarray(translations, dtype=float)
+    with _quiet_spglib():
+        sg_type = spglib.get_spacegroup_type_from_symmetry(w, t, lattice=lattice, symprec=1e-5)
+    if sg_type is None:
+        raise SymmetryError("the operations are not a space group")
+    lat = np.asarray(lattice, dtype=float)
+    rots = np.einsum("ji,njk,kl->nil", lat, w.astype(float), np.linalg.inv(lat).T)
+    n = len(numbers)
+    return CellSymmetry(
+        info=_info_of_type(sg_type, 0.0), lattice=lat, frac=np.asarray(frac, dtype=float),
+        numbers=np.asarray(numbers), rotations=rots, translations=t @ lat, frac_rotations=w.astype(float),
+        frac_translations=t, conventional=np.asarray(conventional, dtype=float), wyckoffs=("?",) * n,
+        site_symbols=("?",) * n, input_atoms=n, sites_named=False,
+    )
 
 
 def analyse_cell(lattice, frac, numbers, *, tolerance: float = DEFAULT_CELL_TOLERANCE,
@@ -320,6 +353,6 @@ def analyse_cell(lattice, frac, numbers, *, tolerance: float = DEFAULT_CELL_TOLE
         info=info, lattice=plat, frac=pfrac, numbers=pnum, rotations=rots, translations=trans,
         frac_rotations=rot_frac, frac_translations=np.asarray(pds.translations, dtype=float),
         conventional=conv_cols.T.copy(), wyckoffs=tuple(pds.wyckoffs),
-        site_symbols=tuple(pds.site_symmetry_symbols), equivalent=np.asarray(pds.equivalent_atoms),
+        site_symbols=tuple(pds.site_symmetry_symbols),
         input_atoms=len(numbers),
     )

@@ -28,6 +28,7 @@ from ..crystal.read import load_structure
 from ..crystal.results import CrystalPrediction
 from ..crystal.spacegroup import CellSymmetry, analyse_cell
 from ..errors import InputError
+from ..groups.pointgroup import point_group
 from ..groups.subgroups import generators_of, subgroup_classes
 from .compare import BandState, Phase
 
@@ -148,6 +149,10 @@ class Candidate:
         Disagreement with observed counts (lower is better); None when nothing was observed.
     reasons : tuple of str
         Where the candidate disagrees with the observations.
+    realised : bool
+        False when no displacement of the atoms shows this subgroup (the atoms sit where the
+        parent symmetry cannot be broken by moving them); the prediction then comes from the
+        candidate's operations and Wyckoff letters are not known.
     variants : int
         Number of subgroups, not conjugate in the parent group, that give this same candidate
         (same space group, sites and line counts: e.g. two settings related by the parent's normaliser).
@@ -163,6 +168,7 @@ class Candidate:
     score: float | None = None
     reasons: tuple[str, ...] = ()
     variants: int = 1
+    realised: bool = True
 
     def bands(self) -> list[BandState]:
         """Every band in this candidate."""
@@ -186,6 +192,7 @@ class Candidate:
             "bands": [{"unit": b.unit, "band": b.band, "components": b.text(), "ir": b.ir, "raman": b.raman}
                       for b in self.bands()],
             "score": self.score, "reasons": list(self.reasons), "variants": self.variants,
+            "realised_by_displacements": self.realised,
         }
 
 
@@ -416,11 +423,38 @@ def lower(path: str | os.PathLike[str] | None = None, options: Options | None = 
 def _candidate(cell: CellSymmetry, m: np.ndarray, ops, mult: int, point_index: int, opts: Options,
                cache: FreeUnitCache, source: str, seed: int) -> Candidate:
     atoms = _realise(cell, m, ops, seed)
-    pred = predict_atoms(atoms, opts, source=f"{source} (candidate)", free_cache=cache, scan=False)
     kind = "t" if mult == 1 else ("k" if point_index == 1 else "t+k")
+    supercell = tuple(tuple(int(x) for x in r) for r in m)
+    pred = predict_atoms(atoms, opts, source=f"{source} (candidate)", free_cache=cache, scan=False)
+    realised = point_group(pred.factor_group).order * pred.atoms_primitive == len(ops) * len(atoms)
+    if not realised:
+        # the atoms cannot show this subgroup (they sit where no displacement breaks the parent
+        # symmetry): predict from the candidate's own operations on the undisplaced supercell
+        pred = _predict_from_operations(cell, m, ops, opts, cache, source)
     sg = pred.space_group
-    return Candidate(kind, point_index * mult, pred.factor_group, mult,
-                     tuple(tuple(int(x) for x in r) for r in m), (sg.number, sg.symbol), pred)
+    return Candidate(kind, point_index * mult, pred.factor_group, mult, supercell, (sg.number, sg.symbol), pred,
+                     realised=realised)
+
+
+def _predict_from_operations(cell: CellSymmetry, m: np.ndarray, ops, opts: Options, cache: FreeUnitCache,
+                             source: str) -> CrystalPrediction:
+    from ..crystal.predict import _predict
+    from ..crystal.spacegroup import cell_from_operations
+    from ..crystal.units import find_units
+
+    a, c, f = int(m[0, 0]), int(m[1, 1]), int(m[2, 2])
+    cosets = [np.array(u) for u in itertools.product(range(a), range(c), range(f))]
+    lat = m @ cell.lattice
+    cart = np.concatenate([(cell.frac + u) @ cell.lattice for u in cosets])
+    frac = cart @ np.linalg.inv(lat)
+    frac -= np.floor(frac + 1e-9)
+    to_super = np.linalg.inv(m.T)  # primitive fractional -> supercell fractional (column vectors)
+    rots = np.array([to_super @ w @ m.T for w, _ in ops])
+    trans = np.array([to_super @ t for _, t in ops])
+    sub = cell_from_operations(lat, frac, np.tile(cell.numbers, len(cosets)), rots, trans, cell.conventional)
+    units = find_units(sub.lattice, sub.frac, sub.numbers, scale=opts.bond_scale, ionic_metals=opts.ionic_metals,
+                       cutoffs=dict(opts.cutoffs), formulas=list(opts.formulas) or None)
+    return _predict(sub, units, opts, f"{source} (candidate, from its operations)", cache)
 
 
 def observed_from_mapping(counts: Mapping[str, Mapping[str, int]]) -> tuple[tuple[str, str, int], ...]:
