@@ -24,7 +24,7 @@ lint: $(STAMP)
 	$(BIN)/ruff format --check splitting tests benchmarks
 
 bench: $(STAMP)
-	$(BIN)/python -m pytest benchmarks --benchmark-enable -q -p no:doctest
+	$(BIN)/python -m pytest benchmarks --benchmark-enable -q -o addopts=""
 
 clean:
 	rm -rf $(VENV) demo-output build *.egg-info

@@ -70,9 +70,7 @@ class SpeciesActivity:
     @property
     def raman_elements(self) -> tuple[str, ...]:
         """Non-vanishing tensor elements, e.g. ``("xx", "yy", "zz")``."""
-        return tuple(
-            _AXES[i] + _AXES[j] for i in range(3) for j in range(i, 3) if self.raman_tensor[i][j] != "0"
-        )
+        return tuple(_AXES[i] + _AXES[j] for i in range(3) for j in range(i, 3) if self.raman_tensor[i][j] != "0")
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
@@ -266,6 +264,8 @@ def parse_geometry(text: str) -> ScatteringGeometry:
     if not m:
         raise InputError(f"scattering geometry {text!r} is not of the form z(xx)-z")
     ki, ei, es, ks = m.groups()
+
     def norm(d):
-        return ("-" + d[0] if d.endswith("̄") else d)
+        return "-" + d[0] if d.endswith("̄") else d
+
     return ScatteringGeometry(norm(ki), ei, es, norm(ks))

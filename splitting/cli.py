@@ -56,8 +56,9 @@ def _group(args: argparse.Namespace) -> int:
         if "∞" in name:
             raise InputError("subgroup embeddings of linear groups are not enumerated; give a finite group")
         embs = embeddings(name, args.to)
-        return _emit(args, {"group": name, "embeddings": [e.to_dict() for e in embs]},
-                     lambda: embeddings_text(name, args.to))
+        return _emit(
+            args, {"group": name, "embeddings": [e.to_dict() for e in embs]}, lambda: embeddings_text(name, args.to)
+        )
     grp = linear_group(name) if "∞" in name else point_group(name)
     payload = grp.to_dict()
     payload["selection_rules"] = [a.to_dict() for a in activity_table(name)]
@@ -72,8 +73,13 @@ def _molecule(args: argparse.Namespace) -> int:
 
     atoms = read_atoms(args.file)
     try:
-        result = analyse_unit(atoms.numbers, atoms.positions, tolerance=args.tolerance,
-                              point_group=args.point_group, symbols=atoms.get_chemical_symbols())
+        result = analyse_unit(
+            atoms.numbers,
+            atoms.positions,
+            tolerance=args.tolerance,
+            point_group=args.point_group,
+            symbols=atoms.get_chemical_symbols(),
+        )
     except InputError as exc:
         raise InputError(f"{args.file}: {exc}") from None
     return _emit(args, result.to_dict(), lambda: molecule_text(result))
@@ -90,9 +96,13 @@ def _options(args: argparse.Namespace):
         f, g = item.split("=", 1)
         free.append((f.strip(), g.strip()))
     return Options(
-        tolerance=args.tolerance, unit_tolerance=args.unit_tolerance, free_groups=tuple(free),
-        formulas=tuple(args.units or ()), cutoffs=tuple(parse_cutoffs(args.bond).items()),
-        bond_scale=args.bond_scale, ionic_metals=not args.bond_metals,
+        tolerance=args.tolerance,
+        unit_tolerance=args.unit_tolerance,
+        free_groups=tuple(free),
+        formulas=tuple(args.units or ()),
+        cutoffs=tuple(parse_cutoffs(args.bond).items()),
+        bond_scale=args.bond_scale,
+        ionic_metals=not args.bond_metals,
     )
 
 
@@ -150,8 +160,9 @@ def _lower(args: argparse.Namespace) -> int:
 
         peaks = read_peaks(args.peaks, technique=args.technique)
         if peaks.technique is None:
-            raise InputError(f"{args.peaks}: say whether the lines are IR or Raman (--technique or a "
-                             "'# technique:' line)")
+            raise InputError(
+                f"{args.peaks}: say whether the lines are IR or Raman (--technique or a '# technique:' line)"
+            )
         parent = predict(args.file, _options(args))
         units = [u.formula for u in parent.units if u.correlation]
         if not units:
@@ -169,9 +180,16 @@ def _explain(args: argparse.Namespace) -> int:
 
     if args.peaks is None and args.spectrum is None:
         raise InputError("give the measured lines with --peaks FILE or a raw spectrum with --spectrum FILE")
-    result = explain_files(args.file, args.peaks, spectrum=args.spectrum, modes=args.modes,
-                           technique=args.technique, figure=args.output, tolerance_cm1=args.window,
-                           options=_options(args))
+    result = explain_files(
+        args.file,
+        args.peaks,
+        spectrum=args.spectrum,
+        modes=args.modes,
+        technique=args.technique,
+        figure=args.output,
+        tolerance_cm1=args.window,
+        options=_options(args),
+    )
     code = _emit(args, result.to_dict(), lambda: explanation_text(result))
     if args.output and not args.json:
         print(f"figure written to {args.output}")
@@ -257,20 +275,45 @@ def _crystal_options(p: argparse.ArgumentParser) -> None:
     from .crystal.units import DEFAULT_BOND_SCALE
     from .molecule.symmetry import DEFAULT_TOLERANCE
 
-    p.add_argument("--tolerance", type=float, default=DEFAULT_CELL_TOLERANCE,
-                   help=f"space-group distance tolerance, angstrom (default {DEFAULT_CELL_TOLERANCE})")
-    p.add_argument("--unit-tolerance", type=float, default=DEFAULT_TOLERANCE,
-                   help=f"free-unit symmetry tolerance, angstrom (default {DEFAULT_TOLERANCE})")
-    p.add_argument("--free-group", action="append", metavar="FORMULA=GROUP",
-                   help="use this point group for the free unit (a subgroup of what its shape allows), e.g. C6H6=D6h")
-    p.add_argument("--units", nargs="+", metavar="FORMULA",
-                   help="treat only units with these formulas as molecules; split the rest into atoms")
-    p.add_argument("--bond", action="append", metavar="A-B=DIST",
-                   help="largest A-B bond length in angstrom (0 forbids the bond); repeatable")
-    p.add_argument("--bond-scale", type=float, default=DEFAULT_BOND_SCALE,
-                   help=f"bond when distance < scale x sum of covalent radii (default {DEFAULT_BOND_SCALE})")
-    p.add_argument("--bond-metals", action="store_true",
-                   help="also draw bonds to alkali, alkaline-earth and lanthanide atoms")
+    p.add_argument(
+        "--tolerance",
+        type=float,
+        default=DEFAULT_CELL_TOLERANCE,
+        help=f"space-group distance tolerance, angstrom (default {DEFAULT_CELL_TOLERANCE})",
+    )
+    p.add_argument(
+        "--unit-tolerance",
+        type=float,
+        default=DEFAULT_TOLERANCE,
+        help=f"free-unit symmetry tolerance, angstrom (default {DEFAULT_TOLERANCE})",
+    )
+    p.add_argument(
+        "--free-group",
+        action="append",
+        metavar="FORMULA=GROUP",
+        help="use this point group for the free unit (a subgroup of what its shape allows), e.g. C6H6=D6h",
+    )
+    p.add_argument(
+        "--units",
+        nargs="+",
+        metavar="FORMULA",
+        help="treat only units with these formulas as molecules; split the rest into atoms",
+    )
+    p.add_argument(
+        "--bond",
+        action="append",
+        metavar="A-B=DIST",
+        help="largest A-B bond length in angstrom (0 forbids the bond); repeatable",
+    )
+    p.add_argument(
+        "--bond-scale",
+        type=float,
+        default=DEFAULT_BOND_SCALE,
+        help=f"bond when distance < scale x sum of covalent radii (default {DEFAULT_BOND_SCALE})",
+    )
+    p.add_argument(
+        "--bond-metals", action="store_true", help="also draw bonds to alkali, alkaline-earth and lanthanide atoms"
+    )
 
 
 # -------------------------------------------------------------------- parser
@@ -288,34 +331,51 @@ def build_parser() -> argparse.ArgumentParser:
 
     g = sub.add_parser("group", help="character table and selection rules of a point group; --to for subgroups")
     g.add_argument("symbol", help="Schoenflies (D4h, C3i, D∞h or Dinfh) or Hermann-Mauguin (4/mmm) symbol")
-    g.add_argument("--to", metavar="SUBGROUP", help="every inequivalent way SUBGROUP sits in the group, "
-                   "with the correlation of every species")
+    g.add_argument(
+        "--to",
+        metavar="SUBGROUP",
+        help="every inequivalent way SUBGROUP sits in the group, with the correlation of every species",
+    )
     g.add_argument("--json", action="store_true", help="print JSON instead of text")
 
     m = sub.add_parser("molecule", help="point group and vibrational species of a free molecule or ion")
     m.add_argument("file", help="structure file (XYZ, or any format ase reads)")
-    m.add_argument("--tolerance", type=float, default=DEFAULT_TOLERANCE,
-                   help=f"largest displacement of an atom from its symmetric position, angstrom "
-                   f"(default {DEFAULT_TOLERANCE})")
+    m.add_argument(
+        "--tolerance",
+        type=float,
+        default=DEFAULT_TOLERANCE,
+        help=f"largest displacement of an atom from its symmetric position, angstrom (default {DEFAULT_TOLERANCE})",
+    )
     m.add_argument("--point-group", metavar="NAME", help="use this subgroup of the detected group")
     m.add_argument("--json", action="store_true", help="print JSON instead of text")
 
     pr = sub.add_parser("predict", help="k = 0 prediction for a crystal: sites, correlation, lattice modes, activity")
     pr.add_argument("file", help="crystal structure (CIF, POSCAR, extended XYZ, or another format ase reads)")
     _crystal_options(pr)
-    pr.add_argument("--disordered", action="store_true",
-                    help="the file holds partly occupied orientations: predict one orientation at its site, "
-                    "the averaged site, and what the disorder removes")
-    pr.add_argument("--disorder", action="append", metavar="FORMULA=STATE",
-                    help="treat a unit as ordered, static or dynamic (rotor); repeatable")
+    pr.add_argument(
+        "--disordered",
+        action="store_true",
+        help="the file holds partly occupied orientations: predict one orientation at its site, "
+        "the averaged site, and what the disorder removes",
+    )
+    pr.add_argument(
+        "--disorder",
+        action="append",
+        metavar="FORMULA=STATE",
+        help="treat a unit as ordered, static or dynamic (rotor); repeatable",
+    )
     pr.add_argument("--rotor", action="append", metavar="FORMULA", help="declare a unit a free rotor (dynamic)")
     pr.add_argument("--json", action="store_true", help="print JSON instead of text")
 
     c = sub.add_parser("compare", help="a sequence of phases (e.g. on cooling): what each band does between them")
     c.add_argument("files", nargs="+", help="structure files, upper (e.g. warmest) phase first")
     c.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, e.g. '300 K' '90 K'")
-    c.add_argument("--disorder", action="append", metavar="FORMULA=STATE",
-                   help="treat a unit as ordered, static or dynamic (rotor); repeatable")
+    c.add_argument(
+        "--disorder",
+        action="append",
+        metavar="FORMULA=STATE",
+        help="treat a unit as ordered, static or dynamic (rotor); repeatable",
+    )
     c.add_argument("--rotor", action="append", metavar="FORMULA", help="declare a unit a free rotor (dynamic)")
     _crystal_options(c)
     c.add_argument("--json", action="store_true", help="print JSON instead of text")
@@ -323,38 +383,63 @@ def build_parser() -> argparse.ArgumentParser:
     lo = sub.add_parser("lower", help="candidate lower-symmetry phases, ranked by observed line counts")
     lo.add_argument("file", help="ordered parent structure")
     lo.add_argument("--max-index", type=int, default=8, help="largest subgroup index (default 8)")
-    lo.add_argument("--observed", nargs="+", metavar="BAND:TECH=N",
-                    help="observed components, e.g. T1u:ir=3 Hg:raman=5 lattice:raman=5 (optionally UNIT/BAND)")
+    lo.add_argument(
+        "--observed",
+        nargs="+",
+        metavar="BAND:TECH=N",
+        help="observed components, e.g. T1u:ir=3 Hg:raman=5 lattice:raman=5 (optionally UNIT/BAND)",
+    )
     lo.add_argument("--peaks", metavar="CSV", help="count the observed components from a peak list instead")
     lo.add_argument("--modes", metavar="TOML", help="free-unit mode table for --peaks (default: bundled catalogue)")
     lo.add_argument("--technique", choices=["ir", "raman"], help="technique of --peaks (else from the file)")
-    lo.add_argument("--window", type=float, default=15.0,
-                    help="largest distance (cm-1) of a line from its free band when counting (default 15)")
+    lo.add_argument(
+        "--window",
+        type=float,
+        default=15.0,
+        help="largest distance (cm-1) of a line from its free band when counting (default 15)",
+    )
     _crystal_options(lo)
     lo.add_argument("--json", action="store_true", help="print JSON instead of text")
 
-    ex = sub.add_parser("explain", help="assign measured lines: components, lattice modes, overtones, "
-                        "isotopologues; list what nothing explains")
+    ex = sub.add_parser(
+        "explain",
+        help="assign measured lines: components, lattice modes, overtones, isotopologues; list what nothing explains",
+    )
     ex.add_argument("file", help="crystal structure of the phase measured")
     ex.add_argument("--peaks", metavar="CSV", help="peak list: position (cm-1), intensity[, width, polarisation]")
-    ex.add_argument("--spectrum", metavar="FILE", help="raw spectrum (two columns, CSV or JCAMP-DX); peaks are "
-                    "found in it when --peaks is not given, and it is drawn in the figure")
+    ex.add_argument(
+        "--spectrum",
+        metavar="FILE",
+        help="raw spectrum (two columns, CSV or JCAMP-DX); peaks are "
+        "found in it when --peaks is not given, and it is drawn in the figure",
+    )
     ex.add_argument("--modes", metavar="TOML", help="free-unit mode table (default: the bundled catalogue)")
     ex.add_argument("--technique", choices=["ir", "raman"], help="what was measured (else read from the files)")
-    ex.add_argument("--window", type=float, default=40.0,
-                    help="largest distance (cm-1) of a line from the band it is assigned to (default 40)")
+    ex.add_argument(
+        "--window",
+        type=float,
+        default=40.0,
+        help="largest distance (cm-1) of a line from the band it is assigned to (default 40)",
+    )
     ex.add_argument("-o", "--output", metavar="FIGURE", help="write a figure (.svg, .pdf or .png)")
     _crystal_options(ex)
     ex.add_argument("--json", action="store_true", help="print JSON instead of text")
 
-    dr = sub.add_parser("draw", help="correlation diagram (one file), phases side by side (several files) or "
-                        "line pattern (--kind lines); SVG, PDF or PNG by suffix")
+    dr = sub.add_parser(
+        "draw",
+        help="correlation diagram (one file), phases side by side (several files) or "
+        "line pattern (--kind lines); SVG, PDF or PNG by suffix",
+    )
     dr.add_argument("files", nargs="+", help="structure file(s), upper phase first")
     dr.add_argument("-o", "--output", required=True, metavar="FIGURE", help="output .svg, .pdf or .png")
     dr.add_argument("--unit", metavar="FORMULA", help="which unit (default: the first molecular unit)")
     dr.add_argument("--band", metavar="SPECIES", help="one free-unit species only, e.g. T1u")
-    dr.add_argument("--kind", choices=["correlation", "lines"], default="correlation",
-                    help="correlation diagram (default) or the predicted line pattern of each phase")
+    dr.add_argument(
+        "--kind",
+        choices=["correlation", "lines"],
+        default="correlation",
+        help="correlation diagram (default) or the predicted line pattern of each phase",
+    )
     dr.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, one per file")
     _crystal_options(dr)
 
@@ -400,8 +485,11 @@ def main(argv: Sequence[str] | None = None) -> int:
     except Exception as exc:  # pragma: no cover - a bug; keep the one-line promise
         if os.environ.get("SPLITTING_DEBUG"):
             raise
-        print(f"error: internal error ({type(exc).__name__}: {exc}); set SPLITTING_DEBUG=1 for details "
-              "and please report it", file=sys.stderr)
+        print(
+            f"error: internal error ({type(exc).__name__}: {exc}); set SPLITTING_DEBUG=1 for details "
+            "and please report it",
+            file=sys.stderr,
+        )
         return 70
 
 

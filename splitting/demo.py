@@ -113,6 +113,7 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
     # 2. which ordered phase would the line counts point to?
     ir_peaks = _data("c60_90K_ir_peaks.csv")
     raman_peaks = _data("c60_90K_raman_peaks.csv")
+
     def typical(peaks: Path, species: str) -> int:
         """The number of components most bands of one species show (window 15 cm-1)."""
         modes = [m for m in table.modes if m.species == species]
@@ -120,8 +121,11 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
         return max(set(counts), key=counts.count)
 
     raman_list = read_peaks(raman_peaks)
-    observed = (("T1u", "ir", typical(ir_peaks, "T1u")), ("Ag", "raman", typical(raman_peaks, "Ag")),
-                ("lattice", "raman", sum(1 for p in raman_list.peaks if p.position_cm1 < 100)))
+    observed = (
+        ("T1u", "ir", typical(ir_peaks, "T1u")),
+        ("Ag", "raman", typical(raman_peaks, "Ag")),
+        ("lattice", "raman", sum(1 for p in raman_list.peaks if p.position_cm1 < 100)),
+    )
     ranking = lower(model, opts, observed=observed)
     save_text("candidates.txt", lowering_text(ranking))
     save_json("candidates.json", ranking.to_dict())
@@ -141,14 +145,19 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
         "appear below ~40 cm-1.",
         f"Candidate ordered phases from the one-orientation fcc model, ranked by the invented 90 K infrared "
         f"counts: best {ranking.candidates[0].space_group[1]} (see candidates.txt).",
-        "After the run: " + "; ".join(
-            f"{r.technique}: {len(r.lines) - len(r.unexplained)} of {len(r.lines)} lines explained"
-            for r in explained),
+        "After the run: "
+        + "; ".join(
+            f"{r.technique}: {len(r.lines) - len(r.unexplained)} of {len(r.lines)} lines explained" for r in explained
+        ),
         "Cryogens, class 3B/4 lasers and pressure cells are hazardous: follow your local rules (docs/safety.md).",
     ]
     notes[1:1] = [f"300 K phase: {u.statement}" for u in seq.phases[0].disorder.units] if seq.phases[0].disorder else []
     report = folder / "report.html"
-    write_report(report, [("300 K (one-orientation model)", warm_model), ("90 K", cold_pred)],
-                 title="Harbour Bay C60 cooling run (demo scenario; invented data)", notes=notes)
+    write_report(
+        report,
+        [("300 K (one-orientation model)", warm_model), ("90 K", cold_pred)],
+        title="Harbour Bay C60 cooling run (demo scenario; invented data)",
+        notes=notes,
+    )
     written.append(report)
     return DemoOutputs(folder.resolve(), tuple(written))

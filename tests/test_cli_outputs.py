@@ -32,8 +32,23 @@ def test_draw_writes_an_svg_with_the_predicted_species(tmp_path, capsys):
 def test_draw_several_phases_and_line_pattern(tmp_path, capsys):
     for kind in ("correlation", "lines"):
         out = tmp_path / f"{kind}.png"
-        code, _, err = run(["draw", STRUCT / "c60_fcc_Fm-3m_disordered.cif", STRUCT / "c60_ordered_Pa-3.cif",
-                            "--labels", "300 K", "90 K", "--band", "T1u", "--kind", kind, "-o", out], capsys)
+        code, _, err = run(
+            [
+                "draw",
+                STRUCT / "c60_fcc_Fm-3m_disordered.cif",
+                STRUCT / "c60_ordered_Pa-3.cif",
+                "--labels",
+                "300 K",
+                "90 K",
+                "--band",
+                "T1u",
+                "--kind",
+                kind,
+                "-o",
+                out,
+            ],
+            capsys,
+        )
         assert code == 0, err
         assert out.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
 
@@ -49,8 +64,7 @@ def test_draw_refuses_unknown_suffix_and_writes_nothing(tmp_path, capsys, name):
 
 def test_report_is_one_self_contained_html_file(tmp_path, capsys):
     out = tmp_path / "r.html"
-    code, _, err = run(["report", STRUCT / "calcite.cif", "-o", out, "--title", "Calcite", "--note", "a note"],
-                       capsys)
+    code, _, err = run(["report", STRUCT / "calcite.cif", "-o", out, "--title", "Calcite", "--note", "a note"], capsys)
     assert code == 0, err
     html = out.read_text(encoding="utf-8")
     assert "<svg" in html
@@ -68,8 +82,10 @@ def test_report_bad_input_writes_nothing(tmp_path, capsys):
 
 def test_explain_json_and_figure(tmp_path, capsys):
     fig = tmp_path / "ir.svg"
-    code, out, err = run(["explain", STRUCT / "c60_ordered_Pa-3.cif", "--peaks", DEMO / "c60_90K_ir_peaks.csv",
-                          "--json", "-o", fig], capsys)
+    code, out, err = run(
+        ["explain", STRUCT / "c60_ordered_Pa-3.cif", "--peaks", DEMO / "c60_90K_ir_peaks.csv", "--json", "-o", fig],
+        capsys,
+    )
     assert code == 0, err
     payload = json.loads(out)
     assert payload["lines"] and fig.exists()
@@ -85,8 +101,14 @@ def test_demo_leaves_the_files_it_announces(tmp_path, capsys):
     out = tmp_path / "demo"
     code, stdout, err = run(["demo", "--out", out], capsys)
     assert code == 0, err
-    for name in ("report.html", "correlation_C60_90K.svg", "phases.txt", "candidates.txt",
-                 "assignment_90K_ir.txt", "species_90K.tex"):
+    for name in (
+        "report.html",
+        "correlation_C60_90K.svg",
+        "phases.txt",
+        "candidates.txt",
+        "assignment_90K_ir.txt",
+        "species_90K.tex",
+    ):
         assert (out / name).exists(), name
         assert name in stdout
     assert "INVENTED" in stdout

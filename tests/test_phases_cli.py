@@ -73,6 +73,7 @@ def test_lower_text_and_json(run_cli):
         "score",
         "reasons",
         "variants",
+        "realised_by_displacements",
     }
     assert d["candidates"] and all(set(c) == keys for c in d["candidates"])
     assert d["candidates"][0]["score"] == 0

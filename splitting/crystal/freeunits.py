@@ -61,19 +61,26 @@ class FreeUnitCache:
             if moved is not None:
                 return moved
         try:
-            analysis = analyse_unit(unit.numbers, unit.positions, tolerance=self.tolerance,
-                                    point_group=self.given.get(unit.formula))
+            analysis = analyse_unit(
+                unit.numbers, unit.positions, tolerance=self.tolerance, point_group=self.given.get(unit.formula)
+            )
         except InputError as exc:
             raise InputError(f"unit {unit.formula}: {exc}") from None
         sym = analysis.symmetry
-        free = FreeUnit(sym.group, analysis.vibrations, sym.linear, sym.max_deviation,
-                        "given" if unit.formula in self.given else "detected")
+        free = FreeUnit(
+            sym.group,
+            analysis.vibrations,
+            sym.linear,
+            sym.max_deviation,
+            "given" if unit.formula in self.given else "detected",
+        )
         self._store.setdefault(key, []).append((centred, np.array(unit.numbers), free))
         return free
 
 
-def _carry(ref: np.ndarray, ref_numbers: np.ndarray, new: np.ndarray, new_numbers: np.ndarray, free: FreeUnit,
-           tolerance: float) -> FreeUnit | None:
+def _carry(
+    ref: np.ndarray, ref_numbers: np.ndarray, new: np.ndarray, new_numbers: np.ndarray, free: FreeUnit, tolerance: float
+) -> FreeUnit | None:
     """The stored analysis moved onto a unit of the same shape, or None if the shapes do not match."""
     from scipy.spatial import cKDTree
 

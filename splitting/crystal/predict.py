@@ -62,8 +62,9 @@ class Options:
     ionic_metals: bool = True
 
 
-def predict(path: str | os.PathLike[str], options: Options | None = None, *, format: str | None = None
-            ) -> CrystalPrediction:
+def predict(
+    path: str | os.PathLike[str], options: Options | None = None, *, format: str | None = None
+) -> CrystalPrediction:
     """Predict the k = 0 modes of the crystal in a structure file.
 
     Examples
@@ -77,17 +78,31 @@ def predict(path: str | os.PathLike[str], options: Options | None = None, *, for
     return predict_atoms(atoms, options, source=os.fspath(path))
 
 
-def predict_atoms(atoms, options: Options | None = None, *, source: str = "structure",
-                  free_cache: FreeUnitCache | None = None, scan: bool = True) -> CrystalPrediction:
+def predict_atoms(
+    atoms,
+    options: Options | None = None,
+    *,
+    source: str = "structure",
+    free_cache: FreeUnitCache | None = None,
+    scan: bool = True,
+) -> CrystalPrediction:
     """As :func:`predict`, for an ``ase.Atoms`` object with a periodic cell.
 
     ``free_cache`` shares free-unit analyses between calls (related phases, candidates).
     """
     opts = options or Options()
-    cell = analyse_cell(atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers,
-                        tolerance=opts.tolerance, scan=scan)
-    units = find_units(cell.lattice, cell.frac, cell.numbers, scale=opts.bond_scale, ionic_metals=opts.ionic_metals,
-                       cutoffs=dict(opts.cutoffs), formulas=list(opts.formulas) or None)
+    cell = analyse_cell(
+        atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=opts.tolerance, scan=scan
+    )
+    units = find_units(
+        cell.lattice,
+        cell.frac,
+        cell.numbers,
+        scale=opts.bond_scale,
+        ionic_metals=opts.ionic_metals,
+        cutoffs=dict(opts.cutoffs),
+        formulas=list(opts.formulas) or None,
+    )
     return _predict(cell, units, opts, source, free_cache)
 
 
@@ -110,8 +125,9 @@ def _orbits(cell: CellSymmetry, units: tuple[Unit, ...]) -> list[list[tuple[int,
             dist = np.linalg.norm(d @ cell.lattice, axis=1)
             v = int(np.argmin(dist))
             if dist[v] > 0.05 or units[v].formula != units[u0].formula:
-                raise SymmetryError(f"operation {k} maps unit {units[u0].formula} onto no unit; "
-                                    "try a different --tolerance")
+                raise SymmetryError(
+                    f"operation {k} maps unit {units[u0].formula} onto no unit; try a different --tolerance"
+                )
             orbit.setdefault(v, k)
         seen.update(orbit)
         orbits.append(sorted(orbit.items()))
@@ -131,15 +147,20 @@ def _warnings(cell: CellSymmetry, units: tuple[Unit, ...]) -> list[str]:
     info = cell.info
     if info.tolerance_sensitive:
         alts = ", ".join(f"{s} (No. {n}) at {t:g} A" for t, n, s in info.other_tolerances if n != info.number)
-        out.append(f"the space group depends on the tolerance: {info.symbol} (No. {info.number}) at "
-                   f"{info.tolerance:g} A, but {alts}")
+        out.append(
+            f"the space group depends on the tolerance: {info.symbol} (No. {info.number}) at "
+            f"{info.tolerance:g} A, but {alts}"
+        )
     symbols = {s for u in units for s in u.symbols}
     if "H" not in symbols:
         suspicious = [u.formula for u in units if u.kind == "molecule" and _undercoordinated_carbon(u)]
         lone_n = [u.formula for u in units if u.kind == "atom" and u.symbols == ["N"]]
         if suspicious or lone_n:
-            out.append("no hydrogen atoms in the structure, but units " + ", ".join(sorted(set(suspicious + lone_n)))
-                       + " look like they need some; X-ray structures often omit H, which changes the free group")
+            out.append(
+                "no hydrogen atoms in the structure, but units "
+                + ", ".join(sorted(set(suspicious + lone_n)))
+                + " look like they need some; X-ray structures often omit H, which changes the free group"
+            )
     return out
 
 
@@ -166,8 +187,9 @@ def _undercoordinated_carbon(unit: Unit) -> bool:
     return bool(np.any(bonded[carbon].sum(axis=1) < 3))
 
 
-def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source: str,
-             free_cache: FreeUnitCache | None = None) -> CrystalPrediction:
+def _predict(
+    cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source: str, free_cache: FreeUnitCache | None = None
+) -> CrystalPrediction:
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     fg = factor.oriented
     reference = cell.reference_axes
@@ -184,11 +206,13 @@ def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source:
         site_idx = _site_ops(cell, centre)
         site = identify(cell.rotations[site_idx], prefer=crystal_preference(reference), reference=reference, tol=1e-3)
         # site-group element order -> cell operations
-        site_cell = [site_idx[int(np.argmin([np.abs(cell.rotations[k] - op).max() for k in site_idx]))]
-                     for op in site.operations]
+        site_cell = [
+            site_idx[int(np.argmin([np.abs(cell.rotations[k] - op).max() for k in site_idx]))] for op in site.operations
+        ]
         if len(site_idx) * len(orbit) != len(cell.rotations):
-            raise BookkeepingError(f"{u0.formula}: |S| x Z = {len(site_idx)} x {len(orbit)} is not |F| = "
-                                   f"{len(cell.rotations)}")
+            raise BookkeepingError(
+                f"{u0.formula}: |S| x Z = {len(site_idx)} x {len(orbit)} is not |F| = {len(cell.rotations)}"
+            )
         vec = np.trace(site.operations, axis1=1, axis2=2)
         trans = induce(factor, site_cell, vec, what=f"translations of {u0.formula}")
         lib = zero
@@ -229,20 +253,40 @@ def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source:
                 correlation.append(Correlation(label, dim, n, site_rep, fac))
                 internal = internal + fac * n
         site_to_factor = tuple(
-            (sp.label, induce(factor, site_cell, site.group.characters_at_operations()[k],
-                              what=f"{sp.label} of site {site.name}"))
+            (
+                sp.label,
+                induce(
+                    factor, site_cell, site.group.characters_at_operations()[k], what=f"{sp.label} of site {site.name}"
+                ),
+            )
             for k, sp in enumerate(site.group.species)
         )
-        orbit_results.append(UnitOrbit(
-            formula=u0.formula, kind=u0.kind, atoms_per_unit=len(u0.atoms), count=len(orbit),
-            count_conventional=_multiplicity(wyck, len(orbit)), wyckoff=wyck,
-            site_symmetry=site_symbol, site_group=site.name, site_axes=_axes_text(cell, site),
-            free_group=free_name, free_group_source=free_source, free_axes=free_axes, max_deviation=deviation,
-            centre=tuple(float(x) for x in (centre @ np.linalg.inv(cell.lattice))), free_vibrations=free_vib,
-            correlation=tuple(correlation), internal=internal, translations=trans, librations=lib,
-            symbols=tuple(u0.symbols), geometry=tuple(tuple(float(c) for c in p) for p in (u0.positions - centre)),
-            site_to_factor=site_to_factor,
-        ))
+        orbit_results.append(
+            UnitOrbit(
+                formula=u0.formula,
+                kind=u0.kind,
+                atoms_per_unit=len(u0.atoms),
+                count=len(orbit),
+                count_conventional=_multiplicity(wyck, len(orbit)),
+                wyckoff=wyck,
+                site_symmetry=site_symbol,
+                site_group=site.name,
+                site_axes=_axes_text(cell, site),
+                free_group=free_name,
+                free_group_source=free_source,
+                free_axes=free_axes,
+                max_deviation=deviation,
+                centre=tuple(float(x) for x in (centre @ np.linalg.inv(cell.lattice))),
+                free_vibrations=free_vib,
+                correlation=tuple(correlation),
+                internal=internal,
+                translations=trans,
+                librations=lib,
+                symbols=tuple(u0.symbols),
+                geometry=tuple(tuple(float(c) for c in p) for p in (u0.positions - centre)),
+                site_to_factor=site_to_factor,
+            )
+        )
     gamma = _gamma_3n(cell, factor)
     acoustic = fg.group.vector
     total = zero
@@ -255,21 +299,37 @@ def _predict(cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source:
     for (label, _), dim in zip(gamma.counts, gamma.dimensions, strict=True):
         tr = sum(o.translations[label] for o in orbit_results) - acoustic[label]
         a = act[label]
-        species.append(FactorSpecies(
-            label=label, dimension=dim, acoustic=acoustic[label], translational=tr,
-            librational=sum(o.librations[label] for o in orbit_results),
-            internal=sum(o.internal[label] for o in orbit_results),
-            ir=a.ir, raman=a.raman, raman_tensor=a.raman_tensor,
-            polar=bool(a.ir and a.raman and not fg.group.centrosymmetric),
-        ))
+        species.append(
+            FactorSpecies(
+                label=label,
+                dimension=dim,
+                acoustic=acoustic[label],
+                translational=tr,
+                librational=sum(o.librations[label] for o in orbit_results),
+                internal=sum(o.internal[label] for o in orbit_results),
+                ir=a.ir,
+                raman=a.raman,
+                raman_tensor=a.raman_tensor,
+                polar=bool(a.ir and a.raman and not fg.group.centrosymmetric),
+            )
+        )
     from ase.data import chemical_symbols
 
     return CrystalPrediction(
-        source=source, formula=hill_formula([chemical_symbols[z] for z in cell.numbers]),
-        space_group=cell.info, factor_group=fg.name, factor_axes=_axes_text(cell, fg),
-        centrosymmetric=fg.group.centrosymmetric, atoms_primitive=len(cell.numbers), atoms_input=cell.input_atoms,
-        units=tuple(orbit_results), species=tuple(species), gamma_3n=gamma, acoustic=acoustic,
-        warnings=tuple(_warnings(cell, units)), cell_volume=float(abs(np.linalg.det(cell.lattice))),
+        source=source,
+        formula=hill_formula([chemical_symbols[z] for z in cell.numbers]),
+        space_group=cell.info,
+        factor_group=fg.name,
+        factor_axes=_axes_text(cell, fg),
+        centrosymmetric=fg.group.centrosymmetric,
+        atoms_primitive=len(cell.numbers),
+        atoms_input=cell.input_atoms,
+        units=tuple(orbit_results),
+        species=tuple(species),
+        gamma_3n=gamma,
+        acoustic=acoustic,
+        warnings=tuple(_warnings(cell, units)),
+        cell_volume=float(abs(np.linalg.det(cell.lattice))),
     )
 
 
@@ -286,8 +346,16 @@ def _gamma_3n(cell: CellSymmetry, factor: FactorGroup) -> Representation:
     return factor.reduce_cell(chars, what="Γ3N")
 
 
-def _check_geometric(cell: CellSymmetry, factor: FactorGroup, orbit, centre: np.ndarray, free: OrientedGroup,
-                     label: str, expected: Representation, formula: str) -> None:
+def _check_geometric(
+    cell: CellSymmetry,
+    factor: FactorGroup,
+    orbit,
+    centre: np.ndarray,
+    free: OrientedGroup,
+    label: str,
+    expected: Representation,
+    formula: str,
+) -> None:
     """Method-notes route: sum, over the units that g leaves in place, of chi(g) in each unit's orientation."""
     units = [(h, cell.apply(h, centre)) for _, h in orbit]
     chars = np.zeros(len(cell.rotations))
@@ -304,8 +372,9 @@ def _check_geometric(cell: CellSymmetry, factor: FactorGroup, orbit, centre: np.
         raise BookkeepingError(f"{formula} {label}: coset route gives {expected}, unit-by-unit route gives {got}")
 
 
-def _check_frobenius(factor: FactorGroup, site: OrientedGroup, site_rep: Representation, fac: Representation,
-                     label: str) -> None:
+def _check_frobenius(
+    factor: FactorGroup, site: OrientedGroup, site_rep: Representation, fac: Representation, label: str
+) -> None:
     """Frobenius reciprocity, counted with the number of complex irreps in each physical species."""
     fg = factor.oriented
     for phi, n in fac.counts:

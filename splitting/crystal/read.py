@@ -47,13 +47,17 @@ def load_structure(path: str | os.PathLike[str], *, format: str | None = None, a
     """
     atoms = read_atoms(path, format=format)
     if not all(atoms.pbc) or atoms.cell.rank < 3 or abs(atoms.cell.volume) < 1e-6:
-        raise InputError(f"{path}: no three-dimensional periodic cell; give a crystal structure "
-                         "(CIF, POSCAR, extended XYZ with a Lattice)")
+        raise InputError(
+            f"{path}: no three-dimensional periodic cell; give a crystal structure "
+            "(CIF, POSCAR, extended XYZ with a Lattice)"
+        )
     partial = partial_sites(atoms)
     if partial and not allow_partial:
         shown = ", ".join(partial[:4]) + (" ..." if len(partial) > 4 else "")
-        raise InputError(f"{path}: partial occupancy at {shown}; the file describes a disordered structure, "
-                         "not an ordered one (run 'splitting predict --disordered' to treat it as a disordered phase)")
+        raise InputError(
+            f"{path}: partial occupancy at {shown}; the file describes a disordered structure, "
+            "not an ordered one (run 'splitting predict --disordered' to treat it as a disordered phase)"
+        )
     if not partial:
         try:
             check_overlaps(atoms)

@@ -40,9 +40,15 @@ class Correlation:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form (``site`` and ``factor`` as label/count lists)."""
-        return {"free": self.free, "free_dimension": self.free_dimension, "modes": self.modes,
-                "site": _rep_list(self.site), "factor": _rep_list(self.factor),
-                "site_text": str(self.site), "factor_text": str(self.factor)}
+        return {
+            "free": self.free,
+            "free_dimension": self.free_dimension,
+            "modes": self.modes,
+            "site": _rep_list(self.site),
+            "factor": _rep_list(self.factor),
+            "site_text": str(self.site),
+            "factor_text": str(self.factor),
+        }
 
 
 @dataclass(frozen=True)
@@ -123,19 +129,28 @@ class UnitOrbit:
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
         return {
-            "formula": self.formula, "kind": self.kind, "atoms_per_unit": self.atoms_per_unit,
-            "count": self.count, "count_conventional": self.count_conventional,
-            "wyckoff": self.wyckoff, "site_symmetry": self.site_symmetry,
-            "site_group": self.site_group, "site_axes": self.site_axes,
-            "free_group": self.free_group, "free_group_source": self.free_group_source,
-            "free_axes": self.free_axes, "max_deviation_angstrom": round(self.max_deviation, 4),
+            "formula": self.formula,
+            "kind": self.kind,
+            "atoms_per_unit": self.atoms_per_unit,
+            "count": self.count,
+            "count_conventional": self.count_conventional,
+            "wyckoff": self.wyckoff,
+            "site_symmetry": self.site_symmetry,
+            "site_group": self.site_group,
+            "site_axes": self.site_axes,
+            "free_group": self.free_group,
+            "free_group_source": self.free_group_source,
+            "free_axes": self.free_axes,
+            "max_deviation_angstrom": round(self.max_deviation, 4),
             "centre_fractional": [round(c, 5) for c in self.centre],
             "free_vibrations": str(self.free_vibrations) if self.free_vibrations is not None else None,
             "correlation": [c.to_dict() for c in self.correlation],
-            "internal": str(self.internal), "translations": str(self.translations),
+            "internal": str(self.internal),
+            "translations": str(self.translations),
             "librations": str(self.librations),
-            "site_to_factor": [{"site": lab, "factor": _rep_list(rep), "factor_text": str(rep)}
-                               for lab, rep in self.site_to_factor],
+            "site_to_factor": [
+                {"site": lab, "factor": _rep_list(rep), "factor_text": str(rep)} for lab, rep in self.site_to_factor
+            ],
             "symbols": list(self.symbols),
             "geometry_angstrom": [[round(c, 5) for c in p] for p in self.geometry],
         }
@@ -173,11 +188,21 @@ class FactorSpecies:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"label": self.label, "dimension": self.dimension, "acoustic": self.acoustic,
-                "optical": self.optical, "internal": self.internal, "translational": self.translational,
-                "librational": self.librational, "ir": bool(self.ir), "raman": bool(self.raman),
-                "ir_components": list(self.ir), "raman_components": list(self.raman),
-                "raman_tensor": [list(r) for r in self.raman_tensor], "polar": self.polar}
+        return {
+            "label": self.label,
+            "dimension": self.dimension,
+            "acoustic": self.acoustic,
+            "optical": self.optical,
+            "internal": self.internal,
+            "translational": self.translational,
+            "librational": self.librational,
+            "ir": bool(self.ir),
+            "raman": bool(self.raman),
+            "ir_components": list(self.ir),
+            "raman_components": list(self.raman),
+            "raman_tensor": [list(r) for r in self.raman_tensor],
+            "polar": self.polar,
+        }
 
 
 @dataclass(frozen=True)
@@ -241,8 +266,13 @@ class CrystalPrediction:
         raman = sum(s.optical for s in self.species if s.raman)
         silent = sum(s.optical for s in self.species if not s.ir and not s.raman)
         polar = sum(s.optical for s in self.species if s.polar)
-        return {"ir": ir, "raman": raman, "silent": silent, "polar": polar,
-                "optical": sum(s.optical for s in self.species)}
+        return {
+            "ir": ir,
+            "raman": raman,
+            "silent": silent,
+            "polar": polar,
+            "optical": sum(s.optical for s in self.species),
+        }
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form (schema in docs/json-schema.md)."""

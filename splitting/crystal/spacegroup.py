@@ -58,8 +58,15 @@ def spglib_dataset(lattice: np.ndarray, frac: np.ndarray, numbers: np.ndarray, t
 
 def crystal_system(number: int) -> str:
     """Crystal system of a space-group number (International Tables, Vol. A)."""
-    for upper, name in ((2, "triclinic"), (15, "monoclinic"), (74, "orthorhombic"), (142, "tetragonal"),
-                        (167, "trigonal"), (194, "hexagonal"), (230, "cubic")):
+    for upper, name in (
+        (2, "triclinic"),
+        (15, "monoclinic"),
+        (74, "orthorhombic"),
+        (142, "tetragonal"),
+        (167, "trigonal"),
+        (194, "hexagonal"),
+        (230, "cubic"),
+    ):
         if number <= upper:
             return name
     raise SymmetryError(f"space group number {number} out of range")  # pragma: no cover
@@ -104,11 +111,18 @@ class SpaceGroupInfo:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"number": self.number, "symbol": self.symbol, "schoenflies": self.schoenflies,
-                "hall_number": self.hall_number, "point_group": self.point_group,
-                "crystal_system": self.crystal_system, "tolerance_angstrom": self.tolerance,
-                "other_tolerances": [{"tolerance_angstrom": t, "number": n, "symbol": s}
-                                     for t, n, s in self.other_tolerances]}
+        return {
+            "number": self.number,
+            "symbol": self.symbol,
+            "schoenflies": self.schoenflies,
+            "hall_number": self.hall_number,
+            "point_group": self.point_group,
+            "crystal_system": self.crystal_system,
+            "tolerance_angstrom": self.tolerance,
+            "other_tolerances": [
+                {"tolerance_angstrom": t, "number": n, "symbol": s} for t, n, s in self.other_tolerances
+            ],
+        }
 
 
 @dataclass(frozen=True, eq=False)
@@ -209,8 +223,9 @@ class CellSymmetry:
                 out.append(f @ self.lattice)
         return np.array(out)
 
-    def wyckoff_of(self, points: list[np.ndarray], *, tolerance: float = DEFAULT_CELL_TOLERANCE
-                   ) -> list[tuple[str, str]]:
+    def wyckoff_of(
+        self, points: list[np.ndarray], *, tolerance: float = DEFAULT_CELL_TOLERANCE
+    ) -> list[tuple[str, str]]:
         """Wyckoff position (multiplicity and letter, e.g. ``"4a"``) and oriented site symbol of points.
 
         Where no atom sits at a point, a dummy atom of a new kind is placed on its orbit and
@@ -264,12 +279,26 @@ def _info(ds, tolerance: float, others) -> SpaceGroupInfo:
 
 
 def _info_of_type(t, tolerance: float, others=()) -> SpaceGroupInfo:
-    return SpaceGroupInfo(int(t.number), t.international_short, t.schoenflies, int(t.hall_number),
-                          t.pointgroup_international, crystal_system(int(t.number)), tolerance, tuple(others))
+    return SpaceGroupInfo(
+        int(t.number),
+        t.international_short,
+        t.schoenflies,
+        int(t.hall_number),
+        t.pointgroup_international,
+        crystal_system(int(t.number)),
+        tolerance,
+        tuple(others),
+    )
 
 
-def cell_from_operations(lattice: np.ndarray, frac: np.ndarray, numbers: np.ndarray, rotations: np.ndarray,
-                         translations: np.ndarray, conventional: np.ndarray) -> CellSymmetry:
+def cell_from_operations(
+    lattice: np.ndarray,
+    frac: np.ndarray,
+    numbers: np.ndarray,
+    rotations: np.ndarray,
+    translations: np.ndarray,
+    conventional: np.ndarray,
+) -> CellSymmetry:
     """A cell whose space group is given as operations (fractional, in this lattice's basis).
 
     Used for candidate phases whose atoms alone do not show the lower symmetry; the type is
@@ -287,15 +316,25 @@ def cell_from_operations(lattice: np.ndarray, frac: np.ndarray, numbers: np.ndar
     rots = np.einsum("ji,njk,kl->nil", lat, w.astype(float), np.linalg.inv(lat).T)
     n = len(numbers)
     return CellSymmetry(
-        info=_info_of_type(sg_type, 0.0), lattice=lat, frac=np.asarray(frac, dtype=float),
-        numbers=np.asarray(numbers), rotations=rots, translations=t @ lat, frac_rotations=w.astype(float),
-        frac_translations=t, conventional=np.asarray(conventional, dtype=float), wyckoffs=("?",) * n,
-        site_symbols=("?",) * n, input_atoms=n, sites_named=False,
+        info=_info_of_type(sg_type, 0.0),
+        lattice=lat,
+        frac=np.asarray(frac, dtype=float),
+        numbers=np.asarray(numbers),
+        rotations=rots,
+        translations=t @ lat,
+        frac_rotations=w.astype(float),
+        frac_translations=t,
+        conventional=np.asarray(conventional, dtype=float),
+        wyckoffs=("?",) * n,
+        site_symbols=("?",) * n,
+        input_atoms=n,
+        sites_named=False,
     )
 
 
-def analyse_cell(lattice, frac, numbers, *, tolerance: float = DEFAULT_CELL_TOLERANCE,
-                 scan: bool = True) -> CellSymmetry:
+def analyse_cell(
+    lattice, frac, numbers, *, tolerance: float = DEFAULT_CELL_TOLERANCE, scan: bool = True
+) -> CellSymmetry:
     """Space group of a periodic structure and its primitive cell with operations.
 
     Parameters
@@ -350,9 +389,16 @@ def analyse_cell(lattice, frac, numbers, *, tolerance: float = DEFAULT_CELL_TOLE
     for arr in (plat, pfrac, pnum, rots, trans, conv_cols):
         arr.setflags(write=False)
     return CellSymmetry(
-        info=info, lattice=plat, frac=pfrac, numbers=pnum, rotations=rots, translations=trans,
-        frac_rotations=rot_frac, frac_translations=np.asarray(pds.translations, dtype=float),
-        conventional=conv_cols.T.copy(), wyckoffs=tuple(pds.wyckoffs),
+        info=info,
+        lattice=plat,
+        frac=pfrac,
+        numbers=pnum,
+        rotations=rots,
+        translations=trans,
+        frac_rotations=rot_frac,
+        frac_translations=np.asarray(pds.translations, dtype=float),
+        conventional=conv_cols.T.copy(),
+        wyckoffs=tuple(pds.wyckoffs),
         site_symbols=tuple(pds.site_symmetry_symbols),
         input_atoms=len(numbers),
     )

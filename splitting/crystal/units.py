@@ -93,10 +93,16 @@ def parse_cutoffs(items: list[str] | None) -> dict[tuple[str, str], float]:
     return out
 
 
-def find_units(lattice: np.ndarray, frac: np.ndarray, numbers: np.ndarray, *,
-               scale: float = DEFAULT_BOND_SCALE, ionic_metals: bool = True,
-               cutoffs: dict[tuple[str, str], float] | None = None,
-               formulas: list[str] | None = None) -> tuple[Unit, ...]:
+def find_units(
+    lattice: np.ndarray,
+    frac: np.ndarray,
+    numbers: np.ndarray,
+    *,
+    scale: float = DEFAULT_BOND_SCALE,
+    ionic_metals: bool = True,
+    cutoffs: dict[tuple[str, str], float] | None = None,
+    formulas: list[str] | None = None,
+) -> tuple[Unit, ...]:
     """Split the primitive cell into units.
 
     Parameters
@@ -170,8 +176,9 @@ def find_units(lattice: np.ndarray, frac: np.ndarray, numbers: np.ndarray, *,
         found = {u.formula for u in units}
         missing = wanted - found
         if missing:
-            raise InputError(f"no unit with formula {', '.join(sorted(missing))}; units found: "
-                             f"{', '.join(sorted(found))}")
+            raise InputError(
+                f"no unit with formula {', '.join(sorted(missing))}; units found: {', '.join(sorted(found))}"
+            )
         split: list[Unit] = []
         for u in units:
             if u.kind == "molecule" and u.formula not in wanted:

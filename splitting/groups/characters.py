@@ -57,9 +57,7 @@ def clean(values: np.ndarray, tol: float = 1e-9) -> np.ndarray:
     return re + 1j * im
 
 
-def character_table(
-    table: np.ndarray, classes: list[np.ndarray], class_of: np.ndarray, *, seed: int = 7
-) -> np.ndarray:
+def character_table(table: np.ndarray, classes: list[np.ndarray], class_of: np.ndarray, *, seed: int = 7) -> np.ndarray:
     """Irreducible characters, one row per irrep, one column per class.
 
     Rows are ordered by dimension; within a dimension by decreasing real part of the

@@ -218,8 +218,11 @@ def name_of(ops: np.ndarray) -> str:
             k.symbol == "σ" and _parallel(k.axis, principal.direction) for k in kinds
         )
         s2n = principal is not None and any(
-            (not k.proper) and k.symbol not in ("σ", "i") and _parallel(k.axis, principal.direction)
-            and k.order == 2 * n for k in kinds
+            (not k.proper)
+            and k.symbol not in ("σ", "i")
+            and _parallel(k.axis, principal.direction)
+            and k.order == 2 * n
+            for k in kinds
         )
         if rot == "C1":
             name = "Cs"
@@ -284,15 +287,20 @@ def _candidate_frames(name: str, ops: np.ndarray, kinds, reference: np.ndarray) 
             top = max(a.order for a in axes)
             zs = signed([a.direction for a in axes if a.order == top])
         if fam in ("Dn", "Dnh", "Dnd"):
+
             def xs_for(z):
                 return signed([a.direction for a in axes if a.order == 2 and abs(np.dot(a.direction, z)) < 1e-3])
         elif fam == "Cnv":
+
             def xs_for(z):
-                return signed([np.cross(z, m) / np.linalg.norm(np.cross(z, m)) for m in mirrors
-                               if abs(np.dot(m, z)) < 1e-3])
+                return signed(
+                    [np.cross(z, m) / np.linalg.norm(np.cross(z, m)) for m in mirrors if abs(np.dot(m, z)) < 1e-3]
+                )
         else:
+
             def xs_for(z):
                 return [_perpendicular(z, ref_x)]
+
     frames = []
     for z in zs:
         for x in xs_for(z):
@@ -312,8 +320,13 @@ def crystal_preference(reference: np.ndarray) -> Preference:
         z = abs(float(np.dot(frame[:, 2], ref[:, 2])))
         x = abs(float(np.dot(frame[:, 0], ref[:, 0])))
         y = abs(float(np.dot(frame[:, 1], ref[:, 1])))
-        return (round(z, 6), round(x, 6), round(y, 6), float(np.dot(frame[:, 2], ref[:, 2])),
-                float(np.dot(frame[:, 0], ref[:, 0])))
+        return (
+            round(z, 6),
+            round(x, 6),
+            round(y, 6),
+            float(np.dot(frame[:, 2], ref[:, 2])),
+            float(np.dot(frame[:, 0], ref[:, 0])),
+        )
 
     return score
 
@@ -350,8 +363,9 @@ def molecular_preference(positions: np.ndarray, *, tol: float = 0.1) -> Preferen
     return score
 
 
-def identify(ops: np.ndarray, *, prefer: Preference | None = None, reference: np.ndarray | None = None,
-             tol: float = 0.05) -> OrientedGroup:
+def identify(
+    ops: np.ndarray, *, prefer: Preference | None = None, reference: np.ndarray | None = None, tol: float = 0.05
+) -> OrientedGroup:
     """Identify a finite group given as operations and find its standard frame.
 
     Parameters

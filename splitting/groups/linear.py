@@ -142,8 +142,9 @@ class LinearGroup(SpeciesList):
             ops += [-o for o in ops]
         return np.array(ops)
 
-    def reduce_function(self, chi: Callable[[np.ndarray], float], dimension: int, *,
-                        what: str = "representation") -> Representation:
+    def reduce_function(
+        self, chi: Callable[[np.ndarray], float], dimension: int, *, what: str = "representation"
+    ) -> Representation:
         """Reduce a representation of known dimension given as a character function.
 
         Raises
@@ -209,15 +210,17 @@ class LinearGroup(SpeciesList):
         """Direct product of species."""
         spec = [self.get_species(lab) for lab in labels]
         dim = int(np.prod([s.dimension for s in spec]))
-        return self.reduce_function(lambda r: float(np.prod([s.character(r) for s in spec])), dim,
-                                    what=f"product {' x '.join(labels)}")
+        return self.reduce_function(
+            lambda r: float(np.prod([s.character(r) for s in spec])), dim, what=f"product {' x '.join(labels)}"
+        )
 
     def symmetric_square(self, label: str) -> Representation:
         """Symmetric square of a species."""
         s = self.get_species(label)
         d = s.dimension
         return self.reduce_function(
-            lambda r: (s.character(r) ** 2 + s.character(r @ r)) / 2, d * (d + 1) // 2,
+            lambda r: (s.character(r) ** 2 + s.character(r @ r)) / 2,
+            d * (d + 1) // 2,
             what=f"symmetric square of {label}",
         )
 
@@ -228,8 +231,13 @@ class LinearGroup(SpeciesList):
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready summary."""
-        return {"name": self.name, "order": "infinite", "species": list(self.labels[:8]),
-                "vector": str(self.vector), "axial": str(self.axial)}
+        return {
+            "name": self.name,
+            "order": "infinite",
+            "species": list(self.labels[:8]),
+            "vector": str(self.vector),
+            "axial": str(self.axial),
+        }
 
 
 _ASCII = {"Sigma": "Σ", "Pi": "Π", "Delta": "Δ", "Phi": "Φ", "Gamma": "Γ"}
@@ -240,7 +248,7 @@ def normalise_linear_label(label: str) -> str:
     s = label.strip().replace("_", "").replace("^", "")
     for word, greek in _ASCII.items():
         if s.startswith(word):
-            s = greek + s[len(word):]
+            s = greek + s[len(word) :]
     if s.startswith("Σ"):
         sign = "+" if "+" in s else ("-" if "-" in s else "")
         par = "g" if "g" in s[1:] else ("u" if "u" in s[1:] else "")

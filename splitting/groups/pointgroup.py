@@ -303,9 +303,7 @@ def point_group(name: str) -> PointGroup:
             groups.append((i,))
             used.add(i)
             continue
-        j = next(
-            j for j in range(len(irr)) if j not in used and j != i and np.allclose(irr[j], row.conj(), atol=1e-8)
-        )
+        j = next(j for j in range(len(irr)) if j not in used and j != i and np.allclose(irr[j], row.conj(), atol=1e-8))
         groups.append((i, j))
         used.update((i, j))
     chars = [np.sum(irr[list(g)], axis=0).real for g in groups]

@@ -120,8 +120,9 @@ class Representation:
         return " + ".join(parts) if parts else "0"
 
     @classmethod
-    def from_mapping(cls, group: str, labels: tuple[str, ...], dims: tuple[int, ...],
-                     mapping: Mapping[str, int]) -> Representation:
+    def from_mapping(
+        cls, group: str, labels: tuple[str, ...], dims: tuple[int, ...], mapping: Mapping[str, int]
+    ) -> Representation:
         """Build from a partial mapping label -> count."""
         unknown = set(mapping) - set(labels)
         if unknown:

@@ -141,8 +141,9 @@ class Embedding:
             "operations_from_classes": list(self.parent_classes),
             "conjugate_copies": self.conjugates,
             "axes": self.axis_relation(),
-            "correlation": [{"species": lab, "becomes": rep.as_dict(), "text": str(rep)}
-                            for lab, rep in self.correlation()],
+            "correlation": [
+                {"species": lab, "becomes": rep.as_dict(), "text": str(rep)} for lab, rep in self.correlation()
+            ],
         }
 
 
@@ -183,6 +184,5 @@ def embeddings(parent: str, sub: str | None = None) -> list[Embedding]:
         out.append(Embedding(g.name, og, tuple(sorted(members)), conj))
     if target and not out:
         raise SymmetryError(f"{target} is not a subgroup of {g.name}")
-    out.sort(key=lambda e: (-e.subgroup.group.order, e.subgroup.name,
-                            sorted({int(g.class_of[m]) for m in e.members})))
+    out.sort(key=lambda e: (-e.subgroup.group.order, e.subgroup.name, sorted({int(g.class_of[m]) for m in e.members})))
     return out

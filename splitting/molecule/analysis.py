@@ -59,10 +59,16 @@ class ModeSpecies:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"label": self.label, "dimension": self.dimension, "count": self.count,
-                "ir": bool(self.ir), "raman": bool(self.raman),
-                "ir_components": list(self.ir), "raman_components": list(self.raman),
-                "raman_tensor": [list(r) for r in self.raman_tensor]}
+        return {
+            "label": self.label,
+            "dimension": self.dimension,
+            "count": self.count,
+            "ir": bool(self.ir),
+            "raman": bool(self.raman),
+            "ir_components": list(self.ir),
+            "raman_components": list(self.raman),
+            "raman_tensor": [list(r) for r in self.raman_tensor],
+        }
 
 
 def hill_formula(symbols: list[str]) -> str:
@@ -97,8 +103,9 @@ def gamma_3n(sym: MoleculeSymmetry) -> Representation:
     return grp.reduce_operations(chars, what="Γ3N")
 
 
-def external_representations(group: OrientedGroup | object, *, linear: bool, single_atom: bool = False
-                             ) -> tuple[Representation, Representation]:
+def external_representations(
+    group: OrientedGroup | object, *, linear: bool, single_atom: bool = False
+) -> tuple[Representation, Representation]:
     """Translations and rotations of a free unit in its own group."""
     grp = group.group if isinstance(group, OrientedGroup) else group
     trans = grp.vector
@@ -201,12 +208,27 @@ def _with_group(sym: MoleculeSymmetry, name: str) -> MoleculeSymmetry:
     assert best is not None
     og = best[1]
     idx = [sym.group.locate(op) for op in og.operations]
-    return MoleculeSymmetry(og, sym.centre, sym.numbers, sym.positions, sym.symmetric_positions,
-                            og.operations, sym.permutations[idx], sym.max_deviation, sym.tolerance)
+    return MoleculeSymmetry(
+        og,
+        sym.centre,
+        sym.numbers,
+        sym.positions,
+        sym.symmetric_positions,
+        og.operations,
+        sym.permutations[idx],
+        sym.max_deviation,
+        sym.tolerance,
+    )
 
 
-def analyse_unit(numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE, point_group: str | None = None,
-                 symbols: list[str] | None = None) -> FreeUnitAnalysis:
+def analyse_unit(
+    numbers,
+    positions,
+    *,
+    tolerance: float = DEFAULT_TOLERANCE,
+    point_group: str | None = None,
+    symbols: list[str] | None = None,
+) -> FreeUnitAnalysis:
     """Vibrational species of a free molecule or ion.
 
     Parameters

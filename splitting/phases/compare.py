@@ -41,8 +41,13 @@ class Component:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"label": self.label, "dimension": self.dimension, "count": self.count, "ir": self.ir,
-                "raman": self.raman}
+        return {
+            "label": self.label,
+            "dimension": self.dimension,
+            "count": self.count,
+            "ir": self.ir,
+            "raman": self.raman,
+        }
 
 
 @dataclass(frozen=True)
@@ -92,9 +97,18 @@ class BandState:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"unit": self.unit, "band": self.band, "modes": self.modes, "group": self.group,
-                "coupling": self.coupling, "components": [c.to_dict() for c in self.components],
-                "ir": self.ir, "raman": self.raman, "total": self.total, "text": self.text()}
+        return {
+            "unit": self.unit,
+            "band": self.band,
+            "modes": self.modes,
+            "group": self.group,
+            "coupling": self.coupling,
+            "components": [c.to_dict() for c in self.components],
+            "ir": self.ir,
+            "raman": self.raman,
+            "total": self.total,
+            "text": self.text(),
+        }
 
 
 @dataclass(frozen=True)
@@ -149,18 +163,30 @@ class Phase:
             if d is None:
                 act = {s.label: s for s in self.crystal.species}
                 for c in orbit.correlation:
-                    comps = tuple(Component(lab, _dim(self.crystal.factor_group, lab), n, bool(act[lab].ir),
-                                            bool(act[lab].raman)) for lab, n in c.factor)
-                    out.append(BandState(orbit.formula, c.free, c.modes, self.crystal.factor_group, "factor group",
-                                         comps))
+                    comps = tuple(
+                        Component(lab, _dim(self.crystal.factor_group, lab), n, bool(act[lab].ir), bool(act[lab].raman))
+                        for lab, n in c.factor
+                    )
+                    out.append(
+                        BandState(orbit.formula, c.free, c.modes, self.crystal.factor_group, "factor group", comps)
+                    )
                 continue
             group = d.orientation_site_group if d.state == "static" else d.free_group
             act = {a.label: a for a in activity_table(group)}
             for p in d.pattern:
-                comps = tuple(Component(lab, _dim(group, lab), n, bool(act[lab].ir), bool(act[lab].raman))
-                              for lab, n in p.site)
-                out.append(BandState(d.formula, p.free, p.modes, group,
-                                     "one-orientation site" if d.state == "static" else "free unit", comps))
+                comps = tuple(
+                    Component(lab, _dim(group, lab), n, bool(act[lab].ir), bool(act[lab].raman)) for lab, n in p.site
+                )
+                out.append(
+                    BandState(
+                        d.formula,
+                        p.free,
+                        p.modes,
+                        group,
+                        "one-orientation site" if d.state == "static" else "free unit",
+                        comps,
+                    )
+                )
         return out
 
     def lattice(self) -> dict[str, object]:
@@ -171,23 +197,39 @@ class Phase:
             tr_r = sum(s.translational for s in c.species if s.raman)
             li_ir = sum(s.librational for s in c.species if s.ir)
             li_r = sum(s.librational for s in c.species if s.raman)
-            return {"translational_ir": tr_ir, "translational_raman": tr_r, "librational_ir": li_ir,
-                    "librational_raman": li_r, "librations_sharp": True,
-                    "text": f"{tr_ir} IR + {tr_r} Raman translational, {li_ir} IR + {li_r} Raman librational"}
+            return {
+                "translational_ir": tr_ir,
+                "translational_raman": tr_r,
+                "librational_ir": li_ir,
+                "librational_raman": li_r,
+                "librations_sharp": True,
+                "text": f"{tr_ir} IR + {tr_r} Raman translational, {li_ir} IR + {li_r} Raman librational",
+            }
         d = self.disorder
         act = {lab: (ir, raman) for lab, ir, raman in d.activity}
         tr_ir = sum(n for lab, n in d.translations if act[lab][0])
         tr_r = sum(n for lab, n in d.translations if act[lab][1])
-        return {"translational_ir": tr_ir, "translational_raman": tr_r, "librational_ir": 0, "librational_raman": 0,
-                "librations_sharp": False,
-                "text": f"{tr_ir} IR + {tr_r} Raman translational; librations of the disordered units are not sharp"}
+        return {
+            "translational_ir": tr_ir,
+            "translational_raman": tr_r,
+            "librational_ir": 0,
+            "librational_raman": 0,
+            "librations_sharp": False,
+            "text": f"{tr_ir} IR + {tr_r} Raman translational; librations of the disordered units are not sharp",
+        }
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"label": self.label, "source": self.source, "ordered": self.ordered,
-                "space_group": self.space_group.to_dict(), "factor_group": self.factor_group,
-                "bands": [b.to_dict() for b in self.bands()], "lattice": self.lattice(),
-                "disorder": [u.to_dict() for u in self.disorder.units] if self.disorder else []}
+        return {
+            "label": self.label,
+            "source": self.source,
+            "ordered": self.ordered,
+            "space_group": self.space_group.to_dict(),
+            "factor_group": self.factor_group,
+            "bands": [b.to_dict() for b in self.bands()],
+            "lattice": self.lattice(),
+            "disorder": [u.to_dict() for u in self.disorder.units] if self.disorder else [],
+        }
 
 
 def _dim(group: str, label: str) -> int:
@@ -231,9 +273,15 @@ class PhaseStep:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"upper": self.upper, "lower": self.lower, "factor_subgroup": self.subgroup,
-                "point_group_index": self.point_index, "cell_multiple": round(self.cell_multiple, 4),
-                "volume_ratio_per_unit": round(self.volume_ratio, 4), "kind": self.kind}
+        return {
+            "upper": self.upper,
+            "lower": self.lower,
+            "factor_subgroup": self.subgroup,
+            "point_group_index": self.point_index,
+            "cell_multiple": round(self.cell_multiple, 4),
+            "volume_ratio_per_unit": round(self.volume_ratio, 4),
+            "kind": self.kind,
+        }
 
 
 @dataclass(frozen=True)
@@ -247,10 +295,22 @@ class BandChange:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"unit": self.unit, "band": self.band,
-                "phases": [{"components": s.text(), "group": s.group, "coupling": s.coupling, "ir": s.ir,
-                            "raman": s.raman, "total": s.total} for s in self.states],
-                "remarks": list(self.remarks)}
+        return {
+            "unit": self.unit,
+            "band": self.band,
+            "phases": [
+                {
+                    "components": s.text(),
+                    "group": s.group,
+                    "coupling": s.coupling,
+                    "ir": s.ir,
+                    "raman": s.raman,
+                    "total": s.total,
+                }
+                for s in self.states
+            ],
+            "remarks": list(self.remarks),
+        }
 
 
 @dataclass(frozen=True)
@@ -264,12 +324,22 @@ class PhaseSequence:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"phases": [p.to_dict() for p in self.phases], "steps": [s.to_dict() for s in self.steps],
-                "bands": [b.to_dict() for b in self.bands], "lattice_remarks": list(self.lattice_remarks)}
+        return {
+            "phases": [p.to_dict() for p in self.phases],
+            "steps": [s.to_dict() for s in self.steps],
+            "bands": [b.to_dict() for b in self.bands],
+            "lattice_remarks": list(self.lattice_remarks),
+        }
 
 
-def load_phase(path: str | os.PathLike[str], label: str, options: Options | None = None, *,
-               states: dict[str, str] | None = None, cache: FreeUnitCache | None = None) -> Phase:
+def load_phase(
+    path: str | os.PathLike[str],
+    label: str,
+    options: Options | None = None,
+    *,
+    states: dict[str, str] | None = None,
+    cache: FreeUnitCache | None = None,
+) -> Phase:
     """Predict one phase from a file; partial occupancies or declared rotors make it a disordered phase."""
     opts = options or Options()
     atoms = load_structure(path, allow_partial=True)
@@ -331,8 +401,13 @@ def _remarks(states: list[BandState], labels: list[str]) -> list[str]:
     return out
 
 
-def compare_phases(paths: Sequence[str | os.PathLike[str]], labels: Sequence[str] | None = None,
-                   options: Options | None = None, *, states: dict[str, str] | None = None) -> PhaseSequence:
+def compare_phases(
+    paths: Sequence[str | os.PathLike[str]],
+    labels: Sequence[str] | None = None,
+    options: Options | None = None,
+    *,
+    states: dict[str, str] | None = None,
+) -> PhaseSequence:
     """Predict every phase of a sequence (upper first) and say what changes between them.
 
     Parameters

@@ -66,8 +66,12 @@ class SitePattern:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"free": self.free, "modes": self.modes, "site": [{"label": lab, "count": n} for lab, n in self.site],
-                "site_text": str(self.site)}
+        return {
+            "free": self.free,
+            "modes": self.modes,
+            "site": [{"label": lab, "count": n} for lab, n in self.site],
+            "site_text": str(self.site),
+        }
 
 
 @dataclass(frozen=True)
@@ -107,10 +111,17 @@ class DisorderedUnit:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"formula": self.formula, "state": self.state, "orientations": self.orientations,
-                "averaged_site_group": self.averaged_site_group, "averaged_wyckoff": self.averaged_wyckoff,
-                "free_group": self.free_group, "orientation_site_group": self.orientation_site_group,
-                "pattern": [p.to_dict() for p in self.pattern], "statement": self.statement}
+        return {
+            "formula": self.formula,
+            "state": self.state,
+            "orientations": self.orientations,
+            "averaged_site_group": self.averaged_site_group,
+            "averaged_wyckoff": self.averaged_wyckoff,
+            "free_group": self.free_group,
+            "orientation_site_group": self.orientation_site_group,
+            "pattern": [p.to_dict() for p in self.pattern],
+            "statement": self.statement,
+        }
 
 
 @dataclass(frozen=True)
@@ -155,10 +166,14 @@ class DisorderedPrediction:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"source": self.source, "space_group": self.space_group.to_dict(), "factor_group": self.factor_group,
-                "units": [u.to_dict() for u in self.units],
-                "optical_translations": str(self.translations),
-                "ordered_model": self.ordered_model.to_dict()}
+        return {
+            "source": self.source,
+            "space_group": self.space_group.to_dict(),
+            "factor_group": self.factor_group,
+            "units": [u.to_dict() for u in self.units],
+            "optical_translations": str(self.translations),
+            "ordered_model": self.ordered_model.to_dict(),
+        }
 
 
 # ---------------------------------------------------------------------------------------------
@@ -203,8 +218,10 @@ def _one_orientation(blob: Unit, occ: np.ndarray, site: OrientedGroup, scale: fl
     n_orient = max(1, round(1 / float(np.min(occ[partial]))))
     target = float(np.sum(occ[partial]))
     if abs(target - round(target)) > 0.05 or (round(target) == 0 and len(full) == 0):
-        raise InputError(f"partial occupancy of {blob.formula} does not add up to whole atoms "
-                         f"({target:g}); there is no ordered model of one orientation")
+        raise InputError(
+            f"partial occupancy of {blob.formula} does not add up to whole atoms "
+            f"({target:g}); there is no ordered model of one orientation"
+        )
     target = round(target)
     subgroups = []
     for members in subgroup_classes(site.name):
@@ -234,24 +251,34 @@ def _one_orientation(blob: Unit, occ: np.ndarray, site: OrientedGroup, scale: fl
                 if _clash(pos, nums) or not _connected(pos, nums, scale):
                     continue
                 return chosen, n_orient
-    raise InputError(f"no single orientation of the disordered unit {blob.formula} could be separated; "
-                     "give an ordered model")
+    raise InputError(
+        f"no single orientation of the disordered unit {blob.formula} could be separated; give an ordered model"
+    )
 
 
 def _statement(formula: str, state: str, site_one: str | None, site_avg: str) -> str:
     if state == "dynamic":
-        return (f"{formula} rotates (dynamic disorder): internal modes follow the free-unit selection rules, "
-                f"weakly perturbed by the averaged site {site_avg}; no factor-group (Davydov) splitting; "
-                "librations give no sharp lines.")
-    return (f"{formula} sits in several orientations (static disorder): orientations of neighbouring units are "
-            "not correlated, so factor-group (Davydov) coupling and the k = 0 selection rule are lost for it; "
-            f"expect the components of one orientation at its site ({site_one}) as broadened lines, "
-            "librations without sharp lines, and weak disorder-activated modes.")
+        return (
+            f"{formula} rotates (dynamic disorder): internal modes follow the free-unit selection rules, "
+            f"weakly perturbed by the averaged site {site_avg}; no factor-group (Davydov) splitting; "
+            "librations give no sharp lines."
+        )
+    return (
+        f"{formula} sits in several orientations (static disorder): orientations of neighbouring units are "
+        "not correlated, so factor-group (Davydov) coupling and the k = 0 selection rule are lost for it; "
+        f"expect the components of one orientation at its site ({site_one}) as broadened lines, "
+        "librations without sharp lines, and weak disorder-activated modes."
+    )
 
 
-def predict_disordered(path: str | os.PathLike[str] | None = None, options: Options | None = None, *,
-                       atoms=None, states: dict[str, str] | None = None,
-                       free_cache: FreeUnitCache | None = None) -> DisorderedPrediction:
+def predict_disordered(
+    path: str | os.PathLike[str] | None = None,
+    options: Options | None = None,
+    *,
+    atoms=None,
+    states: dict[str, str] | None = None,
+    free_cache: FreeUnitCache | None = None,
+) -> DisorderedPrediction:
     """Predict a phase that may contain orientational disorder.
 
     Parameters
@@ -276,12 +303,19 @@ def predict_disordered(path: str | os.PathLike[str] | None = None, options: Opti
     source = os.fspath(path) if path is not None else "structure"
     occ_all = occupancies(atoms)
     codes = _type_codes(atoms.numbers, occ_all)
-    cell = analyse_cell(atoms.cell[:], atoms.get_scaled_positions(wrap=True), codes, tolerance=opts.tolerance,
-                        scan=False)
+    cell = analyse_cell(
+        atoms.cell[:], atoms.get_scaled_positions(wrap=True), codes, tolerance=opts.tolerance, scan=False
+    )
     prim_numbers = cell.numbers // 1000
     prim_occ = (cell.numbers % 1000) / 100.0
-    blobs = find_units(cell.lattice, cell.frac, prim_numbers, scale=opts.bond_scale, ionic_metals=opts.ionic_metals,
-                       cutoffs=dict(opts.cutoffs))
+    blobs = find_units(
+        cell.lattice,
+        cell.frac,
+        prim_numbers,
+        scale=opts.bond_scale,
+        ionic_metals=opts.ionic_metals,
+        cutoffs=dict(opts.cutoffs),
+    )
     cache = free_cache or FreeUnitCache(opts.unit_tolerance, dict(opts.free_groups))
     reference = cell.reference_axes
     from ..crystal.predict import _orbits, _site_ops  # the same searches as the ordered pipeline
@@ -293,8 +327,9 @@ def predict_disordered(path: str | os.PathLike[str] | None = None, options: Opti
         occ = prim_occ[list(blob.atoms)]
         disordered = bool(np.any(occ < 0.999))
         site_idx = _site_ops(cell, blob.centre)
-        site_avg = identify(cell.rotations[site_idx], prefer=crystal_preference(reference), reference=reference,
-                            tol=1e-3)
+        site_avg = identify(
+            cell.rotations[site_idx], prefer=crystal_preference(reference), reference=reference, tol=1e-3
+        )
         if disordered:
             try:
                 chosen, n_orient = _one_orientation(blob, occ, site_avg, opts.bond_scale)
@@ -302,8 +337,12 @@ def predict_disordered(path: str | os.PathLike[str] | None = None, options: Opti
                 raise InputError(f"{source}: {exc}") from None
         else:
             chosen, n_orient = np.arange(len(blob.atoms)), 1
-        unit = Unit(tuple(blob.atoms[i] for i in chosen), blob.positions[chosen], blob.numbers[chosen],
-                    "molecule" if len(chosen) > 1 else "atom")
+        unit = Unit(
+            tuple(blob.atoms[i] for i in chosen),
+            blob.positions[chosen],
+            blob.numbers[chosen],
+            "molecule" if len(chosen) > 1 else "atom",
+        )
         kept.extend(unit.positions)
         kept_num.extend(int(z) for z in unit.numbers)
         state = states.get(unit.formula, "static" if disordered else "ordered")
@@ -319,15 +358,29 @@ def predict_disordered(path: str | os.PathLike[str] | None = None, options: Opti
             one_name = None
         else:
             pattern = tuple(
-                SitePattern(lab, n, one.reduce_at(np.array([free.group.character(lab, op) for op in one.operations]),
-                                                  what=f"{lab} at the site of one orientation"))
+                SitePattern(
+                    lab,
+                    n,
+                    one.reduce_at(
+                        np.array([free.group.character(lab, op) for op in one.operations]),
+                        what=f"{lab} at the site of one orientation",
+                    ),
+                )
                 for lab, n in free.vibrations
             )
             one_name = one.name
         wyck = cell.wyckoff_of([blob.centre], tolerance=opts.tolerance)[0][0]
-        done[unit.formula] = DisorderedUnit(unit.formula, state, n_orient if disordered else 1, site_avg.name, wyck,
-                                            free.group.name, one_name, pattern,
-                                            _statement(unit.formula, state, one_name, site_avg.name))
+        done[unit.formula] = DisorderedUnit(
+            unit.formula,
+            state,
+            n_orient if disordered else 1,
+            site_avg.name,
+            wyck,
+            free.group.name,
+            one_name,
+            pattern,
+            _statement(unit.formula, state, one_name, site_avg.name),
+        )
     from ase import Atoms
 
     model = Atoms(numbers=kept_num, positions=np.array(kept), cell=cell.lattice, pbc=True)
@@ -340,5 +393,13 @@ def predict_disordered(path: str | os.PathLike[str] | None = None, options: Opti
         trans = trans + induce(factor, idx, np.trace(cell.rotations[idx], axis1=1, axis2=2), what="translations")
     trans = trans - factor.oriented.group.vector
     act = tuple((a.label, bool(a.ir), bool(a.raman)) for a in activity_table(factor.name))
-    return DisorderedPrediction(source, cell.info, factor.name, tuple(done.values()), ordered, trans, act,
-                                float(abs(np.linalg.det(cell.lattice))))
+    return DisorderedPrediction(
+        source,
+        cell.info,
+        factor.name,
+        tuple(done.values()),
+        ordered,
+        trans,
+        act,
+        float(abs(np.linalg.det(cell.lattice))),
+    )

@@ -93,8 +93,9 @@ def hermite_normal_form(basis: np.ndarray) -> np.ndarray:
     return h
 
 
-def _canonical(m: np.ndarray, ops: list[tuple[np.ndarray, np.ndarray]], parent: list[tuple[np.ndarray, np.ndarray]]
-               ) -> tuple:
+def _canonical(
+    m: np.ndarray, ops: list[tuple[np.ndarray, np.ndarray]], parent: list[tuple[np.ndarray, np.ndarray]]
+) -> tuple:
     """A key shared by all subgroups conjugate under the parent space group (rotations and lattice)."""
     ws = np.array([w for w, _ in ops])
     ts = np.array([t for _, t in ops])
@@ -185,13 +186,22 @@ class Candidate:
         """JSON-ready form."""
         return {
             "space_group": {"number": self.space_group[0], "symbol": self.space_group[1]},
-            "kind": self.kind, "index": self.index, "factor_group": self.point_group,
-            "cell_multiple": self.cell_multiple, "supercell": [list(r) for r in self.supercell],
-            "units": [{"formula": u.formula, "site_group": u.site_group, "wyckoff": u.wyckoff, "count": u.count}
-                      for u in self.prediction.units],
-            "bands": [{"unit": b.unit, "band": b.band, "components": b.text(), "ir": b.ir, "raman": b.raman}
-                      for b in self.bands()],
-            "score": self.score, "reasons": list(self.reasons), "variants": self.variants,
+            "kind": self.kind,
+            "index": self.index,
+            "factor_group": self.point_group,
+            "cell_multiple": self.cell_multiple,
+            "supercell": [list(r) for r in self.supercell],
+            "units": [
+                {"formula": u.formula, "site_group": u.site_group, "wyckoff": u.wyckoff, "count": u.count}
+                for u in self.prediction.units
+            ],
+            "bands": [
+                {"unit": b.unit, "band": b.band, "components": b.text(), "ir": b.ir, "raman": b.raman}
+                for b in self.bands()
+            ],
+            "score": self.score,
+            "reasons": list(self.reasons),
+            "variants": self.variants,
             "realised_by_displacements": self.realised,
         }
 
@@ -207,15 +217,21 @@ class Lowering:
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
-        return {"parent": {"space_group": self.parent.space_group.to_dict(),
-                           "factor_group": self.parent.factor_group, "source": self.parent.source},
-                "max_index": self.max_index,
-                "observed": [{"band": b, "technique": t, "count": n} for b, t, n in self.observed],
-                "candidates": [c.to_dict() for c in self.candidates]}
+        return {
+            "parent": {
+                "space_group": self.parent.space_group.to_dict(),
+                "factor_group": self.parent.factor_group,
+                "source": self.parent.source,
+            },
+            "max_index": self.max_index,
+            "observed": [{"band": b, "technique": t, "count": n} for b, t, n in self.observed],
+            "candidates": [c.to_dict() for c in self.candidates],
+        }
 
 
-def _close_ops(gens: list[tuple[np.ndarray, np.ndarray]], m: np.ndarray, order: int
-               ) -> list[tuple[np.ndarray, np.ndarray]] | None:
+def _close_ops(
+    gens: list[tuple[np.ndarray, np.ndarray]], m: np.ndarray, order: int
+) -> list[tuple[np.ndarray, np.ndarray]] | None:
     """Close (W, t) pairs modulo the sublattice m; None if some rotation gets two translations."""
     minv = np.linalg.inv(m.T)
 
@@ -314,8 +330,9 @@ def _misfit(pred: int, n: int) -> float:
     return float(n - pred) if n > pred else MISSING_COST * (pred - n)
 
 
-def _score(bands: list[BandState], observed: tuple[tuple[str, str, int], ...], lattice: dict[str, object]
-           ) -> tuple[float, tuple[str, ...]]:
+def _score(
+    bands: list[BandState], observed: tuple[tuple[str, str, int], ...], lattice: dict[str, object]
+) -> tuple[float, tuple[str, ...]]:
     score, reasons = 0.0, []
     for band, tech, n in observed:
         if band == "lattice":
@@ -334,14 +351,22 @@ def _score(bands: list[BandState], observed: tuple[tuple[str, str, int], ...], l
         pred = {"ir": b.ir, "raman": b.raman, "total": b.total}[tech]
         if pred != n:
             score += _misfit(pred, n)
-            reasons.append(f"{band}: predicts {pred} {tech.upper() if tech == 'ir' else tech} "
-                           f"component{'s' if pred != 1 else ''}, {n} observed")
+            reasons.append(
+                f"{band}: predicts {pred} {tech.upper() if tech == 'ir' else tech} "
+                f"component{'s' if pred != 1 else ''}, {n} observed"
+            )
     return score, tuple(reasons)
 
 
-def lower(path: str | os.PathLike[str] | None = None, options: Options | None = None, *, atoms=None,
-          max_index: int = DEFAULT_MAX_INDEX, observed: tuple[tuple[str, str, int], ...] = (),
-          seed: int = 1) -> Lowering:
+def lower(
+    path: str | os.PathLike[str] | None = None,
+    options: Options | None = None,
+    *,
+    atoms=None,
+    max_index: int = DEFAULT_MAX_INDEX,
+    observed: tuple[tuple[str, str, int], ...] = (),
+    seed: int = 1,
+) -> Lowering:
     """Candidate lower-symmetry phases of an ordered structure, ranked by observed line counts.
 
     Parameters
@@ -365,17 +390,25 @@ def lower(path: str | os.PathLike[str] | None = None, options: Options | None = 
     source = os.fspath(path) if path is not None else "structure"
     cache = FreeUnitCache(opts.unit_tolerance, dict(opts.free_groups))
     parent = predict_atoms(atoms, opts, source=source, free_cache=cache)
-    cell = analyse_cell(atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers,
-                        tolerance=opts.tolerance, scan=False)
+    cell = analyse_cell(
+        atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=opts.tolerance, scan=False
+    )
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     g = factor.oriented.group
     by_std = {int(s): k for k, s in enumerate(factor.index)}
-    cand_opts = Options(tolerance=1e-3, unit_tolerance=opts.unit_tolerance, free_groups=opts.free_groups,
-                        formulas=opts.formulas, cutoffs=opts.cutoffs, bond_scale=opts.bond_scale,
-                        ionic_metals=opts.ionic_metals)
+    cand_opts = Options(
+        tolerance=1e-3,
+        unit_tolerance=opts.unit_tolerance,
+        free_groups=opts.free_groups,
+        formulas=opts.formulas,
+        cutoffs=opts.cutoffs,
+        bond_scale=opts.bond_scale,
+        ionic_metals=opts.ionic_metals,
+    )
     found: dict[tuple, Candidate] = {}
-    parent_ops = [(np.rint(w).astype(np.int64), t) for w, t in zip(cell.frac_rotations, cell.frac_translations,
-                                                                   strict=True)]
+    parent_ops = [
+        (np.rint(w).astype(np.int64), t) for w, t in zip(cell.frac_rotations, cell.frac_translations, strict=True)
+    ]
     lattices = {m: sublattices(m) for m in range(1, max_index + 1)}
     for members in subgroup_classes(g.name):
         i = g.order // len(members)
@@ -384,8 +417,9 @@ def lower(path: str | os.PathLike[str] | None = None, options: Options | None = 
         cell_ops = [by_std[s] for s in sorted(members)]
         w_frac = np.rint(cell.frac_rotations[cell_ops]).astype(int)
         gens_std = generators_of(g.table, members)
-        gens = [(np.rint(cell.frac_rotations[by_std[s]]).astype(int), cell.frac_translations[by_std[s]])
-                for s in gens_std]
+        gens = [
+            (np.rint(cell.frac_rotations[by_std[s]]).astype(int), cell.frac_translations[by_std[s]]) for s in gens_std
+        ]
         for mult in range(1, max_index // i + 1):
             if i == 1 and mult == 1:
                 continue
@@ -404,9 +438,12 @@ def lower(path: str | os.PathLike[str] | None = None, options: Options | None = 
                         found[key] = _candidate(cell, m, ops, mult, i, cand_opts, cache, source, seed)
     merged: dict[tuple, list[Candidate]] = {}
     for c in found.values():
-        sig = (c.space_group[0], c.index, tuple(sorted((u.formula, u.site_group, u.wyckoff, u.count)
-                                                      for u in c.prediction.units)),
-               tuple((b.unit, b.band, b.text()) for b in c.bands()))
+        sig = (
+            c.space_group[0],
+            c.index,
+            tuple(sorted((u.formula, u.site_group, u.wyckoff, u.count) for u in c.prediction.units)),
+            tuple((b.unit, b.band, b.text()) for b in c.bands()),
+        )
         merged.setdefault(sig, []).append(c)
     cands = [replace(group[0], variants=len(group)) for group in merged.values()]
     if observed:
@@ -420,8 +457,17 @@ def lower(path: str | os.PathLike[str] | None = None, options: Options | None = 
     return Lowering(parent, max_index, tuple(cands), tuple(observed))
 
 
-def _candidate(cell: CellSymmetry, m: np.ndarray, ops, mult: int, point_index: int, opts: Options,
-               cache: FreeUnitCache, source: str, seed: int) -> Candidate:
+def _candidate(
+    cell: CellSymmetry,
+    m: np.ndarray,
+    ops,
+    mult: int,
+    point_index: int,
+    opts: Options,
+    cache: FreeUnitCache,
+    source: str,
+    seed: int,
+) -> Candidate:
     atoms = _realise(cell, m, ops, seed)
     kind = "t" if mult == 1 else ("k" if point_index == 1 else "t+k")
     supercell = tuple(tuple(int(x) for x in r) for r in m)
@@ -432,12 +478,14 @@ def _candidate(cell: CellSymmetry, m: np.ndarray, ops, mult: int, point_index: i
         # symmetry): predict from the candidate's own operations on the undisplaced supercell
         pred = _predict_from_operations(cell, m, ops, opts, cache, source)
     sg = pred.space_group
-    return Candidate(kind, point_index * mult, pred.factor_group, mult, supercell, (sg.number, sg.symbol), pred,
-                     realised=realised)
+    return Candidate(
+        kind, point_index * mult, pred.factor_group, mult, supercell, (sg.number, sg.symbol), pred, realised=realised
+    )
 
 
-def _predict_from_operations(cell: CellSymmetry, m: np.ndarray, ops, opts: Options, cache: FreeUnitCache,
-                             source: str) -> CrystalPrediction:
+def _predict_from_operations(
+    cell: CellSymmetry, m: np.ndarray, ops, opts: Options, cache: FreeUnitCache, source: str
+) -> CrystalPrediction:
     from ..crystal.predict import _predict
     from ..crystal.spacegroup import cell_from_operations
     from ..crystal.units import find_units
@@ -452,8 +500,15 @@ def _predict_from_operations(cell: CellSymmetry, m: np.ndarray, ops, opts: Optio
     rots = np.array([to_super @ w @ m.T for w, _ in ops])
     trans = np.array([to_super @ t for _, t in ops])
     sub = cell_from_operations(lat, frac, np.tile(cell.numbers, len(cosets)), rots, trans, cell.conventional)
-    units = find_units(sub.lattice, sub.frac, sub.numbers, scale=opts.bond_scale, ionic_metals=opts.ionic_metals,
-                       cutoffs=dict(opts.cutoffs), formulas=list(opts.formulas) or None)
+    units = find_units(
+        sub.lattice,
+        sub.frac,
+        sub.numbers,
+        scale=opts.bond_scale,
+        ionic_metals=opts.ionic_metals,
+        cutoffs=dict(opts.cutoffs),
+        formulas=list(opts.formulas) or None,
+    )
     return _predict(sub, units, opts, f"{source} (candidate, from its operations)", cache)
 
 

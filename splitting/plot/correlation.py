@@ -574,8 +574,16 @@ def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool, give_up: boo
 
 def _legend(target, font: float, **where):
     """The activity legend, one row, on an Axes or a Figure."""
-    return target.legend(handles=legend_handles(font), ncol=4, frameon=False, fontsize=font * 0.68,
-                         handlelength=1.4, columnspacing=1.2, handletextpad=0.4, **where)
+    return target.legend(
+        handles=legend_handles(font),
+        ncol=4,
+        frameon=False,
+        fontsize=font * 0.68,
+        handlelength=1.4,
+        columnspacing=1.2,
+        handletextpad=0.4,
+        **where,
+    )
 
 
 def legend_handles(font: float = _FONT) -> list[Line2D]:

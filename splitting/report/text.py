@@ -54,8 +54,11 @@ def group_text(name: str) -> str:
     if "∞" in canon:
         g = linear_group(canon)
         lines.append(f"Point group {canon} (linear; species by angular momentum about z)")
-        rows = [[s.label, s.dimension, ", ".join(act[s.label].ir) or "-", ", ".join(act[s.label].raman) or "-"]
-                for s in g.species[: (5 if not g.centrosymmetric else 12)] if s.m <= 3]
+        rows = [
+            [s.label, s.dimension, ", ".join(act[s.label].ir) or "-", ", ".join(act[s.label].raman) or "-"]
+            for s in g.species[: (5 if not g.centrosymmetric else 12)]
+            if s.m <= 3
+        ]
         lines.append(table(["species", "dim", "IR", "Raman"], rows))
     else:
         g = point_group(canon)
@@ -66,8 +69,7 @@ def group_text(name: str) -> str:
         rows = []
         for s in g.species:
             a = act[s.label]
-            rows.append([s.label, *[_num(x) for x in s.characters], ",".join(a.ir) or "-",
-                         ", ".join(a.raman) or "-"])
+            rows.append([s.label, *[_num(x) for x in s.characters], ",".join(a.ir) or "-", ", ".join(a.raman) or "-"])
         lines.append(table(headers, rows))
         if any(s.separably_degenerate for s in g.species):
             lines.append("  E species made of a complex-conjugate pair are shown merged (their characters added).")
@@ -85,9 +87,13 @@ def _axes_note(name: str) -> str:
         "Dnd": "z: principal axis; x: a C2' axis (σd bisect the C2' axes)",
         "Cnv": "z: principal axis; xz: a σv plane",
         "Cs": "mirror plane: xy",
-        "T": "x, y, z: the two-fold axes", "Th": "x, y, z: the two-fold axes",
-        "Td": "x, y, z: the S4 axes", "O": "x, y, z: the four-fold axes", "Oh": "x, y, z: the four-fold axes",
-        "I": "x, y, z: three orthogonal two-fold axes", "Ih": "x, y, z: three orthogonal two-fold axes",
+        "T": "x, y, z: the two-fold axes",
+        "Th": "x, y, z: the two-fold axes",
+        "Td": "x, y, z: the S4 axes",
+        "O": "x, y, z: the four-fold axes",
+        "Oh": "x, y, z: the four-fold axes",
+        "I": "x, y, z: three orthogonal two-fold axes",
+        "Ih": "x, y, z: three orthogonal two-fold axes",
     }
     if name in ("D2", "D2h"):
         return "  axes: x, y, z along the three two-fold axes"
@@ -109,8 +115,9 @@ def embeddings_text(parent: str, sub: str) -> str:
         )
         axes = f"x = {rel['x']}, y = {rel['y']}, z = {rel['z']}"
         out.append(f"      axes of {e.subgroup.name} in {e.parent} axes: {axes}")
-        out.append(table([e.parent, e.subgroup.name], [[lab, str(rep)] for lab, rep in e.correlation()],
-                         indent="      "))
+        out.append(
+            table([e.parent, e.subgroup.name], [[lab, str(rep)] for lab, rep in e.correlation()], indent="      ")
+        )
     return "\n".join(out)
 
 
@@ -121,18 +128,25 @@ def molecule_text(result) -> str:
         f"{d['formula']}: {d['atoms']} atoms, point group {d['point_group']}",
         f"  symmetry tolerance {d['tolerance_angstrom']} A; largest deviation from the symmetric "
         f"geometry {d['max_deviation_angstrom']:.3f} A",
-        "  axes (input frame): " + "; ".join(f"{k} = ({', '.join(f'{c:+.3f}' for c in v)})"
-                                               for k, v in d["axes"].items()),
+        "  axes (input frame): "
+        + "; ".join(f"{k} = ({', '.join(f'{c:+.3f}' for c in v)})" for k, v in d["axes"].items()),
         f"  Γ3N  = {d['gamma_3n']}",
         f"  Γtrans = {d['translations']};  Γrot = {d['rotations']}",
         f"  Γvib = {d['vibrations']}  ({d['vibration_count']} vibrations)",
         "",
         table(
             ["species", "dim", "fundamentals", "IR", "Raman", "activity"],
-            [[m["label"], m["dimension"], m["count"], ",".join(m["ir_components"]) or "-",
-              ", ".join(m["raman_components"]) or "-",
-              "+".join(k for k, on in (("IR", m["ir"]), ("Raman", m["raman"])) if on) or "silent"]
-             for m in d["species"]],
+            [
+                [
+                    m["label"],
+                    m["dimension"],
+                    m["count"],
+                    ",".join(m["ir_components"]) or "-",
+                    ", ".join(m["raman_components"]) or "-",
+                    "+".join(k for k, on in (("IR", m["ir"]), ("Raman", m["raman"])) if on) or "silent",
+                ]
+                for m in d["species"]
+            ],
         ),
         "",
         f"  {d['ir_active_fundamentals']} IR-active and {d['raman_active_fundamentals']} Raman-active fundamentals",
@@ -157,33 +171,65 @@ def prediction_text(pred) -> str:
     lines.append("Units")
     rows = []
     for u in pred.units:
-        rows.append([u.formula, u.kind, u.free_group or "-", u.wyckoff, u.site_symmetry, u.site_group, u.count,
-                     f"{u.max_deviation:.3f}" if u.free_group else "-"])
-    lines.append(table(["unit", "kind", "free group", "Wyckoff", "site symbol", "site group", "Z (prim.)",
-                        "dev. A"], rows))
+        rows.append(
+            [
+                u.formula,
+                u.kind,
+                u.free_group or "-",
+                u.wyckoff,
+                u.site_symmetry,
+                u.site_group,
+                u.count,
+                f"{u.max_deviation:.3f}" if u.free_group else "-",
+            ]
+        )
+    lines.append(
+        table(["unit", "kind", "free group", "Wyckoff", "site symbol", "site group", "Z (prim.)", "dev. A"], rows)
+    )
     for u in pred.units:
         if not u.correlation:
             continue
         lines.append("")
         sa = u.site_axes
-        lines.append(f"Correlation for {u.formula}: {u.free_group} -> {u.site_group} (site {u.wyckoff}; "
-                     f"site axes x = {sa['x']}, y = {sa['y']}, z = {sa['z']}) -> {pred.factor_group}")
-        lines.append(table(["free", "modes", "site", "factor group (per mode)"],
-                           [[c.free, c.modes, str(c.site), str(c.factor)] for c in u.correlation]))
+        lines.append(
+            f"Correlation for {u.formula}: {u.free_group} -> {u.site_group} (site {u.wyckoff}; "
+            f"site axes x = {sa['x']}, y = {sa['y']}, z = {sa['z']}) -> {pred.factor_group}"
+        )
+        lines.append(
+            table(
+                ["free", "modes", "site", "factor group (per mode)"],
+                [[c.free, c.modes, str(c.site), str(c.factor)] for c in u.correlation],
+            )
+        )
         lines.append(f"  translations: {u.translations};  librations: {u.librations}")
     lines.append("")
     lines.append(f"Factor-group species (k = 0); counts are distinct frequencies; acoustic: {pred.acoustic}")
     rows = []
     for s in pred.species:
-        rows.append([s.label, s.dimension, s.internal, s.translational, s.librational, s.acoustic, s.optical,
-                     ",".join(s.ir) or "-", ", ".join(s.raman) or "-", "polar" if s.polar else ""])
-    lines.append(table(["species", "dim", "internal", "transl.", "librat.", "acoustic", "optical", "IR",
-                        "Raman", ""], rows))
+        rows.append(
+            [
+                s.label,
+                s.dimension,
+                s.internal,
+                s.translational,
+                s.librational,
+                s.acoustic,
+                s.optical,
+                ",".join(s.ir) or "-",
+                ", ".join(s.raman) or "-",
+                "polar" if s.polar else "",
+            ]
+        )
+    lines.append(
+        table(["species", "dim", "internal", "transl.", "librat.", "acoustic", "optical", "IR", "Raman", ""], rows)
+    )
     t = pred.totals()
     lines.append("")
     lines.append(f"  Γ3N = {pred.gamma_3n}  (whole-cell count, checked against the unit-by-unit sum)")
-    lines.append(f"  {t['optical']} optical frequencies: {t['ir']} IR-active, {t['raman']} Raman-active, "
-                 f"{t['silent']} silent" + (f", {t['polar']} polar (LO/TO split)" if t["polar"] else ""))
+    lines.append(
+        f"  {t['optical']} optical frequencies: {t['ir']} IR-active, {t['raman']} Raman-active, "
+        f"{t['silent']} silent" + (f", {t['polar']} polar (LO/TO split)" if t["polar"] else "")
+    )
     if pred.centrosymmetric:
         lines.append("  centrosymmetric factor group: no frequency is both IR and Raman active (mutual exclusion)")
     lines.append("  inelastic neutron scattering: every mode is allowed")
@@ -202,12 +248,23 @@ def sequence_text(seq) -> str:
     for ph in seq.phases:
         if ph.disorder is not None:
             for u in ph.disorder.units:
-                lines.append(f"  {ph.label}: {u.statement} (averaged site {u.averaged_site_group}, "
-                             f"Wyckoff {u.averaged_wyckoff}; {u.orientations} orientation(s) in the file)")
+                lines.append(
+                    f"  {ph.label}: {u.statement} (averaged site {u.averaged_site_group}, "
+                    f"Wyckoff {u.averaged_wyckoff}; {u.orientations} orientation(s) in the file)"
+                )
     lines.append("")
     lines.append("Relations")
-    rows = [[f"{s.upper} -> {s.lower}", "yes" if s.subgroup else "no", s.point_index or "-",
-             f"{s.cell_multiple:g}", f"{s.volume_ratio:.3f}", s.kind] for s in seq.steps]
+    rows = [
+        [
+            f"{s.upper} -> {s.lower}",
+            "yes" if s.subgroup else "no",
+            s.point_index or "-",
+            f"{s.cell_multiple:g}",
+            f"{s.volume_ratio:.3f}",
+            s.kind,
+        ]
+        for s in seq.steps
+    ]
     lines.append(table(["step", "factor subgroup", "point index", "cell x", "volume/unit", "type"], rows))
     lines.append("")
     lines.append("Bands (components per fundamental; IR / Raman counts)")
@@ -232,8 +289,10 @@ def sequence_text(seq) -> str:
 def lowering_text(result, *, limit: int = 40) -> str:
     """Readable list of candidate lower-symmetry phases."""
     p = result.parent
-    lines = [f"Parent {p.space_group.symbol} (No. {p.space_group.number}), factor group {p.factor_group}; "
-             f"candidates up to index {result.max_index}: {len(result.candidates)}"]
+    lines = [
+        f"Parent {p.space_group.symbol} (No. {p.space_group.number}), factor group {p.factor_group}; "
+        f"candidates up to index {result.max_index}: {len(result.candidates)}"
+    ]
     if result.observed:
         lines.append("Observed: " + ", ".join(f"{b} {t} = {n}" for b, t, n in result.observed))
     rows = []
@@ -244,11 +303,14 @@ def lowering_text(result, *, limit: int = 40) -> str:
         bands = ", ".join(f"{b.band} {b.ir}/{b.raman}" for b in shown)
         if "lattice" in wanted:
             lat = c.lattice()
-            bands += f", lattice {lat['translational_ir'] + lat['librational_ir']}/" \
-                     f"{lat['translational_raman'] + lat['librational_raman']}"
+            bands += (
+                f", lattice {lat['translational_ir'] + lat['librational_ir']}/"
+                f"{lat['translational_raman'] + lat['librational_raman']}"
+            )
         score = "-" if c.score is None else f"{c.score:g}"
-        rows.append([k, f"{c.space_group[1]} ({c.space_group[0]})", c.kind, c.index, c.point_group, sites, bands,
-                     score])
+        rows.append(
+            [k, f"{c.space_group[1]} ({c.space_group[0]})", c.kind, c.index, c.point_group, sites, bands, score]
+        )
     lines.append(table(["#", "space group", "type", "index", "factor", "sites", "bands IR/Raman", "misfit"], rows))
     if result.observed:
         lines.append("")
@@ -261,14 +323,18 @@ def lowering_text(result, *, limit: int = 40) -> str:
 def disordered_text(pred) -> str:
     """Readable report of a :class:`~splitting.phases.disorder.DisorderedPrediction`."""
     sg = pred.space_group
-    lines = [f"{pred.source}",
-             f"  averaged structure: {sg.symbol} (No. {sg.number}), factor group {pred.factor_group}",
-             f"  optical translational modes of the averaged structure: {pred.translations}"]
+    lines = [
+        f"{pred.source}",
+        f"  averaged structure: {sg.symbol} (No. {sg.number}), factor group {pred.factor_group}",
+        f"  optical translational modes of the averaged structure: {pred.translations}",
+    ]
     for u in pred.units:
         lines.append("")
-        lines.append(f"{u.formula}: {u.state} disorder, {u.orientations} orientation(s) in the file; free group "
-                     f"{u.free_group}; averaged site {u.averaged_site_group} ({u.averaged_wyckoff})"
-                     + (f"; site of one orientation {u.orientation_site_group}" if u.orientation_site_group else ""))
+        lines.append(
+            f"{u.formula}: {u.state} disorder, {u.orientations} orientation(s) in the file; free group "
+            f"{u.free_group}; averaged site {u.averaged_site_group} ({u.averaged_wyckoff})"
+            + (f"; site of one orientation {u.orientation_site_group}" if u.orientation_site_group else "")
+        )
         lines.append(f"  {u.statement}")
         head = "site of one orientation" if u.state == "static" else "free unit"
         lines.append(table(["free", "modes", head], [[p.free, p.modes, str(p.site)] for p in u.pattern]))
