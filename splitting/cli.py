@@ -111,9 +111,7 @@ def _predict(args: argparse.Namespace) -> int:
     from .crystal.predict import predict
     from .report.text import prediction_text
 
-    states = _states(args.disorder)
-    for f in args.rotor or []:
-        states[f] = "dynamic"
+    states = _states(args)
     if args.disordered or states:
         from .phases.disorder import predict_disordered
         from .report.text import disordered_text
@@ -124,13 +122,16 @@ def _predict(args: argparse.Namespace) -> int:
     return _emit(args, result.to_dict(), lambda: prediction_text(result))
 
 
-def _states(items: list[str] | None) -> dict[str, str]:
+def _states(args: argparse.Namespace) -> dict[str, str]:
+    """Disorder states from --disorder FORMULA=STATE and --rotor FORMULA."""
     out = {}
-    for item in items or []:
+    for item in args.disorder or []:
         if "=" not in item:
             raise InputError(f"--disorder {item!r} is not of the form FORMULA=ordered|static|dynamic")
         f, s = item.split("=", 1)
         out[f.strip()] = s.strip()
+    for f in args.rotor or []:
+        out[f] = "dynamic"
     return out
 
 
@@ -139,9 +140,7 @@ def _compare(args: argparse.Namespace) -> int:
     from .phases.compare import compare_phases
     from .report.text import sequence_text
 
-    states = _states(args.disorder)
-    for f in args.rotor or []:
-        states[f] = "dynamic"
+    states = _states(args)
     seq = compare_phases(args.files, args.labels, _options(args), states=states)
     return _emit(args, seq.to_dict(), lambda: sequence_text(seq))
 
@@ -270,6 +269,16 @@ def _demo(args: argparse.Namespace) -> int:
     return 0
 
 
+def _disorder_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--disorder",
+        action="append",
+        metavar="FORMULA=STATE",
+        help="treat a unit as ordered, static or dynamic (rotor); repeatable",
+    )
+    p.add_argument("--rotor", action="append", metavar="FORMULA", help="declare a unit a free rotor (dynamic)")
+
+
 def _crystal_options(p: argparse.ArgumentParser) -> None:
     from .crystal.spacegroup import DEFAULT_CELL_TOLERANCE
     from .crystal.units import DEFAULT_BOND_SCALE
@@ -358,25 +367,13 @@ def build_parser() -> argparse.ArgumentParser:
         help="the file holds partly occupied orientations: predict one orientation at its site, "
         "the averaged site, and what the disorder removes",
     )
-    pr.add_argument(
-        "--disorder",
-        action="append",
-        metavar="FORMULA=STATE",
-        help="treat a unit as ordered, static or dynamic (rotor); repeatable",
-    )
-    pr.add_argument("--rotor", action="append", metavar="FORMULA", help="declare a unit a free rotor (dynamic)")
+    _disorder_options(pr)
     pr.add_argument("--json", action="store_true", help="print JSON instead of text")
 
     c = sub.add_parser("compare", help="a sequence of phases (e.g. on cooling): what each band does between them")
     c.add_argument("files", nargs="+", help="structure files, upper (e.g. warmest) phase first")
     c.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, e.g. '300 K' '90 K'")
-    c.add_argument(
-        "--disorder",
-        action="append",
-        metavar="FORMULA=STATE",
-        help="treat a unit as ordered, static or dynamic (rotor); repeatable",
-    )
-    c.add_argument("--rotor", action="append", metavar="FORMULA", help="declare a unit a free rotor (dynamic)")
+    _disorder_options(c)
     _crystal_options(c)
     c.add_argument("--json", action="store_true", help="print JSON instead of text")
 

@@ -94,7 +94,12 @@ def predict_atoms(
     cell = analyse_cell(
         atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=opts.tolerance, scan=scan
     )
-    units = find_units(
+    return _predict(cell, units_of(cell, opts), opts, source, free_cache)
+
+
+def units_of(cell: CellSymmetry, opts: Options) -> tuple[Unit, ...]:
+    """The units of a cell with the bond options of ``opts``."""
+    return find_units(
         cell.lattice,
         cell.frac,
         cell.numbers,
@@ -103,7 +108,6 @@ def predict_atoms(
         cutoffs=dict(opts.cutoffs),
         formulas=list(opts.formulas) or None,
     )
-    return _predict(cell, units, opts, source, free_cache)
 
 
 # ----------------------------------------------------------------------------- pipeline

@@ -486,9 +486,8 @@ def _candidate(
 def _predict_from_operations(
     cell: CellSymmetry, m: np.ndarray, ops, opts: Options, cache: FreeUnitCache, source: str
 ) -> CrystalPrediction:
-    from ..crystal.predict import _predict
+    from ..crystal.predict import _predict, units_of
     from ..crystal.spacegroup import cell_from_operations
-    from ..crystal.units import find_units
 
     a, c, f = int(m[0, 0]), int(m[1, 1]), int(m[2, 2])
     cosets = [np.array(u) for u in itertools.product(range(a), range(c), range(f))]
@@ -500,16 +499,7 @@ def _predict_from_operations(
     rots = np.array([to_super @ w @ m.T for w, _ in ops])
     trans = np.array([to_super @ t for _, t in ops])
     sub = cell_from_operations(lat, frac, np.tile(cell.numbers, len(cosets)), rots, trans, cell.conventional)
-    units = find_units(
-        sub.lattice,
-        sub.frac,
-        sub.numbers,
-        scale=opts.bond_scale,
-        ionic_metals=opts.ionic_metals,
-        cutoffs=dict(opts.cutoffs),
-        formulas=list(opts.formulas) or None,
-    )
-    return _predict(sub, units, opts, f"{source} (candidate, from its operations)", cache)
+    return _predict(sub, units_of(sub, opts), opts, f"{source} (candidate, from its operations)", cache)
 
 
 def observed_from_mapping(counts: Mapping[str, Mapping[str, int]]) -> tuple[tuple[str, str, int], ...]:
