@@ -132,7 +132,7 @@ def _check_diagram(art, pred, unit):
         for lab, text in col:
             assert text.get_text() == mathtext(lab)
     # lines: free -> site with the multiplicities of the prediction; site -> factor by induction
-    induction = site_induction(unit, pred.factor_group)
+    induction = site_induction(unit)
     free_site, site_factor = _expected_links(unit, induction)
     drawn_fs = {(c.source, c.target): c.multiplicity for c in art.connectors if c.stage == "free-site"}
     drawn_sf = {(c.source, c.target): c.multiplicity for c in art.connectors if c.stage == "site-factor"}

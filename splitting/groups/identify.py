@@ -255,7 +255,7 @@ def _perpendicular(z: np.ndarray, hint: np.ndarray | None = None) -> np.ndarray:
 def _candidate_frames(name: str, ops: np.ndarray, kinds, reference: np.ndarray) -> list[np.ndarray]:
     fam, _n = family(name)
     axes = _axes(kinds)
-    ref_x, ref_z = reference[:, 0], reference[:, 2]
+    ref_x = reference[:, 0]
     zs: list[np.ndarray] = []
     xs_for: Callable[[np.ndarray], list[np.ndarray]]
     mirrors = [k.axis for k in kinds if k.symbol == "σ"]
@@ -307,7 +307,6 @@ def _candidate_frames(name: str, ops: np.ndarray, kinds, reference: np.ndarray) 
             x = x - np.dot(x, z) * z
             x = x / np.linalg.norm(x)
             frames.append(np.column_stack([x, np.cross(z, x), z]))
-    del ref_z
     return frames
 
 

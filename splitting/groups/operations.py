@@ -72,15 +72,15 @@ class OperationKind:
     proper : bool
         True for det = +1.
     order : int
-        Order n of the rotation (proper) or of the rotation part of R' = -R ... see notes;
-        for improper operations this is n of S_n (sigma = S_1, i = S_2).
+        n of C_n^k for a proper operation; n of S_n^k for an improper one, written
+        R = sigma_axis C(2 pi k / n) (sigma = S_1, i = S_2).
     power : int
-        k in C_n^k or S_n^k, with k coprime to n.
+        k, coprime to n, with the rotation angle 2 pi k / n at most pi.
     axis : numpy.ndarray
-        Unit axis (for the identity, the z axis; for inversion, z).
+        Unit axis (z for the identity and the inversion).
     angle : float
-        Rotation angle in radians in [0, pi] about ``axis`` of the proper part
-        (for improper operations: of -R composed... the angle phi with R = sigma_axis C(phi)).
+        Rotation angle (radians, in [0, pi]) about ``axis``; for an improper operation the
+        angle phi in R = sigma_axis C(phi).
     symbol : str
         "E", "i", "σ", "Cn", "Cn^k", "Sn", "Sn^k".
     """
@@ -159,12 +159,7 @@ def describe(r: np.ndarray) -> OperationKind:
     if phi < 1e-7:
         return OperationKind(False, 1, 1, axis, 0.0, "σ")
     n, k = _order_power(phi)
-    # S_n^k for odd k as in character tables (S_n^k = sigma^k C_n^k)
-    if n % 2 == 1:
-        # sigma C(2 pi k / n) with n odd has order 2n: written S_n^k
-        sym = f"S{n}" if k == 1 else f"S{n}^{k}"
-    else:
-        sym = f"S{n}" if k == 1 else f"S{n}^{k}"
+    sym = f"S{n}" if k == 1 else f"S{n}^{k}"
     return OperationKind(False, n, k, axis, phi, sym)
 
 

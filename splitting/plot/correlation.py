@@ -252,7 +252,7 @@ def select_unit(prediction: CrystalPrediction, unit: str | UnitOrbit | None) -> 
     return unit
 
 
-def site_induction(unit: UnitOrbit, factor_group: str) -> dict[str, Representation]:
+def site_induction(unit: UnitOrbit) -> dict[str, Representation]:
     """Factor-group species induced by each site species of ``unit`` that occurs in its correlation.
 
     Read from the prediction (``UnitOrbit.site_to_factor``, computed by the correlation engine).
@@ -267,7 +267,6 @@ def site_induction(unit: UnitOrbit, factor_group: str) -> dict[str, Representati
     missing = [s for s in used if s not in stored]
     if missing:
         raise SymmetryError(f"{unit.formula}: the prediction has no site-to-factor map for {', '.join(missing)}")
-    del factor_group
     return {s: stored[s] for s in used}
 
 
@@ -317,7 +316,7 @@ def _plan(prediction: CrystalPrediction, unit: str | UnitOrbit | None, band: str
         if not corr:
             known = ", ".join(c.free for c in u.correlation)
             raise InputError(f"{prediction.source}: {u.formula} has no band of species {band!r}; species are {known}")
-    induction = site_induction(u, prediction.factor_group)
+    induction = site_induction(u)
     dims_site = dict(zip((lab for lab, _ in corr[0].site.counts), corr[0].site.dimensions, strict=True))
     dims_factor = dict(zip((lab for lab, _ in corr[0].factor.counts), corr[0].factor.dimensions, strict=True))
     present_site = {lab for c in corr for lab, _ in c.site}
