@@ -119,7 +119,22 @@ def _predict(args: argparse.Namespace) -> int:
         dis = predict_disordered(args.file, _options(args), states=states)
         return _emit(args, dis.to_dict(), lambda: disordered_text(dis))
     result = predict(args.file, _options(args))
-    return _emit(args, result.to_dict(), lambda: prediction_text(result))
+    payload = result.to_dict()
+    seen = [(g, result.seen_in(g)) for g in args.geometry or []]
+    if seen:
+        payload["geometries"] = [
+            {"geometry": g, "species": [{"label": lab, "optical": n} for lab, n in sp]} for g, sp in seen
+        ]
+
+    def text() -> str:
+        out = prediction_text(result)
+        ax = result.factor_axes
+        for g, sp in seen:
+            shown = ", ".join(f"{lab} ({n})" for lab, n in sp) or "nothing (no allowed Raman component)"
+            out += f"\n  Raman in {g} (x = {ax['x']}, y = {ax['y']}, z = {ax['z']}): {shown}"
+        return out
+
+    return _emit(args, payload, text)
 
 
 def _states(args: argparse.Namespace) -> dict[str, str]:
@@ -361,6 +376,13 @@ def build_parser() -> argparse.ArgumentParser:
     pr = sub.add_parser("predict", help="k = 0 prediction for a crystal: sites, correlation, lattice modes, activity")
     pr.add_argument("file", help="crystal structure (CIF, POSCAR, extended XYZ, or another format ase reads)")
     _crystal_options(pr)
+    pr.add_argument(
+        "--geometry",
+        action="append",
+        metavar="K(EE)K",
+        help="Raman scattering geometry in Porto notation in the factor group's axes, e.g. 'z(xx)-z'; "
+        "lists the species it sees; repeatable",
+    )
     pr.add_argument(
         "--disordered",
         action="store_true",

@@ -260,6 +260,26 @@ class CrystalPrediction:
                 return u
         raise KeyError(formula)
 
+    def seen_in(self, geometry: str) -> list[tuple[str, int]]:
+        """Raman species (with their optical counts) allowed in a scattering geometry.
+
+        The geometry is written in the notation of Damen, Porto and Tell (Phys. Rev. 142, 570
+        (1966)) in the factor group's axes, which ``factor_axes`` ties to the crystal.
+
+        Examples
+        --------
+        >>> from pathlib import Path
+        >>> from splitting.crystal.predict import predict
+        >>> p = predict(Path(__file__).parents[2] / "structures" / "calcite.cif")
+        >>> p.seen_in("z(xx)-z"), p.seen_in("z(xy)-z")
+        ([('A1g', 1), ('Eg', 4)], [('Eg', 4)])
+        """
+        from ..activity import parse_geometry
+
+        g = parse_geometry(geometry)
+        i, j = g.element()
+        return [(s.label, s.optical) for s in self.species if s.raman_tensor[i][j] != "0" and s.optical]
+
     def totals(self) -> dict[str, int]:
         """Numbers of distinct IR-active, Raman-active, silent and polar optical frequencies."""
         ir = sum(s.optical for s in self.species if s.ir)
