@@ -19,7 +19,7 @@ from splitting.spectra.isotope_data import (
 REQUIRED = "H B C N O F Si P S Cl Br Na K Ca Ti Fe Ni Cu Zn Sn I Cs Pb Li Mg Al Se".split()
 
 # Standard atomic weights with their uncertainties, CIAAW 2021 abridged values
-# (T. Prohaska et al., Pure Appl. Chem. 94, 573 (2022); page from memory); read from a transcription of the
+# (T. Prohaska et al., Pure Appl. Chem. 94, 573 (2022); page from memory); read from a copy of the
 # CIAAW table. Used to cross-check abundances against masses.
 STANDARD_ATOMIC_WEIGHT = {
     "H": (1.0080, 0.0002),
@@ -52,7 +52,7 @@ STANDARD_ATOMIC_WEIGHT = {
 }
 
 # Intervals of natural variation, CIAAW, Isotopic compositions of the elements 2021
-# (www.ciaaw.org); read from a transcription of the CIAAW table.
+# (www.ciaaw.org); read from a copy of the CIAAW table.
 CIAAW_2021_INTERVAL = {
     "1H": (0.99972, 0.99999),
     "2H": (0.00001, 0.00028),
@@ -120,7 +120,7 @@ def test_carbon_13() -> None:
 
 def test_sulfur_34() -> None:
     # 34S 0.0425(24): J. Meija et al., Pure Appl. Chem. 88, 293 (2016) (from memory);
-    # inside the CIAAW 2021 interval [0.0396, 0.0477] (read from a transcription)
+    # inside the CIAAW 2021 interval [0.0396, 0.0477] (read from a copy)
     assert isotope("34S").abundance == pytest.approx(0.0425, abs=1e-4)
 
 
@@ -129,7 +129,7 @@ def test_sulfur_34() -> None:
     [
         # 12C defines the unified atomic mass unit (SI brochure, 9th ed., 2019; common practice)
         ("12C", 12.0),
-        # AME2020: M. Wang et al., Chin. Phys. C 45, 030003 (2021); read from a transcription
+        # AME2020: M. Wang et al., Chin. Phys. C 45, 030003 (2021); read from a copy
         ("1H", 1.00782503190),
         ("2H", 2.01410177784),
         ("13C", 13.00335483534),
