@@ -294,6 +294,18 @@ def _disorder_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--rotor", action="append", metavar="FORMULA", help="declare a unit a free rotor (dynamic)")
 
 
+def _line_options(p: argparse.ArgumentParser, *, window: float, what: str) -> None:
+    """Options about measured lines, shared by the commands that read peak lists."""
+    p.add_argument("--modes", metavar="TOML", help="free-unit mode table (default: the bundled catalogue)")
+    p.add_argument("--technique", choices=["ir", "raman"], help="what was measured (else read from the files)")
+    p.add_argument(
+        "--window",
+        type=float,
+        default=window,
+        help=f"largest distance (cm-1) of a line {what} (default {window:g})",
+    )
+
+
 def _crystal_options(p: argparse.ArgumentParser) -> None:
     from .crystal.spacegroup import DEFAULT_CELL_TOLERANCE
     from .crystal.units import DEFAULT_BOND_SCALE
@@ -409,14 +421,7 @@ def build_parser() -> argparse.ArgumentParser:
         help="observed components, e.g. T1u:ir=3 Hg:raman=5 lattice:raman=5 (optionally UNIT/BAND)",
     )
     lo.add_argument("--peaks", metavar="CSV", help="count the observed components from a peak list instead")
-    lo.add_argument("--modes", metavar="TOML", help="free-unit mode table for --peaks (default: bundled catalogue)")
-    lo.add_argument("--technique", choices=["ir", "raman"], help="technique of --peaks (else from the file)")
-    lo.add_argument(
-        "--window",
-        type=float,
-        default=15.0,
-        help="largest distance (cm-1) of a line from its free band when counting (default 15)",
-    )
+    _line_options(lo, window=15.0, what="from its free band when counting")
     _crystal_options(lo)
     lo.add_argument("--json", action="store_true", help="print JSON instead of text")
 
@@ -432,14 +437,7 @@ def build_parser() -> argparse.ArgumentParser:
         help="raw spectrum (two columns, CSV or JCAMP-DX); peaks are "
         "found in it when --peaks is not given, and it is drawn in the figure",
     )
-    ex.add_argument("--modes", metavar="TOML", help="free-unit mode table (default: the bundled catalogue)")
-    ex.add_argument("--technique", choices=["ir", "raman"], help="what was measured (else read from the files)")
-    ex.add_argument(
-        "--window",
-        type=float,
-        default=40.0,
-        help="largest distance (cm-1) of a line from the band it is assigned to (default 40)",
-    )
+    _line_options(ex, window=40.0, what="from the band it is assigned to")
     ex.add_argument("-o", "--output", metavar="FIGURE", help="write a figure (.svg, .pdf or .png)")
     _crystal_options(ex)
     ex.add_argument("--json", action="store_true", help="print JSON instead of text")

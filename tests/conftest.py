@@ -34,3 +34,28 @@ def run_cli(capsys: pytest.CaptureFixture[str]) -> Callable[[Sequence[str]], tup
         return int(code), out, err
 
     return run
+
+
+# Predictions of the bundled crystals, shared by every test file (results are immutable).
+@pytest.fixture(scope="session")
+def calcite(structures_dir: Path):
+    """Prediction for calcite (R-3c)."""
+    from splitting.crystal.predict import predict
+
+    return predict(structures_dir / "calcite.cif")
+
+
+@pytest.fixture(scope="session")
+def c60(structures_dir: Path):
+    """Prediction for the ordered C60 phase (Pa-3)."""
+    from splitting.crystal.predict import predict
+
+    return predict(structures_dir / "c60_ordered_Pa-3.cif")
+
+
+@pytest.fixture(scope="session")
+def c60_fcc(structures_dir: Path):
+    """Prediction for the one-orientation fcc C60 model (Fm-3)."""
+    from splitting.crystal.predict import predict
+
+    return predict(structures_dir / "c60_fcc_Fm-3.cif")

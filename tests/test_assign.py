@@ -11,7 +11,6 @@ import json
 
 import pytest
 
-from splitting.crystal.predict import predict
 from splitting.errors import DataError, InputError
 from splitting.report.text import explanation_text
 from splitting.spectra.assign import (
@@ -24,21 +23,6 @@ from splitting.spectra.assign import (
 )
 from splitting.spectra.catalogue import find_table
 from splitting.spectra.measured import Peak, PeakList
-
-
-@pytest.fixture(scope="module")
-def calcite(structures_dir):
-    return predict(structures_dir / "calcite.cif")
-
-
-@pytest.fixture(scope="module")
-def c60_ordered(structures_dir):
-    return predict(structures_dir / "c60_ordered_Pa-3.cif")
-
-
-@pytest.fixture(scope="module")
-def c60_fm3(structures_dir):
-    return predict(structures_dir / "c60_fcc_Fm-3.cif")
 
 
 def _peaks(rows, technique="raman"):
@@ -108,7 +92,7 @@ def test_ir_site_and_technique(calcite):
         explain(calcite, _peaks([(877.0, 1.0)], technique="ir"), technique="raman")
 
 
-def test_site_activated_and_disorder(c60_ordered, c60_fm3):
+def test_site_activated_and_disorder(c60, c60_fcc):
     from splitting.spectra.catalogue import ModeTable
 
     base = find_table("C60")
@@ -116,19 +100,19 @@ def test_site_activated_and_disorder(c60_ordered, c60_fm3):
     # S6 site of Pa-3 (Gg -> 2Ag + Eg at the site)
     gg = dataclasses.replace(base.modes[0], name="Gg(x)", species="Gg", wavenumber_cm1=1000.0, ir=False, raman=False)
     table = ModeTable(base.name, base.formula, 0, "Ih", "invented", "invented", (gg,), complete=False)
-    e = explain(c60_ordered, _peaks([(1001.0, 1.0)]), modes=table)
+    e = explain(c60, _peaks([(1001.0, 1.0)]), modes=table)
     assert e.lines[0].candidates[0].kind == "site_activated"
     # T1u in Raman, Fm-3 (Th site, factor Th): T1u stays T1u (Tu), inactive at site and factor
-    e2 = explain(c60_fm3, _peaks([(1183.0, 1.0)]))
+    e2 = explain(c60_fcc, _peaks([(1183.0, 1.0)]))
     assert all(c.band != "T1u(3)" for c in e2.lines[0].candidates)
 
 
-def test_second_phase_and_counts(c60_ordered, c60_fm3):
+def test_second_phase_and_counts(c60, c60_fcc):
     # eight lines around Hg(1) at 273 cm-1: Fm-3 allows 2 components (Ag/Eg/Tg count 2 with
     # Th site and Th factor: Eg + Tg), Pa-3 allows 8
     rows = [(273.0 + 4.0 * (k - 3.5), 1.0 + 0.01 * k) for k in range(8)]
     peaks = _peaks(rows)
-    e = explain(c60_fm3, peaks, alternatives=[c60_ordered])
+    e = explain(c60_fcc, peaks, alternatives=[c60])
     kinds = {c.kind for line in e.lines for c in line.candidates}
     assert "second_phase" in kinds
     fm3, pa3 = e.comparisons
@@ -138,11 +122,11 @@ def test_second_phase_and_counts(c60_ordered, c60_fm3):
     assert hg1[pa3.phase].predicted == 8
     # compare_counts gives the same numbers on its own
     observed = count_components(peaks, find_table("C60"), 40.0)
-    (alone,) = compare_counts(observed, c60_ordered, technique="raman")
+    (alone,) = compare_counts(observed, c60, technique="raman")
     assert next(b for b in alone.bands if b.band == "Hg(1)").predicted == 8
 
 
-def test_mode_table_checks(calcite, c60_ordered):
+def test_mode_table_checks(calcite, c60):
     with pytest.raises(InputError, match="matches no molecular unit"):
         explain(calcite, _peaks([(1000.0, 1.0)]), modes=find_table("SF6"))
     with pytest.raises(InputError, match="not a molecular unit"):

@@ -7,7 +7,6 @@ from html.parser import HTMLParser
 
 import pytest
 
-from splitting.crystal.predict import predict
 from splitting.errors import InputError
 from splitting.report.html import html_report, write_report
 from splitting.spectra.catalogue import find_table
@@ -68,21 +67,6 @@ def _check(page: str) -> _Checker:
     assert not c.stack, c.stack
     assert len(c.ids) == len(set(c.ids)), "duplicate ids"
     return c
-
-
-@pytest.fixture(scope="module")
-def calcite(structures_dir):
-    return predict(structures_dir / "calcite.cif")
-
-
-@pytest.fixture(scope="module")
-def c60(structures_dir):
-    return predict(structures_dir / "c60_ordered_Pa-3.cif")
-
-
-@pytest.fixture(scope="module")
-def c60_fcc(structures_dir):
-    return predict(structures_dir / "c60_fcc_Fm-3.cif")
 
 
 @pytest.fixture(scope="module")

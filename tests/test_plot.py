@@ -9,7 +9,6 @@ from collections import Counter
 
 import pytest
 
-from splitting.crystal.predict import predict
 from splitting.errors import InputError
 from splitting.plot import (
     correlation_diagram,
@@ -31,21 +30,6 @@ from splitting.plot.mulliken import (
     schoenflies_mathtext,
 )
 from splitting.spectra.catalogue import find_table
-
-
-@pytest.fixture(scope="module")
-def c60(structures_dir):
-    return predict(structures_dir / "c60_ordered_Pa-3.cif")
-
-
-@pytest.fixture(scope="module")
-def c60_fcc(structures_dir):
-    return predict(structures_dir / "c60_fcc_Fm-3.cif")
-
-
-@pytest.fixture(scope="module")
-def calcite(structures_dir):
-    return predict(structures_dir / "calcite.cif")
 
 
 # ------------------------------------------------------------------ typesetting

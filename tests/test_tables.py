@@ -8,19 +8,8 @@ import re
 
 import pytest
 
-from splitting.crystal.predict import predict
 from splitting.errors import InputError
 from splitting.report.tables import correlation_table, escape_latex, render_table, species_table
-
-
-@pytest.fixture(scope="module")
-def calcite(structures_dir):
-    return predict(structures_dir / "calcite.cif")
-
-
-@pytest.fixture(scope="module")
-def c60(structures_dir):
-    return predict(structures_dir / "c60_ordered_Pa-3.cif")
 
 
 def _csv(text):
