@@ -168,8 +168,9 @@ def _lower(args: argparse.Namespace) -> int:
     observed = parse_observed(args.observed)
     if args.peaks:
         from .crystal.predict import predict
-        from .spectra.assign import find_unit_table, observed_counts
+        from .spectra.bands import find_unit_table
         from .spectra.catalogue import load_mode_table
+        from .spectra.counting import observed_counts
         from .spectra.measured import read_peaks
 
         peaks = read_peaks(args.peaks, technique=args.technique)
@@ -189,8 +190,8 @@ def _lower(args: argparse.Namespace) -> int:
 
 @_command("explain")
 def _explain(args: argparse.Namespace) -> int:
+    from .plot.explain import explain_files
     from .report.text import explanation_text
-    from .spectra.assign import explain_files
 
     if args.peaks is None and args.spectrum is None:
         raise InputError("give the measured lines with --peaks FILE or a raw spectrum with --spectrum FILE")

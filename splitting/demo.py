@@ -62,12 +62,13 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
     from .phases.compare import compare_phases
     from .phases.lower import lower
     from .plot.correlation import correlation_diagram, phase_correlation_diagram
+    from .plot.explain import explain_files
     from .plot.lines import line_pattern, write_figure
     from .report.html import write_report
     from .report.tables import correlation_table, species_table
     from .report.text import explanation_text, lowering_text, prediction_text, sequence_text
-    from .spectra.assign import count_components, explain_files
     from .spectra.catalogue import find_table
+    from .spectra.counting import count_components
     from .spectra.measured import read_peaks
 
     folder = Path(out)

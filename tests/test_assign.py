@@ -159,7 +159,7 @@ def test_figure_artists(calcite, tmp_path):
     matplotlib.use("Agg")
     from matplotlib.figure import Figure
 
-    from splitting.spectra.explain_plot import explanation_figure, save_explanation_figure
+    from splitting.plot.explain import explanation_figure, save_explanation_figure
     from splitting.spectra.peaks import synthesize
 
     peaks = _peaks([(1086.0, 1.0), (1090.0, 0.5), (712.0, 0.4), (2000.0, 0.1)])

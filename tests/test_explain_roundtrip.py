@@ -14,7 +14,8 @@ import pytest
 
 from splitting.crystal.predict import predict
 from splitting.errors import InputError
-from splitting.spectra.assign import explain, explain_files
+from splitting.plot.explain import explain_files
+from splitting.spectra.assign import explain
 from splitting.spectra.catalogue import find_table
 from splitting.spectra.measured import read_spectrum
 from splitting.spectra.peaks import find_peaks, synthesize

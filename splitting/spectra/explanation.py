@@ -6,6 +6,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from .measured import Peak
+from .scoring import PRIORS, SURPLUS_FACTOR
 
 __all__ = ["BandCount", "Candidate", "Explanation", "LineExplanation", "PhaseComparison"]
 
@@ -224,8 +225,6 @@ class Explanation:
 
     def to_dict(self) -> dict[str, Any]:
         """Plain, JSON-ready dictionary of the fields."""
-        from .assign import PRIORS, SURPLUS_FACTOR  # the scoring rules live with the scorer
-
         return {
             "phase": self.phase,
             "peaks_source": self.peaks_source,

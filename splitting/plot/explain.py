@@ -1,5 +1,8 @@
 """Figure of a measured spectrum with the predicted components and the assignments marked.
 
+:func:`explain_files` reads the files, explains the lines
+(:func:`splitting.spectra.assign.explain`) and saves this figure when asked.
+
 matplotlib is imported inside the functions only, so the rest of the package works
 without it.
 
@@ -26,10 +29,11 @@ from typing import Any
 import numpy as np
 
 from ..errors import InputError
-from .assign import Explanation
-from .measured import Spectrum
+from ..spectra.explanation import Explanation
+from ..spectra.measured import Spectrum
+from ..spectra.scoring import DEFAULT_TOLERANCE_CM1
 
-__all__ = ["FIGURE_FORMATS", "explanation_figure", "save_explanation_figure"]
+__all__ = ["FIGURE_FORMATS", "explain_files", "explanation_figure", "save_explanation_figure"]
 
 #: File suffixes the figure can be saved with, and the matplotlib format of each.
 FIGURE_FORMATS = {".png": "png", ".pdf": "pdf", ".svg": "svg", ".jpg": "jpg", ".jpeg": "jpg", ".eps": "eps"}
@@ -190,3 +194,77 @@ def save_explanation_figure(
     buffer = io.BytesIO()
     fig.savefig(buffer, format=fmt, dpi=dpi)
     return atomic_write_bytes(target, buffer.getvalue())
+
+
+def explain_files(
+    structure: str | os.PathLike[str],
+    peaks: str | os.PathLike[str] | None = None,
+    *,
+    spectrum: str | os.PathLike[str] | None = None,
+    modes: str | os.PathLike[str] | None = None,
+    technique: str | None = None,
+    figure: str | os.PathLike[str] | None = None,
+    tolerance_cm1: float = DEFAULT_TOLERANCE_CM1,
+    options: Any = None,
+) -> Explanation:
+    """Read the files, explain the lines, and optionally save the figure.
+
+    Everything is read and checked before anything is written; the figure (if asked
+    for) is written atomically, so on any error no file appears.
+
+    Parameters
+    ----------
+    structure : path
+        Crystal structure file (anything :func:`splitting.crystal.predict.predict` reads).
+    peaks : path or None
+        Peak list (:func:`~splitting.spectra.measured.read_peaks`); ``None``: found in
+        ``spectrum`` with :func:`~splitting.spectra.peaks.find_peaks`.
+    spectrum : path or None
+        Measured spectrum (:func:`~splitting.spectra.measured.read_spectrum`), drawn in
+        the figure.
+    modes : path or None
+        Mode-table TOML file; ``None``: bundled tables.
+    technique : {"ir", "raman"} or None
+        Technique; must agree with what the files say.
+    figure : path or None
+        Where to save the figure (format from the suffix, e.g. ``.png``, ``.pdf``, ``.svg``).
+    tolerance_cm1 : float
+        Window half width, cm-1.
+    options : splitting.crystal.predict.Options or None
+        Crystal-pipeline options.
+
+    Raises
+    ------
+    InputError
+        Missing, empty or malformed files; text in numeric columns; unsorted or
+        repeated x values; wavelength units; conflicting techniques; an output folder
+        that does not exist.
+    """
+    from ..crystal.predict import predict
+    from ..spectra.assign import explain
+    from ..spectra.catalogue import load_mode_table
+    from ..spectra.measured import read_peaks, read_spectrum
+    from ..spectra.peaks import find_peaks
+
+    if peaks is None and spectrum is None:
+        raise InputError("give a peak list or a spectrum to explain")
+    if figure is not None:
+        target = Path(figure)
+        if target.suffix.lower() not in FIGURE_FORMATS:
+            raise InputError(
+                f"{target}: unknown figure format {target.suffix!r}; use one of {', '.join(FIGURE_FORMATS)}"
+            )
+        folder = target.parent if str(target.parent) else Path(".")
+        if not folder.is_dir():
+            raise InputError(f"cannot write {figure}: folder {folder} does not exist")
+    spec = read_spectrum(spectrum, technique=technique) if spectrum is not None else None
+    if peaks is not None:
+        peak_list = read_peaks(peaks, technique=technique or (spec.technique if spec else None))
+    elif spec is not None:
+        peak_list = find_peaks(spec)
+    table = load_mode_table(modes) if modes is not None else None
+    prediction = predict(structure, options)
+    result = explain(prediction, peak_list, modes=table, technique=technique, tolerance_cm1=tolerance_cm1)
+    if figure is not None:
+        save_explanation_figure(result, figure, spectrum=spec)
+    return result
