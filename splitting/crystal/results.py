@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from .._display import Summarised
 from ..groups import Representation
 from .spacegroup import SpaceGroupInfo
 
@@ -205,8 +206,8 @@ class FactorSpecies:
         }
 
 
-@dataclass(frozen=True)
-class CrystalPrediction:
+@dataclass(frozen=True, repr=False)
+class CrystalPrediction(Summarised):
     """The full k = 0 prediction for a crystal.
 
     Attributes

@@ -6,6 +6,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .._display import Summarised
 from ..activity import activity_table
 from ..errors import InputError, SymmetryError
 from ..groups import Representation
@@ -118,8 +119,8 @@ def external_representations(
     return trans, rot
 
 
-@dataclass(frozen=True, eq=False)
-class FreeUnitAnalysis:
+@dataclass(frozen=True, eq=False, repr=False)
+class FreeUnitAnalysis(Summarised):
     """Everything group theory says about the vibrations of one free unit.
 
     Attributes

@@ -9,6 +9,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .._display import Summarised
 from ..activity import activity_table
 from ..crystal.freeunits import FreeUnitCache
 from ..crystal.predict import Options, predict_atoms
@@ -313,8 +314,8 @@ class BandChange:
         }
 
 
-@dataclass(frozen=True)
-class PhaseSequence:
+@dataclass(frozen=True, repr=False)
+class PhaseSequence(Summarised):
     """Predictions for an ordered sequence of phases and the changes between them."""
 
     phases: tuple[Phase, ...]

@@ -21,6 +21,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from .._display import Summarised
 from ..correlation import FactorGroup
 from ..crystal.freeunits import FreeUnitCache
 from ..crystal.predict import Options, predict_atoms
@@ -206,8 +207,8 @@ class Candidate:
         }
 
 
-@dataclass(frozen=True)
-class Lowering:
+@dataclass(frozen=True, repr=False)
+class Lowering(Summarised):
     """All candidates found for a parent structure, best first when observations were given."""
 
     parent: CrystalPrediction

@@ -5,6 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
+from .._display import Summarised
 from .measured import Peak
 from .scoring import PRIORS, SURPLUS_FACTOR
 
@@ -181,8 +182,8 @@ class PhaseComparison:
         }
 
 
-@dataclass(frozen=True)
-class Explanation:
+@dataclass(frozen=True, repr=False)
+class Explanation(Summarised):
     """Assignment of a measured spectrum against a crystal prediction.
 
     Attributes
