@@ -1,48 +1,204 @@
-"""Reading structure files through ase, with every failure turned into one clear line."""
+"""Reading structure files, with every failure turned into one clear line.
+
+CIF goes through gemmi (:mod:`splitting.cif`); every other format through ase.  Before any
+number reaches the symmetry library it is checked here: finite coordinates, a cell with
+positive, finite, not absurd lengths and a volume that is not flat.
+"""
 
 from __future__ import annotations
 
+import math
 import os
+import re
+import tempfile
 import warnings
+from collections.abc import Sequence
 from pathlib import Path
 
+import numpy as np
+
+from ._io import read_input_bytes
 from .errors import InputError
 
-__all__ = ["read_atoms"]
+__all__ = ["check_atoms", "check_cell_parameters", "read_atoms"]
+
+#: shortest and longest cell edge accepted, angstrom
+MIN_CELL_LENGTH = 0.5
+MAX_CELL_LENGTH = 1.0e4
+#: smallest volume / (a b c) accepted; below it the cell is flat (e.g. an angle near 0 or 180 degrees)
+MIN_VOLUME_FRACTION = 0.02
+#: largest Cartesian coordinate accepted, angstrom
+MAX_COORDINATE = 1.0e6
+
+_COMPRESSED = (".gz", ".bz2", ".xz")
 
 
-def read_atoms(path: str | os.PathLike[str], *, format: str | None = None):
-    """Read the last frame of any file ase understands.
+def check_cell_parameters(params: Sequence[float], where: str) -> None:
+    """Raise InputError unless a, b, c (angstrom) and alpha, beta, gamma (degrees) make a usable cell.
+
+    Examples
+    --------
+    >>> check_cell_parameters([4.0, 4.0, 4.0, 90, 90, 90], "x.cif")
+    >>> check_cell_parameters([-1.0, 4.0, 4.0, 90, 90, 90], "x.cif")
+    Traceback (most recent call last):
+    ...
+    splitting.errors.InputError: x.cif: cell length a is -1 A; a cell length must be positive
+    """
+    names = ("a", "b", "c", "alpha", "beta", "gamma")
+    for name, v in zip(names, params, strict=True):
+        kind = "length" if len(name) == 1 else "angle"
+        unit = "A" if kind == "length" else "degrees"
+        if not math.isfinite(v):
+            raise InputError(f"{where}: cell {kind} {name} is {v}, not a finite number")
+        if kind == "length":
+            if v <= 0:
+                raise InputError(f"{where}: cell length {name} is {v:g} A; a cell length must be positive")
+            if v < MIN_CELL_LENGTH or v > MAX_CELL_LENGTH:
+                raise InputError(
+                    f"{where}: cell length {name} is {v:g} A, outside {MIN_CELL_LENGTH:g}-{MAX_CELL_LENGTH:g} A; "
+                    "not the cell of a crystal"
+                )
+        elif not 0 < v < 180:
+            raise InputError(f"{where}: cell angle {name} is {v:g} {unit}; an angle must lie between 0 and 180")
+    ca, cb, cg = (math.cos(math.radians(x)) for x in params[3:])
+    fraction2 = 1 - ca * ca - cb * cb - cg * cg + 2 * ca * cb * cg
+    if fraction2 < MIN_VOLUME_FRACTION**2:
+        raise InputError(
+            f"{where}: the cell is flat (angles {params[3]:g}, {params[4]:g}, {params[5]:g} degrees leave "
+            f"{math.sqrt(max(fraction2, 0.0)):.2g} of a*b*c as volume); check the cell angles"
+        )
+
+
+def check_atoms(atoms, where: str) -> None:
+    """Raise InputError for non-finite or absurd coordinates, or an unusable periodic cell."""
+    pos = np.asarray(atoms.positions, dtype=float)
+    bad = ~np.isfinite(pos).all(axis=1)
+    if bad.any():
+        i = int(np.flatnonzero(bad)[0])
+        raise InputError(
+            f"{where}: atom {i + 1} ({atoms[i].symbol}) has a coordinate that is not a finite number "
+            f"({', '.join(f'{x:g}' for x in pos[i])})"
+        )
+    if len(pos) and np.abs(pos).max() > MAX_COORDINATE:
+        i = int(np.argmax(np.abs(pos).max(axis=1)))
+        raise InputError(f"{where}: atom {i + 1} ({atoms[i].symbol}) lies {np.abs(pos[i]).max():g} A from the origin")
+    if any(atoms.pbc):
+        cell = np.asarray(atoms.cell[:], dtype=float)
+        if not np.isfinite(cell).all():
+            raise InputError(f"{where}: the cell holds a number that is not finite")
+        if atoms.cell.rank < 3:
+            raise InputError(f"{where}: the cell vectors do not span three dimensions")
+        lengths = np.linalg.norm(cell, axis=1)
+        angles = []
+        for i, j in ((1, 2), (0, 2), (0, 1)):
+            cosine = float(np.dot(cell[i], cell[j]) / (lengths[i] * lengths[j]))
+            angles.append(math.degrees(math.acos(max(-1.0, min(1.0, cosine)))))
+        check_cell_parameters([*lengths.tolist(), *angles], where)
+
+
+def _xyz_counts(data: bytes, where: str) -> None:
+    """Check that every frame of an XYZ file holds as many lines as its count line claims."""
+    lines = data.splitlines()
+    n_lines = len(lines)
+    pos = 0
+    while pos < n_lines:
+        head = lines[pos].strip()
+        if not head:
+            pos += 1
+            continue
+        try:
+            n = int(head.split()[0])
+        except ValueError:
+            shown = head[:40].decode(errors="replace")
+            raise InputError(f"{where}: line {pos + 1} should give the number of atoms, but reads {shown!r}") from None
+        if n <= 0:
+            raise InputError(f"{where}: line {pos + 1} gives {n} atoms")
+        if pos + 2 + n > n_lines:
+            raise InputError(
+                f"{where}: line {pos + 1} says {n} atoms, but the file has only {n_lines - pos - 2} lines after it"
+            )
+        pos += 2 + n
+
+
+def _is_cif(name: str, format: str | None) -> bool:
+    return format == "cif" if format else name.lower().endswith((".cif", ".mmcif"))
+
+
+def read_atoms(path: str | os.PathLike[str], *, format: str | None = None, cif_reader: str = "gemmi"):
+    """Read the last frame of a structure file: CIF through gemmi, other formats through ase.
+
+    Parameters
+    ----------
+    path
+        The file; ``.gz``, ``.bz2`` and ``.xz`` files are decompressed (up to the input limit).
+    format
+        An ase format name, when the suffix does not say it.
+    cif_reader
+        ``"gemmi"`` (default) or ``"ase"``, the reader used for CIF.
 
     Raises
     ------
     InputError
-        Missing, empty or unreadable file, unknown format, or a file with no atoms.
+        Missing, empty, non-regular or unreadable file, unknown format, a file with no atoms,
+        numbers that are not finite or a cell that cannot be a crystal's.
     """
+    p = Path(path)
+    data = read_input_bytes(p, what="structure file")
+    name = p.name
+    if name.lower().endswith(_COMPRESSED):
+        name = name.rsplit(".", 1)[0]
+    if not data.strip():
+        raise InputError(f"{p}: the file is empty")
+    if _is_cif(name, format) and cif_reader == "gemmi":
+        from .cif import read_cif
+
+        atoms = read_cif(p, text=data.decode("utf-8", errors="replace"))
+    else:
+        if (format or "").endswith("xyz") or (format is None and name.lower().endswith((".xyz", ".extxyz"))):
+            _xyz_counts(data, str(p))
+        atoms = _read_ase(p, name, data, format)
+    if len(atoms) == 0:
+        raise InputError(f"{p}: the structure has no atoms")
+    check_atoms(atoms, str(p))
+    return atoms
+
+
+def _read_ase(p: Path, name: str, data: bytes, format: str | None):
     import ase.io
 
-    p = Path(path)
-    if not p.exists():
-        raise InputError(f"{p}: no such file")
-    if p.is_dir():
-        raise InputError(f"{p}: is a folder, not a structure file")
-    if p.stat().st_size == 0:
-        raise InputError(f"{p}: the file is empty")
-    try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            atoms = ase.io.read(str(p), format=format)
-    except ase.io.formats.UnknownFileTypeError:
-        raise InputError(f"{p}: unknown file format; give a CIF, POSCAR, XYZ or another format ase reads") from None
-    except StopIteration:
-        raise InputError(f"{p}: no structure found in the file") from None
-    except Exception as exc:  # ase raises many types for malformed files
-        msg = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
-        raise InputError(f"{p}: cannot be read as a structure ({msg})") from None
+    with tempfile.TemporaryDirectory(prefix="splitting-read-") as tmp:
+        source = p
+        if p.name != name:  # decompressed: give ase the plain file under its own name
+            source = Path(tmp) / re.sub(r"[^\w.+-]", "_", name)
+            source.write_bytes(data)
+        try:
+            with warnings.catch_warnings():
+                warnings.simplefilter("ignore")
+                atoms = ase.io.read(str(source), format=format)
+        except ase.io.formats.UnknownFileTypeError:
+            raise InputError(f"{p}: unknown file format; give a CIF, POSCAR, XYZ or another format ase reads") from None
+        except StopIteration:
+            raise InputError(f"{p}: no structure found in the file") from None
+        except MemoryError:
+            raise InputError(f"{p}: the file asks for more memory than there is; it is damaged") from None
+        except Exception as exc:  # ase raises many types for malformed files
+            raise InputError(f"{p}: cannot be read as a structure ({_plain(exc)})") from None
     if isinstance(atoms, list):
         if not atoms:
             raise InputError(f"{p}: no structure found in the file")
         atoms = atoms[-1]
-    if len(atoms) == 0:
-        raise InputError(f"{p}: the structure has no atoms")
     return atoms
+
+
+def _plain(exc: Exception) -> str:
+    """The first line of a reader's message, without Python's wording for a failed conversion."""
+    text = str(exc).strip().splitlines()[0] if str(exc).strip() else ""
+    m = re.match(r"could not convert string to float: (.*)", text)
+    if m:
+        return f"{m.group(1)} is not a number"
+    m = re.match(r"invalid literal for int\(\) with base 10: (.*)", text)
+    if m:
+        return f"{m.group(1)} is not a whole number"
+    if not text or isinstance(exc, (AssertionError, IndexError, KeyError)):
+        return "the file does not follow the format"
+    return text

@@ -9,7 +9,7 @@ from collections import Counter
 
 import pytest
 
-from splitting.errors import InputError
+from splitting.errors import InputError, OutputError
 from splitting.plot import (
     correlation_diagram,
     figure_svg,
@@ -315,7 +315,7 @@ def test_write_figure_rejects_unknown_suffix(tmp_path, calcite):
     art = correlation_diagram(calcite)
     with pytest.raises(InputError, match="unknown figure format"):
         write_figure(art.figure, tmp_path / "d.jpg")
-    with pytest.raises(InputError, match="does not exist"):
+    with pytest.raises(OutputError, match="does not exist"):
         write_figure(art.figure, tmp_path / "missing" / "d.svg")
 
 

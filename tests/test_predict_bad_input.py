@@ -170,7 +170,7 @@ def test_bad_file(kind: str, json_flag: bool, bad_files: dict[str, Path], run_cl
         ("missing", "no such file"),
         ("folder", "folder"),
         ("empty", "empty"),
-        ("malformed cif", "no atoms"),
+        ("malformed cif", "not a readable CIF (line 7"),
     ],
 )
 def test_bad_file_says_what_is_wrong(kind: str, words: str, bad_files: dict[str, Path], run_cli: Runner) -> None:
