@@ -285,6 +285,47 @@ def _demo(args: argparse.Namespace) -> int:
     return 0
 
 
+@_command("screen")
+def _screen(args: argparse.Namespace) -> int:
+    from .batch import screen
+    from .batch.progress import ProgressBar
+
+    bar = ProgressBar() if not args.quiet and sys.stderr.isatty() else None
+    try:
+        result = screen(
+            args.sources,
+            args.out,
+            options=_options(args),
+            scheduler=args.scheduler,
+            workers=args.workers,
+            timeout=args.timeout,
+            memory=args.memory,
+            part_size=args.part_size,
+            progress=bar,
+        )
+    except KeyboardInterrupt:
+        print(f"error: interrupted; the finished parts are kept in {args.out}: run again to go on", file=sys.stderr)
+        return 130
+    finally:
+        if bar is not None:
+            bar.close()
+    return _emit(args, result.to_dict(), result.summary)
+
+
+def _screen_parser(sub: argparse._SubParsersAction) -> None:
+    sc = sub.add_parser("screen", help="many structures on a Dask cluster: one Parquet row per structure and per band")
+    sc.add_argument("sources", nargs="+", help="folders, glob patterns ('db/**/*.cif'), list files (.txt) or files")
+    sc.add_argument("-o", "--out", required=True, metavar="FOLDER", help="output folder (rerun to resume)")
+    sc.add_argument("--scheduler", metavar="ADDRESS", help="a running Dask scheduler, e.g. tcp://host:8786")
+    sc.add_argument("--workers", type=int, metavar="N", help="local worker processes (default: one per core)")
+    sc.add_argument("--timeout", type=float, default=120.0, help="seconds per structure, 0 for none (default 120)")
+    sc.add_argument("--memory", type=int, default=4096, metavar="MIB", help="memory per structure (default 4096)")
+    sc.add_argument("--part-size", type=int, default=32, metavar="N", help="structures per committed part")
+    sc.add_argument("--quiet", action="store_true", help="no progress bar")
+    _crystal_options(sc)
+    sc.add_argument("--json", action="store_true", help="print the summary as JSON")
+
+
 def _disorder_options(p: argparse.ArgumentParser) -> None:
     p.add_argument(
         "--disorder",
@@ -478,7 +519,7 @@ def build_parser() -> argparse.ArgumentParser:
     return p
 
 
-_EXTRA_PARSERS: list[Callable[[argparse._SubParsersAction], None]] = []
+_EXTRA_PARSERS: list[Callable[[argparse._SubParsersAction], None]] = [_screen_parser]
 
 
 def main(argv: Sequence[str] | None = None) -> int:
