@@ -1,0 +1,295 @@
+"""The estimate: structure -> crystal pipeline -> free-unit Hessians -> dynamical matrix -> labelled lines.
+
+``estimate(path)`` runs the engine's crystal pipeline (space group, units, orbits, factor
+group and the whole-cell count), builds the harmonic k = 0 model of the primitive cell at
+the structure as given and returns every line with its factor-group species, activity and
+origin.  The lattice is not relaxed (relaxation within the space group is left for later):
+a structure far from a minimum of the model shows imaginary modes and is refused.
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import BookkeepingError, InputError
+from .constants import ZERO_CM1
+from .dynmat import build_cell_model, dynamical_matrix
+from .freeunit import METHOD
+from .neutron import neutron_weight
+from .potential import DEFAULT_CUTOFF, PARAMETER_SETS
+from .results import BandEstimate, Estimate, Line
+from .species import atom_permutations, origin_weights, split_by_species
+
+__all__ = ["EstimateOptions", "estimate", "estimate_atoms"]
+
+Progress = Callable[[str], None]
+
+#: rule of thumb when only one parameter set covers the elements: atom-atom potentials
+#: give lattice frequencies of molecular crystals to within about 20 % (common practice;
+#: cf. G. S. Pawley, Phys. Status Solidi 20, 347 (1967), from memory)
+LATTICE_RULE = 0.20
+#: the crystal-field part of an internal line (its distance from the free value) is
+#: uncertain by about half its size (common practice)
+INTERNAL_RULE = 0.5
+#: imaginary lines larger than this (cm-1) refuse the structure
+IMAGINARY_LIMIT = 3.0
+
+
+@dataclass(frozen=True)
+class EstimateOptions:
+    """Choices of the model.
+
+    Attributes
+    ----------
+    potential : str
+        Name of the exp-6 parameter set (see ``PARAMETER_SETS``).
+    charges : str
+        ``"all"`` (tight-binding partial charges of every atom, Ewald sum; the default, as
+        Williams and Cox fitted their N and O parameters with charges), ``"auto"`` (only
+        when a unit carries a net charge) or ``"none"``.
+    cutoff : float
+        Lattice-sum cut-off (angstrom).
+    scale_to_measured : bool
+        Scale every free fundamental to the gas-phase value of the bundled mode table.
+    cache : str or None
+        Folder for cached free-unit Hessians.
+    allow_imaginary : bool
+        Return imaginary lines instead of refusing the structure.
+    unit_charges : tuple of (str, int)
+        Charges of units given by the user.
+    """
+
+    potential: str = "williams"
+    charges: str = "all"
+    cutoff: float = DEFAULT_CUTOFF
+    scale_to_measured: bool = False
+    cache: str | None = None
+    allow_imaginary: bool = False
+    unit_charges: tuple[tuple[str, int], ...] = ()
+
+
+def estimate(
+    path: str | os.PathLike[str],
+    options=None,
+    model: EstimateOptions | None = None,
+    *,
+    progress: Progress | None = None,
+    format: str | None = None,
+) -> Estimate:
+    """Estimate where every k = 0 line of a crystal lies, with its species and origin.
+
+    Parameters
+    ----------
+    path : path
+        Crystal structure file.
+    options : splitting.crystal.predict.Options, optional
+        Options of the crystal pipeline (tolerances, units, bonds).
+    model : EstimateOptions, optional
+    progress : callable, optional
+        Called with one line of text per step.
+    """
+    from ..crystal.read import load_structure
+
+    atoms = load_structure(path, format=format)
+    return estimate_atoms(atoms, options, model, source=os.fspath(path), progress=progress)
+
+
+def estimate_atoms(
+    atoms,
+    options=None,
+    model: EstimateOptions | None = None,
+    *,
+    source: str = "structure",
+    progress: Progress | None = None,
+) -> Estimate:
+    """As :func:`estimate`, for an ``ase.Atoms`` object with a periodic cell."""
+    from ..correlation import FactorGroup
+    from ..crystal.predict import Options, _orbits, _predict, units_of
+    from ..crystal.spacegroup import analyse_cell
+
+    opts = options or Options()
+    mo = model or EstimateOptions()
+    if mo.potential not in PARAMETER_SETS:
+        raise InputError(f"no exp-6 parameter set {mo.potential!r}; sets: {', '.join(PARAMETER_SETS)}")
+    if mo.charges not in ("auto", "all", "none"):
+        raise InputError(f"charges must be auto, all or none, not {mo.charges!r}")
+    if not mo.cutoff > 0:
+        raise InputError("the lattice-sum cut-off must be positive")
+    params = PARAMETER_SETS[mo.potential]
+    cell = analyse_cell(atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=opts.tolerance)
+    units = units_of(cell, opts)
+    prediction = _predict(cell, units, opts, source)
+    orbits = _orbits(cell, units)
+    for u in units:
+        for e in sorted(set(u.symbols)):
+            if e not in params.like:
+                raise InputError(
+                    f"unit {u.formula}: element {e} is not covered by the exp-6 set {params.name!r} "
+                    f"(it covers {', '.join(sorted(params.like))}); no estimate can be made for this crystal"
+                )
+    if progress:
+        progress(f"{source}: {prediction.space_group.symbol}, {len(cell.numbers)} atoms, {len(units)} units")
+    cm = build_cell_model(
+        cell,
+        units,
+        orbits,
+        unit_tolerance=opts.unit_tolerance,
+        charges_given=dict(mo.unit_charges),
+        cache=mo.cache,
+        scale_to_measured=mo.scale_to_measured,
+        progress=progress,
+    )
+    total_charge = float(np.sum(cm.charges))
+    if abs(total_charge) > 1e-3:
+        raise InputError(
+            f"the charges of the units add up to {total_charge:+.2f} e per cell, not 0; give the charge of each "
+            "ion with --charge FORMULA=Q"
+        )
+    charged = any(abs(float(np.sum(cm.charges[cm.unit_of == k]))) > 0.5 for k in range(len(units)))
+    use_charges = mo.charges == "all" or (mo.charges == "auto" and charged)
+    factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
+    perms = atom_permutations(cell, cm.positions)
+
+    def solve(ps):
+        if progress:
+            progress(f"dynamical matrix with the exp-6 set {ps.name!r}")
+        dmat, energy = dynamical_matrix(cm, ps, cutoff=mo.cutoff, use_charges=use_charges)
+        return split_by_species(dmat, cell, factor, perms, prediction.gamma_3n), energy
+
+    blocks, energy = solve(params)
+    elements = {e for u in units for e in u.symbols}
+    others = [ps for ps in PARAMETER_SETS.values() if ps.name != params.name and ps.covers(elements)]
+    alt = [solve(ps)[0] for ps in others]
+    lines = _lines(cm, blocks, alt, prediction, units)
+    acoustic = [line for line in lines if line.origin == "acoustic"]
+    if len(acoustic) != prediction.acoustic.multiplicity:
+        raise BookkeepingError(f"{len(acoustic)} acoustic lines found, {prediction.acoustic.multiplicity} expected")
+    acoustic_max = max((abs(line.wavenumber_cm1) for line in acoustic), default=0.0)
+    if acoustic_max > ZERO_CM1:
+        raise BookkeepingError(f"an acoustic mode is at {acoustic_max:.2f} cm-1, not at zero")
+    bad = [line for line in lines if line.origin != "acoustic" and line.wavenumber_cm1 < -IMAGINARY_LIMIT]
+    if bad and not mo.allow_imaginary:
+        worst = min(bad, key=lambda line: line.wavenumber_cm1)
+        raise InputError(
+            f"unit {worst.unit}: the model has {len(bad)} imaginary line(s), down to {-worst.wavenumber_cm1:.0f}i "
+            f"cm-1 ({worst.origin}, {worst.species}): the structure is far from a minimum of the exp-6 set "
+            f"{params.name!r}; check the structure or try another --potential or --charges "
+            "(lattice relaxation is not available yet; --allow-imaginary shows the lines anyway)"
+        )
+    warnings = list(prediction.warnings)
+    if bad:
+        warnings.append(f"{len(bad)} imaginary line(s): the structure is not at a minimum of the model")
+    bands = _bands(cm, lines, units, orbits)
+    rule = (
+        "half the largest difference from the other parameter set(s) "
+        + ", ".join(repr(p.name) for p in others)
+        + f", and at least the rule of thumb ({LATTICE_RULE:.0%} of lattice lines, {INTERNAL_RULE:.0%} of an "
+        "internal line's distance from the free value)"
+        if others
+        else f"rule of thumb: {LATTICE_RULE:.0%} of lattice lines (atom-atom potentials, common practice), "
+        f"{INTERNAL_RULE:.0%} of an internal line's distance from the free value"
+    )
+    model_text = (
+        f"model: harmonic k = 0 lattice dynamics; free units {METHOD} (tblite)"
+        + (" scaled to measured gas-phase fundamentals" if mo.scale_to_measured else "")
+        + f"; exp-6 set {params.name!r}, {mo.cutoff:g} A cut-off"
+        + ("; point charges (Ewald)" if use_charges else "")
+        + "; structure as given (not relaxed)"
+    )
+    return Estimate(
+        source=source,
+        factor_group=prediction.factor_group,
+        model=model_text,
+        parameter_set=params.name,
+        parameter_source=params.source,
+        cutoff_angstrom=float(mo.cutoff),
+        charges=use_charges,
+        scaled_to_measured=mo.scale_to_measured,
+        lines=tuple(lines),
+        bands=tuple(bands),
+        acoustic_max_cm1=acoustic_max,
+        uncertainty_rule=rule,
+        lattice_energy_ev=energy,
+        warnings=tuple(warnings),
+    )
+
+
+def _lines(cm, blocks, alt, prediction, units) -> list[Line]:
+    alt_by = [{b.label: b for b in blocks_alt} for blocks_alt in alt]
+    lines = []
+    for block in blocks:
+        sp = prediction.species_by_label(block.label)
+        for k, (wn, vec) in enumerate(zip(block.wavenumbers, block.vectors, strict=True)):
+            w = origin_weights(cm, vec)
+            unit = units[next(u for u in range(len(units)) if cm.orbit_of_unit[u] == w["orbit"])].formula
+            band = free_species = None
+            free_wn = None
+            if w["acoustic"] > 0.5:
+                origin = "acoustic"
+            elif w["internal"] >= max(w["translational"], w["librational"]):
+                origin = "internal"
+                if w["band"] is not None:
+                    o, mode, _ = w["band"]
+                    unit = units[next(u for u in range(len(units)) if cm.orbit_of_unit[u] == o)].formula
+                    band, free_species, free_wn = mode.name, mode.species, mode.wavenumber_cm1
+            elif w["translational"] >= w["librational"]:
+                origin = "translational"
+            else:
+                origin = "librational"
+            spread = max((abs(a[block.label].wavenumbers[k] - wn) / 2 for a in alt_by), default=0.0)
+            if origin == "internal" and free_wn is not None:
+                rule = INTERNAL_RULE * abs(wn - free_wn)
+            elif origin == "acoustic":
+                rule = 0.0
+            else:
+                rule = LATTICE_RULE * abs(wn)
+            lines.append(
+                Line(
+                    wavenumber_cm1=float(wn),
+                    uncertainty_cm1=float(max(spread, rule)),
+                    species=block.label,
+                    dimension=block.dimension,
+                    activity=sp.activity,
+                    origin=origin,
+                    unit=unit,
+                    band=band,
+                    free_species=free_species,
+                    weights=tuple((key, float(w[key])) for key in ("translational", "librational", "internal")),
+                    neutron_weight=neutron_weight(vec, cm.symbols, cm.masses),
+                )
+            )
+    return sorted(lines, key=lambda line: line.wavenumber_cm1)
+
+
+def _bands(cm, lines, units, orbits) -> list[BandEstimate]:
+    out = []
+    for o, modes in cm.modes.items():
+        formula = units[orbits[o][0][0]].formula
+        for mode in modes:
+            comps = [
+                (line.species, line.wavenumber_cm1, line.dimension)
+                for line in lines
+                if line.origin == "internal" and line.band == mode.name and line.unit == formula
+            ]
+            if not comps:
+                continue
+            dims = sum(c[2] for c in comps)
+            centre = sum(c[1] * c[2] for c in comps) / dims
+            wn = [c[1] for c in comps]
+            out.append(
+                BandEstimate(
+                    unit=formula,
+                    band=mode.name,
+                    free_species=mode.species,
+                    free_cm1=mode.wavenumber_cm1,
+                    measured_free_cm1=mode.measured_cm1,
+                    components=tuple((c[0], c[1]) for c in sorted(comps, key=lambda c: c[1])),
+                    site_shift_cm1=centre - mode.wavenumber_cm1,
+                    splitting_cm1=max(wn) - min(wn),
+                )
+            )
+    return sorted(out, key=lambda b: (b.unit, b.free_cm1))

@@ -1,0 +1,77 @@
+"""The estimate against published measurements on solid CO2 (Pa-3).
+
+Measured values (every one from memory, cited where it was published):
+
+* Raman librational lattice modes at low temperature: Eg 74, Tg 91, Tg 132 cm-1
+  (W. Cahill and G. E. Leroi, J. Chem. Phys. 51, 97 (1969));
+* far-infrared translational lattice modes: Tu 68 and 114 cm-1
+  (D. A. Ron and O. Schnepp, J. Chem. Phys. 46, 3991 (1967));
+* nu2 (bending) of the solid in the infrared: a doublet at 654.7 and 659.8 cm-1, a
+  factor-group splitting of about 5 cm-1 (W. E. Osberg and D. F. Hornig, J. Chem. Phys. 20,
+  1345 (1952)).
+
+The comparison with every line is tabulated in docs/estimate.md.  The goal (lattice modes
+within 20 % in the median) is not reached for CO2 at the structure as given: the
+librations come out about a third too low; that is recorded as a strict xfail.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from splitting.dynamics import EstimateOptions, estimate
+
+#: (species, origin) -> measured wavenumbers (cm-1), sources in the module docstring
+OBSERVED = {
+    ("Eg", "librational"): [74.0],
+    ("Tg", "librational"): [91.0, 132.0],
+    ("Tu", "translational"): [68.0, 114.0],
+}
+NU2_SPLITTING = 659.8 - 654.7
+
+
+@pytest.fixture(scope="module")
+def co2(structures_dir, tmp_path_factory):
+    cache = tmp_path_factory.mktemp("hessians")
+    return estimate(structures_dir / "co2_Pa-3.cif", model=EstimateOptions(cache=str(cache)))
+
+
+def _ratios(est) -> list[float]:
+    out = []
+    for (species, origin), seen in OBSERVED.items():
+        mine = sorted(line.wavenumber_cm1 for line in est.lines if line.species == species and line.origin == origin)
+        assert len(mine) == len(seen)
+        out += [m / s for m, s in zip(mine, sorted(seen), strict=True)]
+    return out
+
+
+def test_lattice_modes_within_a_factor_of_two(co2):
+    ratios = _ratios(co2)
+    assert all(0.5 < r < 2.0 for r in ratios), ratios
+
+
+def test_translational_modes_within_20_percent(co2):
+    """Ron and Schnepp (1967): Tu 68, 114 cm-1 (from memory)."""
+    mine = sorted(line.wavenumber_cm1 for line in co2.lines if line.species == "Tu" and line.origin == "translational")
+    assert np.allclose(mine, [68.0, 114.0], rtol=0.2)
+
+
+@pytest.mark.xfail(strict=True, reason="librations of CO2 come out about 35 % low at the structure as given")
+def test_lattice_modes_median_within_20_percent(co2):
+    assert abs(np.median(_ratios(co2)) - 1) < 0.2
+
+
+def test_nu2_factor_group_splitting_of_the_right_size(co2):
+    """Osberg and Hornig (1952): IR doublet 654.7 / 659.8 cm-1 (from memory); goal: within a factor 2."""
+    nu2 = next(b for b in co2.bands if b.band == "nu2")
+    tu = [w for s, w in nu2.components if s == "Tu"]
+    split = max(tu) - min(tu)
+    assert 0.5 < split / NU2_SPLITTING < 2.0
+
+
+def test_librations_below_translations_ordering(co2):
+    """The lowest Raman line (Eg libration) lies below the highest IR translation (both measured)."""
+    eg = next(line for line in co2.lines if line.species == "Eg" and line.origin == "librational")
+    tu = max(line.wavenumber_cm1 for line in co2.lines if line.species == "Tu" and line.origin == "translational")
+    assert eg.wavenumber_cm1 < tu
