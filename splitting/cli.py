@@ -522,6 +522,75 @@ def build_parser() -> argparse.ArgumentParser:
 _EXTRA_PARSERS: list[Callable[[argparse._SubParsersAction], None]] = [_screen_parser]
 
 
+# ------------------------------------------------- estimate: model lattice dynamics (splitting.dynamics)
+@_command("estimate")
+def _estimate(args: argparse.Namespace) -> int:
+    from .dynamics import EstimateOptions, estimate
+    from .dynamics.text import estimate_text
+
+    charges = []
+    for item in args.charge or []:
+        f, sep, q = item.partition("=")
+        try:
+            charges.append((f.strip(), int(q)))
+        except ValueError:
+            raise InputError(f"--charge {item!r} is not of the form FORMULA=Q (e.g. NH4=1)") from None
+        if not sep:
+            raise InputError(f"--charge {item!r} is not of the form FORMULA=Q (e.g. NH4=1)")
+    if args.cache and not os.path.isdir(args.cache):
+        raise InputError(f"--cache {args.cache}: no such folder")
+    model = EstimateOptions(
+        potential=args.potential,
+        charges=args.charges,
+        cutoff=args.cutoff,
+        scale_to_measured=args.scale_to_measured,
+        cache=args.cache,
+        allow_imaginary=args.allow_imaginary,
+        unit_charges=tuple(charges),
+    )
+    progress = (lambda msg: print(f"... {msg}", file=sys.stderr, flush=True)) if args.progress else None
+    result = estimate(args.file, _options(args), model, progress=progress)
+    return _emit(args, result.to_dict(), lambda: estimate_text(result, internal=not args.lattice_only))
+
+
+def _estimate_parser(sub: argparse._SubParsersAction) -> None:
+    from .dynamics.potential import DEFAULT_CUTOFF, PARAMETER_SETS
+
+    es = sub.add_parser(
+        "estimate",
+        help="model estimate of where every line lies (lattice modes, site shifts, factor-group splittings), "
+        "each with its species, activity and origin",
+    )
+    es.add_argument("file", help="crystal structure (CIF, POSCAR, or another format ase reads)")
+    es.add_argument("--potential", choices=list(PARAMETER_SETS), default="williams", help="exp-6 parameter set")
+    es.add_argument(
+        "--charges",
+        choices=["all", "auto", "none"],
+        default="all",
+        help="point charges: every atom's tight-binding charge (default), only charged units, or none",
+    )
+    es.add_argument("--charge", action="append", metavar="FORMULA=Q", help="total charge of a unit; repeatable")
+    es.add_argument(
+        "--cutoff", type=float, default=DEFAULT_CUTOFF, help=f"lattice-sum cut-off, angstrom (default {DEFAULT_CUTOFF})"
+    )
+    es.add_argument(
+        "--scale-to-measured",
+        action="store_true",
+        help="scale every free fundamental to the gas-phase value of the bundled mode table",
+    )
+    es.add_argument("--cache", metavar="DIR", help="folder for cached free-unit Hessians (reused between runs)")
+    es.add_argument(
+        "--allow-imaginary", action="store_true", help="show imaginary lines instead of refusing the structure"
+    )
+    es.add_argument("--lattice-only", action="store_true", help="text output: lattice modes only")
+    es.add_argument("--progress", action="store_true", help="report each step on standard error")
+    _crystal_options(es)
+    es.add_argument("--json", action="store_true", help="print JSON instead of text")
+
+
+_EXTRA_PARSERS.append(_estimate_parser)
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``splitting`` command; returns the exit status."""
     parser = build_parser()
