@@ -103,6 +103,7 @@ def _options(args: argparse.Namespace):
         cutoffs=tuple(parse_cutoffs(args.bond).items()),
         bond_scale=args.bond_scale,
         ionic_metals=not args.bond_metals,
+        max_atoms=args.max_atoms,
     )
 
 
@@ -349,6 +350,7 @@ def _line_options(p: argparse.ArgumentParser, *, window: float, what: str) -> No
 
 
 def _crystal_options(p: argparse.ArgumentParser) -> None:
+    from .crystal.limits import DEFAULT_MAX_ATOMS
     from .crystal.spacegroup import DEFAULT_CELL_TOLERANCE
     from .crystal.units import DEFAULT_BOND_SCALE
     from .molecule.symmetry import DEFAULT_TOLERANCE
@@ -391,6 +393,12 @@ def _crystal_options(p: argparse.ArgumentParser) -> None:
     )
     p.add_argument(
         "--bond-metals", action="store_true", help="also draw bonds to alkali, alkaline-earth and lanthanide atoms"
+    )
+    p.add_argument(
+        "--max-atoms",
+        type=int,
+        default=DEFAULT_MAX_ATOMS,
+        help=f"refuse cells of more atoms than this, before the symmetry search (default {DEFAULT_MAX_ATOMS})",
     )
 
 

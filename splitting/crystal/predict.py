@@ -23,6 +23,7 @@ from ..groups.identify import crystal_preference, identify
 from ..molecule.analysis import hill_formula
 from ..molecule.symmetry import DEFAULT_TOLERANCE
 from .freeunits import FreeUnitCache
+from .limits import DEFAULT_MAX_ATOMS, check_atom_count
 from .read import load_structure
 from .results import Correlation, CrystalPrediction, FactorSpecies, UnitOrbit
 from .spacegroup import DEFAULT_CELL_TOLERANCE, CellSymmetry, analyse_cell
@@ -51,6 +52,8 @@ class Options:
         Bond when distance < bond_scale * (sum of covalent radii).
     ionic_metals : bool
         Keep alkali, alkaline-earth and lanthanide atoms as separate ions.
+    max_atoms : int
+        Refuse a cell of more atoms than this (as given), before the symmetry search.
     """
 
     tolerance: float = DEFAULT_CELL_TOLERANCE
@@ -60,6 +63,7 @@ class Options:
     cutoffs: tuple[tuple[tuple[str, str], float], ...] = ()
     bond_scale: float = DEFAULT_BOND_SCALE
     ionic_metals: bool = True
+    max_atoms: int = DEFAULT_MAX_ATOMS
 
 
 def predict(
@@ -91,6 +95,7 @@ def predict_atoms(
     ``free_cache`` shares free-unit analyses between calls (related phases, candidates).
     """
     opts = options or Options()
+    check_atom_count(len(atoms), opts.max_atoms)
     cell = analyse_cell(
         atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=opts.tolerance, scan=scan
     )

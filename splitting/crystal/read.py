@@ -25,9 +25,10 @@ def partial_sites(atoms) -> list[str]:
 
 def check_overlaps(atoms, *, minimum: float = 0.5) -> None:
     """Raise InputError when two atoms (with periodic images) are closer than ``minimum`` angstrom."""
-    from ase.neighborlist import neighbor_list
+    from .neighbours import periodic_pairs
 
-    i, j, d = neighbor_list("ijd", atoms, minimum)
+    found = periodic_pairs(atoms.cell[:], atoms.get_scaled_positions(wrap=False), minimum)
+    i, j, d = found.i, found.j, found.distance
     if len(d):
         k = int(np.argmin(d))
         raise InputError(

@@ -10,16 +10,29 @@ framework: its atoms are treated one by one.
 
 from __future__ import annotations
 
-from collections import deque
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from ..errors import InputError
+from .neighbours import periodic_pairs
 
-__all__ = ["DEFAULT_BOND_SCALE", "IONIC_METALS", "Unit", "find_units", "parse_cutoffs"]
+__all__ = [
+    "DEFAULT_BOND_SCALE",
+    "IONIC_METALS",
+    "MAX_BOND_LENGTH",
+    "MAX_BOND_SCALE",
+    "Unit",
+    "check_bond_options",
+    "find_units",
+    "parse_cutoffs",
+]
 
 DEFAULT_BOND_SCALE = 1.2
+#: largest bond scale accepted: beyond it "bonds" reach past the second neighbours of most solids
+MAX_BOND_SCALE = 2.5
+#: largest explicit bond length accepted (angstrom); the longest covalent bonds are near 3 A
+MAX_BOND_LENGTH = 5.0
 
 #: alkali, alkaline-earth (without Be) and lanthanide elements: kept as separate ions
 _ALKALI_AND_ALKALINE_EARTH = ("Li", "Na", "K", "Rb", "Cs", "Fr", "Mg", "Ca", "Sr", "Ba", "Ra")
@@ -87,10 +100,32 @@ def parse_cutoffs(items: list[str] | None) -> dict[tuple[str, str], float]:
         unknown = [x for x in (a, b) if x not in chemical_symbols[1:]]
         if unknown:
             raise InputError(f"bond cut-off {item!r}: {', '.join(unknown)} is not an element symbol")
-        if distance < 0:
-            raise InputError(f"bond cut-off {item!r}: the distance must not be negative")
         out[tuple(sorted((a, b)))] = distance
+    check_bond_options(DEFAULT_BOND_SCALE, out)
     return out
+
+
+def check_bond_options(scale: float, cutoffs: dict[tuple[str, str], float] | None = None) -> None:
+    """Raise InputError unless the bond scale and the explicit bond lengths are in range.
+
+    Examples
+    --------
+    >>> check_bond_options(1.2, {("C", "O"): 1.5})
+    >>> check_bond_options(1e3)
+    Traceback (most recent call last):
+    ...
+    splitting.errors.InputError: the bond scale 1000 is out of range: give a number above 0 and at most 2.5
+    """
+    if not (np.isfinite(scale) and 0 < scale <= MAX_BOND_SCALE):
+        raise InputError(
+            f"the bond scale {scale:g} is out of range: give a number above 0 and at most {MAX_BOND_SCALE:g}"
+        )
+    for (a, b), distance in (cutoffs or {}).items():
+        if not (np.isfinite(distance) and 0 <= distance <= MAX_BOND_LENGTH):
+            raise InputError(
+                f"bond cut-off {a}-{b}={distance:g} is out of range: give a distance from 0 (no bond) "
+                f"to {MAX_BOND_LENGTH:g} A"
+            )
 
 
 def find_units(
@@ -118,59 +153,49 @@ def find_units(
     formulas : list of str, optional
         Keep only units with these formulas as molecules; split all others into atoms.
     """
-    from ase import Atoms
     from ase.data import chemical_symbols, covalent_radii
-    from ase.neighborlist import neighbor_list
 
-    atoms = Atoms(numbers=numbers, scaled_positions=frac, cell=lattice, pbc=True)
-    symbols = [chemical_symbols[z] for z in numbers]
-    radii = covalent_radii[numbers] * scale
+    check_bond_options(scale, cutoffs)
+    numbers = np.asarray(numbers, dtype=int)
+    lattice = np.asarray(lattice, dtype=float)
+    frac = np.asarray(frac, dtype=float)
+    n = len(numbers)
     cutoffs = cutoffs or {}
-    if cutoffs:
-        radii = np.maximum(radii, max(cutoffs.values()) / 2 + 1e-6)
-    i_idx, j_idx, shifts, dist = neighbor_list("ijSd", atoms, radii.tolist())
-    keep = dist < (covalent_radii[numbers[i_idx]] + covalent_radii[numbers[j_idx]]) * scale
-    if cutoffs:
-        for k in range(len(i_idx)):
-            pair = tuple(sorted((symbols[i_idx[k]], symbols[j_idx[k]])))
+    # largest bond length between element kinds present, one matrix over the distinct elements
+    kinds, kind_of = np.unique(numbers, return_inverse=True)
+    r = covalent_radii[kinds]
+    limit = (r[:, None] + r[None, :]) * scale
+    for a, za in enumerate(kinds):
+        for b, zb in enumerate(kinds):
+            pair = tuple(sorted((chemical_symbols[za], chemical_symbols[zb])))
             if pair in cutoffs:
-                keep[k] = dist[k] < cutoffs[pair]
-    if ionic_metals:
-        metal = np.array([s in IONIC_METALS for s in symbols])
-        keep &= ~metal[i_idx] & ~metal[j_idx]
-    i_idx, j_idx, shifts = i_idx[keep], j_idx[keep], shifts[keep]
-    adj: list[list[tuple[int, np.ndarray]]] = [[] for _ in numbers]
-    for i, j, s in zip(i_idx, j_idx, shifts, strict=True):
-        adj[i].append((int(j), s))
-    offset = np.full((len(numbers), 3), np.iinfo(np.int64).min, dtype=np.int64)
-    units: list[Unit] = []
+                limit[a, b] = cutoffs[pair]
+            if ionic_metals and (chemical_symbols[za] in IONIC_METALS or chemical_symbols[zb] in IONIC_METALS):
+                limit[a, b] = 0.0
+    reach = float(limit.max()) if n else 0.0
+    if reach > 0:
+        pairs = periodic_pairs(lattice, frac, reach)
+        keep = pairs.distance < limit[kind_of[pairs.i], kind_of[pairs.j]]
+        i_idx, j_idx, shifts = pairs.i[keep], pairs.j[keep], pairs.shift[keep]
+    else:
+        i_idx = j_idx = np.zeros(0, dtype=np.int64)
+        shifts = np.zeros((0, 3), dtype=np.int64)
+    label, offset, periodic = _components(n, i_idx, j_idx, shifts)
     cart = frac @ lattice
-    for start in range(len(numbers)):
-        if offset[start, 0] != np.iinfo(np.int64).min:
+    inv = np.linalg.inv(lattice)
+    masses = _masses(numbers)
+    order = np.argsort(label, kind="stable")  # atoms of each component, in index order
+    bounds = np.flatnonzero(np.diff(label[order])) + 1
+    units: list[Unit] = []
+    for comp in np.split(order, bounds) if n else []:
+        if periodic[label[comp[0]]]:
+            units += [
+                _wrapped((int(a),), cart[[a]], numbers[[a]], masses[[a]], inv, lattice, "framework") for a in comp
+            ]
             continue
-        offset[start] = 0
-        comp, periodic = [start], False
-        queue = deque([start])
-        while queue:
-            i = queue.popleft()
-            for j, s in adj[i]:
-                want = offset[i] + s
-                if offset[j, 0] == np.iinfo(np.int64).min:
-                    offset[j] = want
-                    comp.append(j)
-                    queue.append(j)
-                elif np.any(offset[j] != want):
-                    periodic = True
-        comp.sort()
-        if periodic:
-            for a in comp:
-                units.append(_single(a, cart, lattice, numbers, "framework"))
-            continue
+        kind = "atom" if len(comp) == 1 else "molecule"
         pos = cart[comp] + offset[comp] @ lattice
-        if len(comp) == 1:
-            units.append(_single(comp[0], cart, lattice, numbers, "atom"))
-            continue
-        units.append(_wrapped(tuple(comp), pos, numbers[comp], lattice, "molecule"))
+        units.append(_wrapped(tuple(int(a) for a in comp), pos, numbers[comp], masses[comp], inv, lattice, kind))
     if formulas:
         wanted = {f.replace(" ", "") for f in formulas}
         found = {u.formula for u in units}
@@ -182,26 +207,67 @@ def find_units(
         split: list[Unit] = []
         for u in units:
             if u.kind == "molecule" and u.formula not in wanted:
-                split += [_single(a, cart, lattice, numbers, "atom") for a in u.atoms]
+                split += [_wrapped((a,), cart[[a]], numbers[[a]], masses[[a]], inv, lattice, "atom") for a in u.atoms]
             else:
                 split.append(u)
         units = split
     return tuple(units)
 
 
-def _single(a: int, cart: np.ndarray, lattice: np.ndarray, numbers: np.ndarray, kind: str) -> Unit:
-    return _wrapped((a,), cart[[a]], numbers[[a]], lattice, kind)
-
-
-def _wrapped(atoms: tuple[int, ...], pos: np.ndarray, numbers: np.ndarray, lattice: np.ndarray, kind: str) -> Unit:
+def _masses(numbers: np.ndarray) -> np.ndarray:
     from ase.data import atomic_masses
 
-    m = atomic_masses[numbers]
-    centre = m @ pos / m.sum()
-    f = centre @ np.linalg.inv(lattice)
-    shift = -np.floor(f + 1e-7) @ lattice
-    p = pos + shift
+    return atomic_masses[numbers]
+
+
+def _components(n: int, i: np.ndarray, j: np.ndarray, shifts: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Connected pieces of the bond graph: label per atom, lattice offset per atom, periodic flag per label.
+
+    Offsets are carried outwards from the first atom of each piece, one bond layer per step
+    (vectorised over all bonds); a piece whose bonds disagree with the offsets joins its own
+    periodic image.
+    """
+    from scipy.sparse import coo_matrix
+    from scipy.sparse.csgraph import connected_components
+
+    if n == 0:
+        return np.zeros(0, dtype=int), np.zeros((0, 3), dtype=np.int64), np.zeros(0, dtype=bool)
+    graph = coo_matrix((np.ones(len(i)), (i, j)), shape=(n, n)).tocsr()
+    count, label = connected_components(graph, directed=False)
+    # relabel so that pieces are numbered by their first atom
+    _, first = np.unique(label, return_index=True)
+    rank = np.empty(count, dtype=int)
+    rank[np.argsort(first)] = np.arange(count)
+    label = rank[label]
+    offset = np.zeros((n, 3), dtype=np.int64)
+    known = np.zeros(n, dtype=bool)
+    known[np.sort(first)] = True
+    while True:
+        step = known[i] & ~known[j]
+        if not step.any():
+            break
+        targets, pick = np.unique(j[step], return_index=True)
+        offset[targets] = offset[i[step][pick]] + shifts[step][pick]
+        known[targets] = True
+    periodic = np.zeros(count, dtype=bool)
+    clash = np.any(offset[j] != offset[i] + shifts, axis=1)
+    periodic[label[i[clash]]] = True
+    return label, offset, periodic
+
+
+def _wrapped(
+    atoms: tuple[int, ...],
+    pos: np.ndarray,
+    numbers: np.ndarray,
+    masses: np.ndarray,
+    inv: np.ndarray,
+    lattice: np.ndarray,
+    kind: str,
+) -> Unit:
+    centre = masses @ pos / masses.sum()
+    f = centre @ inv
+    p = pos - np.floor(f + 1e-7) @ lattice
     p.setflags(write=False)
-    n = np.array(numbers)
-    n.setflags(write=False)
-    return Unit(atoms, p, n, kind)
+    z = np.array(numbers)
+    z.setflags(write=False)
+    return Unit(atoms, p, z, kind)
