@@ -65,7 +65,7 @@ def test_flat_cell_is_refused(params, tmp_path: Path, run_cli: Runner) -> None:
     path = tmp_path / "flat.cif"
     path.write_text(_cscl_cif(*params))
     message = _one_error_line(*run_cli(["predict", path]))
-    assert "flat.cif" in message and "flat or degenerate" in message
+    assert "flat.cif" in message and "flat" in message.split("flat.cif", 1)[1]
 
 
 def test_sheared_but_valid_cell_is_fine(run_cli: Runner, tmp_path: Path) -> None:
