@@ -157,3 +157,10 @@ def test_atom_limit_option(run_cli: Runner) -> None:
     assert "--max-atoms 30" in message  # the conventional calcite cell holds 30 atoms
     code, _, err = run_cli(["predict", CALCITE, "--max-atoms", "30"])
     assert code == 0, err
+
+
+# ------------------------------------------------------------------ subgroup index
+@pytest.mark.parametrize("index", ["1000", "49", "1", "-3"])
+def test_lower_index_out_of_range(index: str, run_cli: Runner) -> None:
+    message = _one_error_line(*run_cli(["lower", ROOT / "structures" / "co2_Pa-3.cif", "--max-index", index]))
+    assert "index" in message

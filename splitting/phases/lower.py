@@ -37,6 +37,8 @@ __all__ = ["DEFAULT_MAX_INDEX", "Candidate", "Lowering", "lower", "parse_observe
 
 #: default largest index of a candidate subgroup (point-group index x cell multiple)
 DEFAULT_MAX_INDEX = 8
+#: largest index accepted: |Oh| = 48 reaches every t-subgroup of a cubic parent; beyond it the search runs for minutes
+MAX_INDEX_LIMIT = 48
 #: displacement (angstrom) used to realise a candidate as a structure
 DISPLACEMENT = 0.05
 
@@ -381,8 +383,11 @@ def lower(
         The misfit of a candidate adds 1 for every observed line it cannot produce and
         ``MISSING_COST`` for every predicted component not observed.
     """
-    if max_index < 2:
-        raise InputError("the largest index must be at least 2")
+    if not 2 <= max_index <= MAX_INDEX_LIMIT:
+        raise InputError(
+            f"the largest index {max_index} is out of range: it must be at least 2 and at most {MAX_INDEX_LIMIT} "
+            "(the number of candidate subgroups grows steeply with the index)"
+        )
     opts = options or Options()
     if atoms is None:
         if path is None:
