@@ -8,6 +8,7 @@ import stat
 import tempfile
 from pathlib import Path
 
+from .defaults import DEFAULT_INPUT_MB
 from .errors import InputError, OutputError
 
 __all__ = [
@@ -22,9 +23,6 @@ __all__ = [
     "set_input_limit",
 ]
 
-#: default cap on the bytes read from one input file (after decompression), in MiB;
-#: ``--max-input-mb`` or the environment variable ``SPLITTING_MAX_INPUT_MB`` raise it
-DEFAULT_INPUT_MB = 256
 _LIMIT: list[int] = []
 _COMPRESSED = {".gz": "gzip", ".bz2": "bz2", ".xz": "lzma"}
 

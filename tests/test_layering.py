@@ -26,3 +26,11 @@ def test_computation_does_not_import_plotting(module):
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout.strip()
     assert out == "", f"{module} loads {out}"
+
+
+def test_defaults_match_the_modules_that_use_them() -> None:
+    """splitting.defaults is the one place a default lives; the potential names match the sets."""
+    from splitting import defaults
+    from splitting.dynamics.potential import PARAMETER_SETS
+
+    assert tuple(PARAMETER_SETS) == defaults.POTENTIAL_NAMES

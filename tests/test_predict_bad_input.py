@@ -1,6 +1,6 @@
 """``splitting predict`` on bad input: one clear line on standard error, nothing else.
 
-The promise (splitting/cli.py, project rules): exit status not 0, exactly one line on
+The promise (splitting/cli/, project rules): exit status not 0, exactly one line on
 standard error starting with ``error:``, no traceback, nothing on standard output, and for
 problems with a file the message names the file.  The same holds with ``--json``.
 """

@@ -168,7 +168,8 @@ def test_option_bond_metals_and_scale(run_cli: Runner) -> None:
 
 def test_options_reach_the_pipeline() -> None:
     """The CLI options map onto Options one to one (one name per idea)."""
-    from splitting.cli import _options, build_parser
+    from splitting.cli import build_parser
+    from splitting.cli._shared import options as _options
 
     args = build_parser().parse_args(
         [

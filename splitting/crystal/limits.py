@@ -8,12 +8,10 @@ option that raises it.
 
 from __future__ import annotations
 
+from ..defaults import DEFAULT_MAX_ATOMS
 from ..errors import InputError
 
 __all__ = ["DEFAULT_MAX_ATOMS", "check_atom_count"]
-
-#: largest number of atoms in the cell as given (``--max-atoms`` raises it)
-DEFAULT_MAX_ATOMS = 20_000
 
 
 def check_atom_count(count: int, limit: int = DEFAULT_MAX_ATOMS) -> None:

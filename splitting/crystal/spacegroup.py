@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from ..defaults import DEFAULT_CELL_TOLERANCE
 from ..errors import InputError, SymmetryError
 
 __all__ = [
@@ -22,9 +23,6 @@ __all__ = [
     "crystal_system",
     "spglib_dataset",
 ]
-
-#: default spglib distance tolerance (angstrom): loose enough for CIF coordinates given to 4 decimals
-DEFAULT_CELL_TOLERANCE = 0.01
 
 
 @contextlib.contextmanager

@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from ..defaults import DEFAULT_BOND_SCALE
 from ..errors import InputError
 from .neighbours import periodic_pairs
 
@@ -28,7 +29,6 @@ __all__ = [
     "parse_cutoffs",
 ]
 
-DEFAULT_BOND_SCALE = 1.2
 #: largest bond scale accepted: beyond it "bonds" reach past the second neighbours of most solids
 MAX_BOND_SCALE = 2.5
 #: largest explicit bond length accepted (angstrom); the longest covalent bonds are near 3 A

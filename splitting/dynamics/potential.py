@@ -16,14 +16,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..defaults import DEFAULT_CUTOFF
 from ..errors import InputError
 from .constants import KCAL_MOL, KJ_MOL
 
 __all__ = ["DEFAULT_CUTOFF", "PARAMETER_SETS", "ParameterSet", "exp6_force_constants", "neighbour_pairs"]
-
-#: cut-off of the exp-6 lattice sums (angstrom); the r^-6 tail beyond it changes lattice modes
-#: by well under 1 % (common practice)
-DEFAULT_CUTOFF = 12.0
 
 
 @dataclass(frozen=True)

@@ -15,14 +15,12 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.spatial import cKDTree
 
+from ..defaults import DEFAULT_TOLERANCE
 from ..errors import InputError, SymmetryError
 from ..groups.identify import OrientedGroup, identify, molecular_preference, oriented
 
 __all__ = ["DEFAULT_TOLERANCE", "MIN_SEPARATION", "MoleculeSymmetry", "find_symmetry"]
 
-#: default largest displacement (angstrom) of an atom from its symmetric position; loose
-#: enough for units taken from X-ray structures, whose C-H and N-H lengths scatter.
-DEFAULT_TOLERANCE = 0.25
 #: two atoms closer than this (angstrom) are the same place: bad input
 MIN_SEPARATION = 0.5
 

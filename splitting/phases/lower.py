@@ -28,6 +28,7 @@ from ..crystal.predict import Options, predict_atoms
 from ..crystal.read import load_structure
 from ..crystal.results import CrystalPrediction
 from ..crystal.spacegroup import CellSymmetry, analyse_cell
+from ..defaults import DEFAULT_MAX_INDEX
 from ..errors import InputError
 from ..groups.pointgroup import point_group
 from ..groups.subgroups import generators_of, subgroup_classes
@@ -35,8 +36,6 @@ from .compare import BandState, Phase
 
 __all__ = ["DEFAULT_MAX_INDEX", "Candidate", "Lowering", "lower", "parse_observed", "sublattices"]
 
-#: default largest index of a candidate subgroup (point-group index x cell multiple)
-DEFAULT_MAX_INDEX = 8
 #: largest index accepted: |Oh| = 48 reaches every t-subgroup of a cubic parent; beyond it the search runs for minutes
 MAX_INDEX_LIMIT = 48
 #: displacement (angstrom) used to realise a candidate as a structure

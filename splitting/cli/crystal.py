@@ -1,0 +1,59 @@
+"""``predict``: the k = 0 prediction for one crystal."""
+
+from __future__ import annotations
+
+import argparse
+
+from ._shared import crystal_options, disorder_options, emit, json_option, options, states
+
+
+def run_predict(args: argparse.Namespace) -> int:
+    from ..crystal.predict import predict
+    from ..report.text import prediction_text
+
+    chosen = states(args)
+    if args.disordered or chosen:
+        from ..phases.disorder import predict_disordered
+        from ..report.text import disordered_text
+
+        dis = predict_disordered(args.file, options(args), states=chosen)
+        return emit(args, dis.to_dict(), lambda: disordered_text(dis))
+    result = predict(args.file, options(args))
+    payload = result.to_dict()
+    seen = [(g, result.seen_in(g)) for g in args.geometry or []]
+    if seen:
+        payload["geometries"] = [
+            {"geometry": g, "species": [{"label": lab, "optical": n} for lab, n in sp]} for g, sp in seen
+        ]
+
+    def text() -> str:
+        out = prediction_text(result)
+        ax = result.factor_axes
+        for g, sp in seen:
+            shown = ", ".join(f"{lab} ({n})" for lab, n in sp) or "nothing (no allowed Raman component)"
+            out += f"\n  Raman in {g} (x = {ax['x']}, y = {ax['y']}, z = {ax['z']}): {shown}"
+        return out
+
+    return emit(args, payload, text)
+
+
+def add_parsers(sub: argparse._SubParsersAction) -> None:
+    pr = sub.add_parser("predict", help="k = 0 prediction for a crystal: sites, correlation, lattice modes, activity")
+    pr.add_argument("file", help="crystal structure (CIF, POSCAR, extended XYZ, or another format ase reads)")
+    crystal_options(pr)
+    pr.add_argument(
+        "--geometry",
+        action="append",
+        metavar="K(EE)K",
+        help="Raman scattering geometry in Porto notation in the factor group's axes, e.g. 'z(xx)-z'; "
+        "lists the species it sees; repeatable",
+    )
+    pr.add_argument(
+        "--disordered",
+        action="store_true",
+        help="the file holds partly occupied orientations: predict one orientation at its site, "
+        "the averaged site, and what the disorder removes",
+    )
+    disorder_options(pr)
+    json_option(pr)
+    pr.set_defaults(run=run_predict)

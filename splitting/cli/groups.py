@@ -1,0 +1,78 @@
+"""``group`` (character tables, subgroup embeddings) and ``molecule`` (a free unit)."""
+
+from __future__ import annotations
+
+import argparse
+
+from ..defaults import DEFAULT_TOLERANCE
+from ..errors import InputError, SplittingError
+from ._shared import emit, json_option
+
+
+def run_group(args: argparse.Namespace) -> int:
+    from ..activity import activity_table
+    from ..groups.catalogue import canonical_name
+    from ..groups.linear import linear_group
+    from ..groups.pointgroup import point_group
+    from ..report.text import embeddings_text, group_text
+
+    try:
+        name = canonical_name(args.symbol)
+    except SplittingError as exc:
+        raise InputError(str(exc)) from None
+    if args.to:
+        from ..groups.subgroups import embeddings
+
+        if "∞" in name:
+            raise InputError("subgroup embeddings of linear groups are not enumerated; give a finite group")
+        embs = embeddings(name, args.to)
+        return emit(
+            args, {"group": name, "embeddings": [e.to_dict() for e in embs]}, lambda: embeddings_text(name, args.to)
+        )
+    grp = linear_group(name) if "∞" in name else point_group(name)
+    payload = grp.to_dict()
+    payload["selection_rules"] = [a.to_dict() for a in activity_table(name)]
+    return emit(args, payload, lambda: group_text(name))
+
+
+def run_molecule(args: argparse.Namespace) -> int:
+    from ..molecule.analysis import analyse_unit
+    from ..readers import read_atoms
+    from ..report.text import molecule_text
+
+    atoms = read_atoms(args.file)
+    try:
+        result = analyse_unit(
+            atoms.numbers,
+            atoms.positions,
+            tolerance=args.tolerance,
+            point_group=args.point_group,
+            symbols=atoms.get_chemical_symbols(),
+        )
+    except InputError as exc:
+        raise InputError(f"{args.file}: {exc}") from None
+    return emit(args, result.to_dict(), lambda: molecule_text(result))
+
+
+def add_parsers(sub: argparse._SubParsersAction) -> None:
+    g = sub.add_parser("group", help="character table and selection rules of a point group; --to for subgroups")
+    g.add_argument("symbol", help="Schoenflies (D4h, C3i, D∞h or Dinfh) or Hermann-Mauguin (4/mmm) symbol")
+    g.add_argument(
+        "--to",
+        metavar="SUBGROUP",
+        help="every inequivalent way SUBGROUP sits in the group, with the correlation of every species",
+    )
+    json_option(g)
+    g.set_defaults(run=run_group)
+
+    m = sub.add_parser("molecule", help="point group and vibrational species of a free molecule or ion")
+    m.add_argument("file", help="structure file (XYZ, or any format ase reads)")
+    m.add_argument(
+        "--tolerance",
+        type=float,
+        default=DEFAULT_TOLERANCE,
+        help=f"largest displacement of an atom from its symmetric position, angstrom (default {DEFAULT_TOLERANCE})",
+    )
+    m.add_argument("--point-group", metavar="NAME", help="use this subgroup of the detected group")
+    json_option(m)
+    m.set_defaults(run=run_molecule)

@@ -1,0 +1,101 @@
+"""``draw`` (figures), ``report`` (one HTML page) and ``demo`` (the bundled scenario)."""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+
+from ..errors import InputError, SplittingError
+from ._shared import crystal_options, json_option, phase_predictions
+
+
+def run_draw(args: argparse.Namespace) -> int:
+    from ..plot import correlation_diagram, line_pattern, phase_correlation_diagram, write_figure
+
+    suffix = os.path.splitext(args.output)[1].lower()
+    if suffix not in (".svg", ".pdf", ".png"):
+        raise InputError(f"{args.output}: the figure type comes from the suffix: .svg, .pdf or .png")
+    phases = phase_predictions(args)
+    unit = args.unit
+    if unit is None:
+        molecular = [u.formula for u in phases[0][1].units if u.correlation]
+        if not molecular:
+            raise InputError(f"{args.files[0]}: no molecular unit to draw")
+        unit = molecular[0]
+    if args.kind == "lines":
+        from ..spectra.catalogue import find_table
+
+        try:
+            modes = find_table(unit)
+        except SplittingError:
+            modes = None
+        art = line_pattern(phases, unit, band=args.band, modes=modes)
+    elif len(phases) > 1:
+        art = phase_correlation_diagram(phases, unit, band=args.band)
+    else:
+        art = correlation_diagram(phases[0][1], unit, band=args.band)
+    write_figure(art.figure, args.output)
+    print(f"figure written to {args.output}")
+    return 0
+
+
+def run_report(args: argparse.Namespace) -> int:
+    from ..report.html import write_report
+
+    if not args.output.lower().endswith((".html", ".htm")):
+        raise InputError(f"{args.output}: the report is an HTML file; give a name ending in .html")
+    phases = phase_predictions(args)
+    write_report(args.output, phases, title=args.title, notes=args.note or ())
+    print(f"report written to {args.output}")
+    return 0
+
+
+def run_demo(args: argparse.Namespace) -> int:
+    from ..demo import SCENARIO, run_demo
+
+    result = run_demo(args.out)
+    if args.json:
+        print(json.dumps(result.to_dict(), indent=2))
+        return 0
+    print(SCENARIO)
+    print(f"\nwrote {len(result.files)} files to {result.folder}:")
+    for f in result.files:
+        print(f"  {f.name}")
+    print(f"\nopen {result.folder / 'report.html'} in a browser to read the report")
+    return 0
+
+
+def add_parsers(sub: argparse._SubParsersAction) -> None:
+    dr = sub.add_parser(
+        "draw",
+        help="correlation diagram (one file), phases side by side (several files) or "
+        "line pattern (--kind lines); SVG, PDF or PNG by suffix",
+    )
+    dr.add_argument("files", nargs="+", help="structure file(s), upper phase first")
+    dr.add_argument("-o", "--output", required=True, metavar="FIGURE", help="output .svg, .pdf or .png")
+    dr.add_argument("--unit", metavar="FORMULA", help="which unit (default: the first molecular unit)")
+    dr.add_argument("--band", metavar="SPECIES", help="one free-unit species only, e.g. T1u")
+    dr.add_argument(
+        "--kind",
+        choices=["correlation", "lines"],
+        default="correlation",
+        help="correlation diagram (default) or the predicted line pattern of each phase",
+    )
+    dr.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, one per file")
+    crystal_options(dr)
+    dr.set_defaults(run=run_draw)
+
+    rp = sub.add_parser("report", help="one self-contained HTML page with the whole prediction, tables and figures")
+    rp.add_argument("files", nargs="+", help="structure file(s), upper phase first")
+    rp.add_argument("-o", "--output", required=True, metavar="HTML", help="output .html file")
+    rp.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, one per file")
+    rp.add_argument("--title", help="title of the report")
+    rp.add_argument("--note", action="append", metavar="TEXT", help="a note printed at the top; repeatable")
+    crystal_options(rp)
+    rp.set_defaults(run=run_report)
+
+    de = sub.add_parser("demo", help="run the bundled scenario (a made-up lab's low-temperature run) end to end")
+    de.add_argument("--out", default="demo-output", help="folder for the report, figures and tables")
+    json_option(de, "print the list of files as JSON")
+    de.set_defaults(run=run_demo)

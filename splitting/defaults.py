@@ -1,0 +1,35 @@
+"""Default values of the user-facing options, importable without numpy, scipy or spglib.
+
+The command line builds its parser from these at start-up; the modules that use a value
+import it from here, so there is one number for each default.
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "DEFAULT_BOND_SCALE",
+    "DEFAULT_CELL_TOLERANCE",
+    "DEFAULT_CUTOFF",
+    "DEFAULT_INPUT_MB",
+    "DEFAULT_MAX_ATOMS",
+    "DEFAULT_MAX_INDEX",
+    "DEFAULT_TOLERANCE",
+    "POTENTIAL_NAMES",
+]
+
+#: space-group distance tolerance of the symmetry search, angstrom
+DEFAULT_CELL_TOLERANCE = 0.01
+#: free-unit symmetry tolerance: largest displacement from a symmetric position, angstrom
+DEFAULT_TOLERANCE = 0.25
+#: two atoms are bonded when closer than this times the sum of their covalent radii
+DEFAULT_BOND_SCALE = 1.2
+#: cells of more atoms are refused before the symmetry search (``--max-atoms``)
+DEFAULT_MAX_ATOMS = 20_000
+#: largest subgroup index searched by ``lower``
+DEFAULT_MAX_INDEX = 8
+#: largest input file read, MiB (``--max-input-mb``)
+DEFAULT_INPUT_MB = 256
+#: lattice-sum cut-off of the model estimate, angstrom
+DEFAULT_CUTOFF = 12.0
+#: names of the exp-6 parameter sets of the model estimate (splitting.dynamics.potential)
+POTENTIAL_NAMES = ("williams", "gavezzotti")
