@@ -13,6 +13,7 @@ __all__ = [
     "DEFAULT_INPUT_MB",
     "DEFAULT_MAX_ATOMS",
     "DEFAULT_MAX_INDEX",
+    "DEFAULT_SPECTRUM_WIDTH",
     "DEFAULT_TOLERANCE",
     "POTENTIAL_NAMES",
 ]
@@ -31,5 +32,8 @@ DEFAULT_MAX_INDEX = 8
 DEFAULT_INPUT_MB = 256
 #: lattice-sum cut-off of the model estimate, angstrom
 DEFAULT_CUTOFF = 12.0
+#: full width at half maximum of every line of the simulated spectra, cm-1 (a typical width of
+#: lines of molecular crystals at low temperature; common practice)
+DEFAULT_SPECTRUM_WIDTH = 3.0
 #: names of the exp-6 parameter sets of the model estimate (splitting.dynamics.potential)
 POTENTIAL_NAMES = ("williams", "gavezzotti")

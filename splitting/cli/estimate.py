@@ -6,7 +6,7 @@ import argparse
 import os
 import sys
 
-from ..defaults import DEFAULT_CUTOFF, POTENTIAL_NAMES
+from ..defaults import DEFAULT_CUTOFF, DEFAULT_SPECTRUM_WIDTH, POTENTIAL_NAMES
 from ..errors import InputError
 from ._shared import crystal_options, emit, json_option, options
 
@@ -24,6 +24,16 @@ def run_estimate(args: argparse.Namespace) -> int:
             raise InputError(f"--charge {item!r} is not of the form FORMULA=Q (e.g. NH4=1)") from None
         if not sep:
             raise InputError(f"--charge {item!r} is not of the form FORMULA=Q (e.g. NH4=1)")
+    spectra_kind = None
+    if args.spectra:
+        spectra_kind = os.path.splitext(args.spectra)[1].lower()
+        if spectra_kind not in (".svg", ".pdf", ".png", ".json"):
+            raise InputError(f"--spectra {args.spectra}: give a figure (.svg, .pdf, .png) or a data file (.json)")
+    if args.width is not None and not args.spectra:
+        raise InputError("--width is the line width of the simulated spectra; give --spectra FILE with it")
+    width = DEFAULT_SPECTRUM_WIDTH if args.width is None else args.width
+    if not (width > 0 and width < 1000):
+        raise InputError(f"--width {width:g}: the line width must be above 0 and below 1000 cm-1")
     if args.cache and not os.path.isdir(args.cache):
         raise InputError(f"--cache {args.cache}: no such folder")
     model = EstimateOptions(
@@ -37,7 +47,28 @@ def run_estimate(args: argparse.Namespace) -> int:
     )
     progress = (lambda msg: print(f"... {msg}", file=sys.stderr, flush=True)) if args.progress else None
     result = estimate(args.file, options(args), model, progress=progress)
+    if spectra_kind:
+        _write_spectra(result, args.spectra, spectra_kind, width)
     return emit(args, result.to_dict(), lambda: estimate_text(result, internal=not args.lattice_only))
+
+
+def _write_spectra(result, target: str, kind: str, width: float) -> None:
+    import json
+
+    from .._io import atomic_write_text
+    from ..dynamics.spectra import simulate_all
+
+    spectra = simulate_all(result, width_cm1=width)
+    if kind == ".json":
+        data = {"source": result.source, "spectra": [s.to_dict() for s in spectra]}
+        atomic_write_text(target, json.dumps(data, indent=1, ensure_ascii=False) + "\n")
+    else:
+        from ..plot.lines import write_figure
+        from ..plot.simulated import spectra_figure
+
+        art = spectra_figure(spectra, title=f"{os.path.basename(result.source)}: simulated spectra")
+        write_figure(art.figure, target)
+    print(f"simulated spectra written to {target}", file=sys.stderr)
 
 
 def add_parsers(sub: argparse._SubParsersAction) -> None:
@@ -66,6 +97,18 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     es.add_argument("--cache", metavar="DIR", help="folder for cached free-unit Hessians (reused between runs)")
     es.add_argument(
         "--allow-imaginary", action="store_true", help="show imaginary lines instead of refusing the structure"
+    )
+    es.add_argument(
+        "--spectra",
+        metavar="FILE",
+        help="also write simulated IR, Raman and neutron spectra: a figure (.svg, .pdf, .png) or the data (.json)",
+    )
+    es.add_argument(
+        "--width",
+        type=float,
+        metavar="CM1",
+        help=f"full width at half maximum of the Lorentzian of every simulated line, cm-1 "
+        f"(default {DEFAULT_SPECTRUM_WIDTH:g})",
     )
     es.add_argument("--lattice-only", action="store_true", help="text output: lattice modes only")
     es.add_argument("--progress", action="store_true", help="report each step on standard error")

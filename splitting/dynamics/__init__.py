@@ -3,7 +3,8 @@
 Free-unit Hessians from GFN2-xTB (``freeunit``), an exp-6 atom-atom potential with optional
 point charges (``potential``, ``ewald``), the k = 0 dynamical matrix of the primitive cell
 (``dynmat``), projection onto the factor-group species of the engine (``species``), labelled
-results (``results``) and simulated spectra (``spectra``).
+results (``results``) and simulated IR, Raman and neutron spectra (``spectra``; drawn by
+``splitting.plot.simulated``).
 """
 
 from .estimate import EstimateOptions, estimate, estimate_atoms
