@@ -174,3 +174,54 @@ def test_figure_artists(calcite, tmp_path):
     assert out.read_bytes()[:4] == b"\x89PNG"
     with pytest.raises(InputError, match="figure format"):
         save_explanation_figure(e, tmp_path / "fig.xyz")
+
+
+def test_lo_to_partner_of_a_polar_band(calcite):
+    # Every IR-active species is polar and splits into TO and LO, the LO above (M. Born and
+    # K. Huang, Dynamical Theory of Crystal Lattices, Oxford 1954); calcite is centrosymmetric
+    # and nu3 (E') gives one IR-active Eu component. Invented IR list: a strong TO line and a
+    # weaker line 33 cm-1 above it, which is then an LO partner rather than a surplus line.
+    from splitting.spectra.assign import LO_TO_WINDOW_CM1
+
+    e = explain(calcite, _peaks([(1407.0, 10.0), (1440.0, 3.0)], technique="ir"))
+    assert _line(e, 1407.0).candidates[0].kind == "fundamental"
+    best = _line(e, 1440.0).candidates[0]
+    assert best.kind == "lo_to" and best.band == "nu3" and best.species == ("Eu",)
+    assert best.score == pytest.approx(round(PRIORS["lo_to"] * (1 - 0.5 * 33.0 / LO_TO_WINDOW_CM1), 4))
+    assert "LO" in best.reason and "1407.0" in best.reason
+    # a line below the strong one is never its LO partner; neither is one beyond the window
+    e = explain(calcite, _peaks([(1407.0, 10.0), (1380.0, 3.0), (1407.0 + LO_TO_WINDOW_CM1 + 5, 3.0)], "ir"))
+    assert all(c.kind != "lo_to" for x in (1380.0, 1562.0) for c in _line(e, x).candidates)
+    # Raman of a centrosymmetric crystal: Raman-active species are not polar, no LO/TO offer
+    e = explain(calcite, _peaks([(1436.0, 10.0), (1460.0, 3.0)], technique="raman"))
+    assert all(c.kind != "lo_to" for line in e.lines for c in line.candidates)
+
+
+def test_lo_to_in_raman_of_a_non_centrosymmetric_crystal():
+    # zincblende-type cell (F-43m, Td): the T2 species is IR and Raman active, so it is polar
+    # and its TO and LO show in Raman as well (Born and Huang 1954; Loudon, Adv. Phys. 13, 423
+    # (1964)); in a centrosymmetric crystal (rock salt, Oh) the IR-active T1u is polar but its
+    # pair shows in IR reflectance only.
+    import numpy as np
+    from ase import Atoms
+
+    from splitting.crystal.predict import predict_atoms as predict
+
+    a = 5.43
+    zb = Atoms(
+        "ZnS",
+        scaled_positions=[[0, 0, 0], [0.25, 0.25, 0.25]],
+        cell=a / 2 * np.array([[0, 1, 1], [1, 0, 1], [1, 1, 0]]),
+        pbc=True,
+    )
+    t2 = predict(zb).species_by_label("T2")
+    assert t2.polar and t2.lo_to_seen_in == ("IR reflectance", "Raman")
+    rs = Atoms(
+        "NaCl",
+        scaled_positions=[[0, 0, 0], [0.5, 0.5, 0.5]],
+        cell=5.64 / 2 * np.array([[0, 1, 1], [1, 0, 1], [1, 1, 0]]),
+        pbc=True,
+    )
+    t1u = predict(rs).species_by_label("T1u")
+    assert t1u.polar and t1u.lo_to_seen_in == ("IR reflectance",)
+    assert predict(rs).to_dict()["species"][0]["lo_to_seen_in"] in ([], ["IR reflectance"])

@@ -88,9 +88,12 @@ def test_calcite_gamma_3n_and_activity(name: str) -> None:
     assert raman == {"A1g": 1, "Eg": 4}
     assert ir == {"A2u": 3, "Eu": 5}
     assert silent == {"A1u": 2, "A2g": 3}
-    # mutual exclusion in a centrosymmetric factor group (method notes, step 5)
-    assert not any(s.polar for s in p.species)
-    assert p.totals() == {"ir": 8, "raman": 5, "silent": 5, "polar": 0, "optical": 18}
+    # mutual exclusion in a centrosymmetric factor group (method notes, step 5); every
+    # IR-active species is still polar and LO/TO split, seen in IR reflectance only
+    # (M. Born and K. Huang, Dynamical Theory of Crystal Lattices, Oxford 1954, ch. II)
+    assert {s.label for s in p.species if s.polar} == {"A2u", "Eu"}
+    assert all(s.lo_to_seen_in == ("IR reflectance",) for s in p.species if s.polar)
+    assert p.totals() == {"ir": 8, "raman": 5, "silent": 5, "polar": 8, "optical": 18}
 
 
 def test_calcite_units_sites_and_correlation() -> None:
@@ -162,13 +165,14 @@ def test_naphthalene_type_correlation(name: str) -> None:
     assert _rep(unit.internal) == {"Ag": 24, "Bg": 24, "Au": 24, "Bu": 24}
     # Gamma_3N: 108 = 3 x 36 -> 27 of each of the four species (hand derivation)
     assert _rep(p.gamma_3n) == {"Ag": 27, "Bg": 27, "Au": 27, "Bu": 27}
-    # C2h activity (WDC character table): g Raman, u IR; no polar modes
+    # C2h activity (WDC character table): g Raman, u IR; the u species are polar
+    # (LO/TO split, Born and Huang 1954), the g species not
     act = {s.label: (bool(s.ir), bool(s.raman), s.polar) for s in p.species}
     assert act == {
         "Ag": (False, True, False),
         "Bg": (False, True, False),
-        "Au": (True, False, False),
-        "Bu": (True, False, False),
+        "Au": (True, False, True),
+        "Bu": (True, False, True),
     }
 
 

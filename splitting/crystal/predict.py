@@ -319,7 +319,7 @@ def _predict(
                 ir=a.ir,
                 raman=a.raman,
                 raman_tensor=a.raman_tensor,
-                polar=bool(a.ir and a.raman and not fg.group.centrosymmetric),
+                polar=bool(a.ir),
             )
         )
     from ase.data import chemical_symbols

@@ -163,6 +163,12 @@ class FactorSpecies:
 
     Counts are numbers of distinct frequencies (multiplicities), not of modes with degeneracy.
     ``translational`` excludes the acoustic modes, which are counted in ``acoustic``.
+
+    ``polar`` is true for every IR-active species, in any crystal (centrosymmetric ones
+    included): the oscillating dipole carries a macroscopic field, so near k = 0 each such
+    frequency splits into a transverse (TO) and a longitudinal (LO) component (M. Born and
+    K. Huang, *Dynamical Theory of Crystal Lattices*, Oxford 1954, ch. II).
+    :attr:`lo_to_seen_in` says where the two components show.
     """
 
     label: str
@@ -180,6 +186,18 @@ class FactorSpecies:
     def optical(self) -> int:
         """Optical modes: internal + translational + librational."""
         return self.internal + self.translational + self.librational
+
+    @property
+    def lo_to_seen_in(self) -> tuple[str, ...]:
+        """Where the TO and LO components of a polar species can be seen.
+
+        IR reflectance (and oblique-incidence transmission of thin films) always; Raman
+        only when the species is Raman active too, which needs a non-centrosymmetric
+        crystal (mutual exclusion). Empty for a non-polar species.
+        """
+        if not self.polar:
+            return ()
+        return ("IR reflectance", "Raman") if self.raman else ("IR reflectance",)
 
     @property
     def activity(self) -> str:
@@ -203,6 +221,7 @@ class FactorSpecies:
             "raman_components": list(self.raman),
             "raman_tensor": [list(r) for r in self.raman_tensor],
             "polar": self.polar,
+            "lo_to_seen_in": list(self.lo_to_seen_in),
         }
 
 

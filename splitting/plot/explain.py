@@ -55,6 +55,7 @@ def _short(line: Any) -> str:
         "combination": "",
         "isotopologue": " (isotope)",
         "second_phase": " (2nd phase)",
+        "lo_to": " (LO)",
     }
     return f"{best.band}{tag.get(best.kind, '')}"
 

@@ -231,7 +231,7 @@ def _species(pred: CrystalPrediction) -> str:
         f"acoustic: {_rep_html(pred.acoustic)}.",
         f"<strong>{t['optical']}</strong> optical frequencies: <strong>{t['ir']}</strong> IR-active, "
         f"<strong>{t['raman']}</strong> Raman-active, <strong>{t['silent']}</strong> silent"
-        + (f", {t['polar']} polar (split into LO and TO)" if t["polar"] else "")
+        + (f", {t['polar']} polar (split into LO and TO, seen in IR reflectance)" if t["polar"] else "")
         + ".",
     ]
     if pred.centrosymmetric:

@@ -230,6 +230,12 @@ def prediction_text(pred) -> str:
         f"  {t['optical']} optical frequencies: {t['ir']} IR-active, {t['raman']} Raman-active, "
         f"{t['silent']} silent" + (f", {t['polar']} polar (LO/TO split)" if t["polar"] else "")
     )
+    if t["polar"]:
+        both = [s.label for s in pred.species if s.polar and s.raman and s.optical]
+        lines.append(
+            "  polar = IR active: each splits into TO and LO (Born and Huang 1954), seen in IR reflectance"
+            + (f"; {', '.join(both)} are Raman active too, so TO and LO show in Raman as well" if both else "")
+        )
     if pred.centrosymmetric:
         lines.append("  centrosymmetric factor group: no frequency is both IR and Raman active (mutual exclusion)")
     lines.append("  inelastic neutron scattering: every mode is allowed")

@@ -37,6 +37,14 @@ solid-state shift of an internal mode from its free value that is considered):
     least :data:`MIN_ISOTOPOMER_SHARE` of the units. The shift is the mode table's
     ``isotope_shift`` for that isotope if given, otherwise the symmetry-only estimate of
     :mod:`splitting.spectra.isotopologues` times ``y``.
+``lo_to``
+    a weaker line at most :data:`LO_TO_WINDOW_CM1` (150 cm-1) above a line that is a
+    component of a band with polar factor-group species: every IR-active species, in any
+    crystal, splits into a transverse (TO) and a longitudinal (LO) component with the LO
+    one higher (M. Born and K. Huang, *Dynamical Theory of Crystal Lattices*, Oxford
+    1954). The pair shows in IR reflectance; in Raman only for species that are Raman
+    active too (non-centrosymmetric crystals), so a Raman spectrum of a centrosymmetric
+    crystal never gets this candidate. ``d`` is the distance from the stronger line.
 ``second_phase``
     an alternative prediction (``alternatives``) has more active components in this band
     than the given one, so the line could come from that phase.
@@ -44,7 +52,7 @@ solid-state shift of an internal mode from its free value that is considered):
 Scoring (transparent and deterministic)
 ---------------------------------------
 ``score = prior(kind) * (1 - 0.5 * d / tol)`` with the priors in :data:`PRIORS`
-(fundamental 1.0, lattice 0.7, site-activated 0.6, second phase 0.5, isotopologue 0.45,
+(fundamental 1.0, lattice 0.7, site-activated 0.6, LO/TO 0.5, second phase 0.5, isotopologue 0.45,
 disorder-activated 0.35, overtone and combination 0.3), so a candidate inside its window
 keeps between half and all of its prior. For isotopologues ``d`` and ``tol`` are the
 deviation from ``y + shift`` and the satellite window; lattice candidates take the
@@ -80,6 +88,7 @@ from .scoring import (
     _KIND_ORDER,
     DEFAULT_TOLERANCE_CM1,
     LATTICE_MAX_CM1,
+    LO_TO_WINDOW_CM1,
     MAX_CANDIDATES,
     MIN_ISOTOPE_SHIFT_CM1,
     MIN_ISOTOPOMER_SHARE,
@@ -93,6 +102,7 @@ from .scoring import (
 __all__ = [
     "DEFAULT_TOLERANCE_CM1",
     "LATTICE_MAX_CM1",
+    "LO_TO_WINDOW_CM1",
     "MAX_CANDIDATES",
     "MIN_ISOTOPOMER_SHARE",
     "PRIORS",
@@ -193,6 +203,61 @@ def _isotopomer_lists(units: Sequence[_UnitBands], notes: list[str]) -> dict[str
             continue
         out[orbit.formula] = tuple(i for i in found if not i.parent and i.abundance >= MIN_ISOTOPOMER_SHARE)
     return out
+
+
+def _polar_species(prediction: Any, labels: Sequence[str], tech: str | None) -> tuple[str, ...]:
+    """Polar species among ``labels`` whose TO/LO pair the technique can see."""
+    out = []
+    for lab in labels:
+        s = prediction.species_by_label(lab)
+        if s.polar and (tech != "raman" or s.raman):
+            out.append(lab)
+    return tuple(out)
+
+
+def _lo_to_candidates(
+    prediction: Any,
+    units: Sequence[_UnitBands],
+    members: dict[tuple[str, str], list[int]],
+    lines: Sequence[Any],
+    found: list[list[Candidate]],
+    tech: str | None,
+    phase: str,
+) -> None:
+    """Offer each weaker line just above a component of a polar band as its LO partner."""
+    import bisect
+
+    order = sorted(range(len(lines)), key=lambda i: lines[i].position_cm1)
+    xs = [lines[i].position_cm1 for i in order]
+    for ub in units:
+        for b in ub.bands:
+            idx = members.get((ub.orbit.formula, b.mode.name), [])
+            polar = _polar_species(prediction, b.factor_labels, tech)
+            if not idx or not polar:
+                continue
+            for y_i in idx:
+                y = lines[y_i]
+                lo = bisect.bisect_right(xs, y.position_cm1)
+                hi = bisect.bisect_right(xs, y.position_cm1 + LO_TO_WINDOW_CM1)
+                for k in range(lo, hi):
+                    i = order[k]
+                    p = lines[i]
+                    d = p.position_cm1 - y.position_cm1
+                    if i == y_i or d <= 0 or not p.intensity < y.intensity:
+                        continue
+                    found[i].append(
+                        Candidate(
+                            "lo_to",
+                            ub.orbit.formula,
+                            b.mode.name,
+                            polar,
+                            round(y.position_cm1, 3),
+                            round(PRIORS["lo_to"] * _closeness(d, LO_TO_WINDOW_CM1), 4),
+                            f"LO partner of the {b.mode.name} line at {y.position_cm1:.1f} cm-1 ({d:+.1f} cm-1): "
+                            f"{'/'.join(polar)} polar, split into TO and LO (Born and Huang 1954)",
+                            phase,
+                        )
+                    )
 
 
 def explain(
@@ -378,6 +443,8 @@ def explain(
                                 phase,
                             )
                         )
+
+    _lo_to_candidates(prediction, units, members, lines, found, tech, phase)
 
     # surplus rule: a band shows at most its predicted number of components
     for ub in units:

@@ -10,6 +10,7 @@ from __future__ import annotations
 __all__ = [
     "DEFAULT_TOLERANCE_CM1",
     "LATTICE_MAX_CM1",
+    "LO_TO_WINDOW_CM1",
     "MAX_CANDIDATES",
     "MIN_ISOTOPE_SHIFT_CM1",
     "MIN_ISOTOPOMER_SHARE",
@@ -23,11 +24,18 @@ __all__ = [
 DEFAULT_TOLERANCE_CM1 = 40.0
 #: Lines below this (cm-1) may be lattice modes (translations, librations) (common practice).
 LATTICE_MAX_CM1 = 250.0
+#: Largest distance (cm-1) above a strong line of a polar (IR-active) band at which a weaker
+#: line is offered as its longitudinal (LO) partner. The LO frequency lies above the TO one
+#: (Lyddane-Sachs-Teller relation, Born and Huang 1954); splittings of strong bands reach
+#: about 100 cm-1 in ionic crystals (NaCl: TO 164, LO 264 cm-1, from memory, e.g. C. Kittel,
+#: Introduction to Solid State Physics, table of optical-phonon frequencies).
+LO_TO_WINDOW_CM1 = 150.0
 #: Prior weight of each kind of explanation; the order also breaks ties.
 PRIORS: dict[str, float] = {
     "fundamental": 1.0,
     "lattice": 0.7,
     "site_activated": 0.6,
+    "lo_to": 0.5,
     "second_phase": 0.5,
     "isotopologue": 0.45,
     "disorder_activated": 0.35,
