@@ -159,6 +159,9 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
         [("300 K (one-orientation model)", warm_model), ("90 K", cold_pred)],
         title="Harbour Bay C60 cooling run (demo scenario; invented data)",
         notes=notes,
+        modes={"C60": table},
+        explanations=explained,
+        lowering=ranking,
     )
     written.append(report)
     return DemoOutputs(folder.resolve(), tuple(written))

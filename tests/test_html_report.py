@@ -109,7 +109,8 @@ def test_two_phase_report(two_phase, c60, c60_fcc):
     text = "".join(c.text)
     # two correlation diagrams and one line pattern across phases
     assert c.tags["svg"] == 3
-    assert c.tags["section"] == 3
+    # two phases, across the phases, methods
+    assert c.tags["section"] == 4
     assert "Across the phases" in text
     # labels, title and notes are escaped
     assert "Fm-3 &lt;fcc&gt;" in two_phase and "Pa-3 &amp; ordered" in two_phase
@@ -144,3 +145,72 @@ def test_write_report(tmp_path, calcite):
         write_report(tmp_path / "r.pdf", [("calcite", calcite)])
     with pytest.raises(InputError):
         html_report([])
+
+
+def test_report_contents(calcite):
+    """Source file name, cell, bands with wavenumbers and sources, tensors, geometries, methods, versions."""
+    import dataclasses
+
+    import ase
+    import spglib
+
+    import splitting
+
+    far = dataclasses.replace(calcite, source="/home/someone/secret/folder/calcite.cif")
+    page = html_report([("calcite", far)])
+    text = "".join(_check(page).text)
+    assert "calcite.cif" in text and "/home" not in page and "secret" not in page
+    # cell parameters of the file (calcite, hexagonal axes: a = b, gamma = 120 degrees)
+    a, b, c, al, be, ga = calcite.cell_parameters
+    assert f"a = {a:.4f} Å" in text and f"γ = {ga:.3f}°" in text and abs(ga - 120) < 1e-6
+    # the carbonate bands with their free wavenumbers and the table's source
+    table = find_table("CO3")
+    for m in table.modes:
+        assert f"{m.wavenumber_cm1:.0f}" in text
+    assert table.source in text
+    assert "ν1" in text or "ν<sub>1</sub>" in page
+    # Raman tensors and what backscattering geometries see: z(xx)z-bar sees A1g and Eg (Loudon 1964, D3d)
+    assert "Raman tensors and scattering geometries" in text
+    assert 'z(xx)<span class="bar">z</span>' in page
+    # methods cite the published method, and versions are given
+    assert "Bhagavantam" in text and "Halford" in text and "Damen" in text
+    assert f"splitting {splitting.__version__}" in text
+    assert f"spglib {spglib.__version__}" in text and f"ase {ase.__version__}" in text
+
+
+def test_setting_and_state_hooks(calcite):
+    """Whatever setting, transformation and state fields a prediction carries are shown."""
+
+    class WithSetting:
+        def __init__(self, pred):
+            self._p = pred
+            self.setting = "hexagonal axes"
+            self.transformation = ((1, 0, 0), (0, 1, 0), (0, 0, 1))
+            self.state = "ordered"
+
+        def __getattr__(self, name):
+            return getattr(self._p, name)
+
+    page = html_report([("calcite", WithSetting(calcite))])
+    text = "".join(_check(page).text)
+    assert "hexagonal axes" in text and "(1 0 0; 0 1 0; 0 0 1)" in text and "ordered" in text
+
+
+def test_report_with_assignment_and_candidates(c60_fcc, structures_dir):
+    from splitting.phases.lower import lower
+    from splitting.spectra.assign import explain
+    from splitting.spectra.measured import PeakList, Peak
+
+    table = find_table("C60")
+    lines = tuple(Peak(m.wavenumber_cm1 + 1.0, 1.0) for m in table.modes if m.species == "T1u")
+    peaks = PeakList(lines, technique="ir", source="/data/run/peaks_ir.csv")
+    e = explain(c60_fcc, peaks, technique="ir")
+    low = lower(structures_dir / "c60_fcc_Fm-3.cif", max_index=2)
+    page = html_report([("fcc", c60_fcc)], explanations=[e], lowering=low)
+    c = _check(page)
+    text = "".join(c.text)
+    assert 'id="assignment"' in page and 'id="candidates"' in page and 'href="#assignment"' in page
+    assert "4 lines; 4 explained" in text and "peaks_ir.csv" in text and "/data/run" not in page
+    assert "Candidate lower-symmetry phases" in text
+    # the assignment figure is inline too: correlation diagram + explanation figure
+    assert c.tags["svg"] == 2

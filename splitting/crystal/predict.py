@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import os
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -99,7 +99,8 @@ def predict_atoms(
     cell = analyse_cell(
         atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=opts.tolerance, scan=scan
     )
-    return _predict(cell, units_of(cell, opts), opts, source, free_cache)
+    pred = _predict(cell, units_of(cell, opts), opts, source, free_cache)
+    return replace(pred, cell_parameters=tuple(float(v) for v in atoms.cell.cellpar()))
 
 
 def units_of(cell: CellSymmetry, opts: Options) -> tuple[Unit, ...]:

@@ -249,6 +249,9 @@ class CrystalPrediction(Summarised):
     warnings : tuple of str
     cell_volume : float
         Primitive-cell volume (cubic angstrom).
+    cell_parameters : tuple of float
+        a, b, c (angstrom) and alpha, beta, gamma (degrees) of the cell as given in the file;
+        empty when the prediction was not made from a file's cell (a candidate phase).
     """
 
     source: str
@@ -265,6 +268,7 @@ class CrystalPrediction(Summarised):
     acoustic: Representation
     warnings: tuple[str, ...]
     cell_volume: float = float("nan")
+    cell_parameters: tuple[float, ...] = ()
 
     def species_by_label(self, label: str) -> FactorSpecies:
         """The factor-group species with this label."""
@@ -326,6 +330,7 @@ class CrystalPrediction(Summarised):
             "atoms_primitive": self.atoms_primitive,
             "atoms_input": self.atoms_input,
             "cell_volume_angstrom3": round(self.cell_volume, 4),
+            "cell_parameters": [round(v, 5) for v in self.cell_parameters],
             "units": [u.to_dict() for u in self.units],
             "species": [s.to_dict() for s in self.species],
             "gamma_3n": str(self.gamma_3n),

@@ -1,11 +1,15 @@
 """A self-contained HTML report of one or more predictions.
 
 The page holds everything (style inline, figures as inline SVG; no scripts, no network):
-for every phase the space group, factor group and the axis convention of the species labels,
-the units and their sites, the correlation table and diagram of every molecular unit, the
-factor-group species with their activity, the totals and the warnings.  With several phases
-a line pattern shows each band of the units they share, phase by phase.  Each phase starts
-on a new page when printed.
+for every phase the structure file (its name only), cell parameters, setting and state when
+known, space group, factor group and the axis convention of the species labels, the units
+and their sites, the free-unit bands with their wavenumbers and components, the correlation
+table and diagram of every molecular unit, the factor-group species with their activity, the
+Raman tensors with what common scattering geometries see, the totals and the warnings.  With
+several phases a table and a line pattern show each band of the units they share, phase by
+phase.  The assignment of measured lines and the candidate lower-symmetry phases follow when
+given, then the methods with their published sources and the versions of the software.  Each
+phase starts on a new page when printed (styles in ``report.css``).
 """
 
 from __future__ import annotations
@@ -23,40 +27,28 @@ from .._io import atomic_write_text
 from ..errors import InputError
 from ..plot.mulliken import formula_html, hermann_mauguin_html, schoenflies_html
 from ..plot.mulliken import html as species_html
+from . import html_sections as sections
+from ._htmlkit import MARK_IR, MARK_RAMAN, Figures, axes_html, rep_html, table
 
 if TYPE_CHECKING:  # pragma: no cover
     from ..crystal.results import CrystalPrediction, UnitOrbit
-    from ..groups import Representation
+    from ..phases.lower import Lowering
     from ..spectra.catalogue import ModeTable
+    from ..spectra.explanation import Explanation
 
 __all__ = ["html_report", "write_report"]
-
-_MARK_IR = '<span class="mark ir" role="img" aria-label="IR active" title="IR active"></span>'
-_MARK_RAMAN = '<span class="mark raman" role="img" aria-label="Raman active" title="Raman active"></span>'
 
 
 def _css() -> str:
     return resources.files("splitting.report").joinpath("report.css").read_text(encoding="utf-8")
 
 
-def _version() -> str:
-    from importlib.metadata import PackageNotFoundError, version
-
-    try:
-        return version("splitting")
-    except PackageNotFoundError:  # pragma: no cover - running from a source tree without install
-        return "unknown"
-
-
-def _rep_html(rep: Representation) -> str:
-    parts = [(str(n) if n > 1 else "") + species_html(lab) for lab, n in rep]
-    return " + ".join(parts) if parts else "0"
-
-
-def _axes_html(axes: Mapping[str, str]) -> str:
-    return ", ".join(
-        f'<span class="nowrap"><i>{k}</i> &#8741; {escape(axes[k])}</span>' for k in ("x", "y", "z") if k in axes
-    )
+_MARK_IR = MARK_IR
+_MARK_RAMAN = MARK_RAMAN
+_rep_html = rep_html
+_axes_html = axes_html
+_table = table
+_Figures = Figures
 
 
 def _point_group_hm(symbol: str) -> str:
@@ -64,40 +56,11 @@ def _point_group_hm(symbol: str) -> str:
     return re.sub(r"-(\d)", r'<span class="bar">\1</span>', escape(symbol))
 
 
-def _table(
-    headers: Sequence[str], rows: Sequence[Sequence[str]], *, numeric: Sequence[int] = (), caption: str | None = None
-) -> str:
-    """HTML table; cells are already HTML."""
-    head = "".join(f'<th scope="col"{" class=num" if i in numeric else ""}>{h}</th>' for i, h in enumerate(headers))
-    body = []
-    for r in rows:
-        cells = "".join(f"<td{' class=num' if i in numeric else ''}>{c}</td>" for i, c in enumerate(r))
-        body.append(f"<tr>{cells}</tr>")
-    cap = f"<caption>{caption}</caption>" if caption else ""
-    return (
-        f'<div class="table-wrap"><table>{cap}<thead><tr>{head}</tr></thead>'
-        f"<tbody>{''.join(body)}</tbody></table></div>"
-    )
-
-
-class _Figures:
-    """Numbers the inline SVG figures so their ids never clash."""
-
-    def __init__(self) -> None:
-        self.count = 0
-
-    def svg(self, fig) -> str:
-        from ..plot.lines import figure_svg
-
-        self.count += 1
-        return figure_svg(fig, prefix=f"fig{self.count}-")
-
-
 def _facts(pred: CrystalPrediction) -> str:
     sg = pred.space_group
     centro = "centrosymmetric" if pred.centrosymmetric else "non-centrosymmetric"
-    items = [
-        ("structure", escape(pred.source)),
+    items = sections.cell_items(pred)
+    items += [
         (
             "cell",
             f"{formula_html(pred.formula)} (primitive cell, {pred.atoms_primitive} atoms; {pred.atoms_input} as given)",
@@ -241,7 +204,7 @@ def _species(pred: CrystalPrediction) -> str:
     return f'<h3>Factor-group species</h3>{table}<div class="summary">{summary}</div>'
 
 
-def _phase(index: int, label: str, pred: CrystalPrediction, figures: _Figures) -> str:
+def _phase(index: int, label: str, pred: CrystalPrediction, figures: _Figures, modes: Mapping[str, ModeTable]) -> str:
     out = [f'<section class="phase" id="phase-{index}">', f"<h2>{escape(label)}</h2>", _facts(pred)]
     for w in pred.warnings:
         out.append(f'<div class="warning" role="note"><strong>Warning.</strong>{escape(w)}</div>')
@@ -252,10 +215,12 @@ def _phase(index: int, label: str, pred: CrystalPrediction, figures: _Figures) -
         )
     out.append("<h3>Units and sites</h3>")
     out.append(_units(pred))
+    out.append(sections.bands_section(pred, modes))
     for u in pred.units:
         if u.correlation:
             out.append(_correlation(pred, u, figures))
     out.append(_species(pred))
+    out.append(sections.tensor_section(pred))
     out.append("</section>")
     return "\n".join(out)
 
@@ -274,7 +239,8 @@ def _across(
         groups = {next(u for u in p.units if u.formula == formula and u.correlation).free_group for _, p in predictions}
         if len(groups) != 1:
             continue
-        art = line_pattern(predictions, formula, modes=modes.get(formula))
+        tables = {t.name: t for _, p in predictions for u, t in sections.unit_tables(p, modes) if u.formula == formula}
+        art = line_pattern(predictions, formula, modes=next(iter(tables.values())) if len(tables) == 1 else None)
         caption = (
             f"Bands of {formula_html(formula)} across the phases: each stick is one distinct frequency of "
             "the factor group (length grows with the degeneracy); "
@@ -285,9 +251,10 @@ def _across(
             f"<h3>{formula_html(formula)}</h3><figure class=pattern>{figures.svg(art.figure)}"
             f"<figcaption>{caption}</figcaption></figure>"
         )
-    if not out:
+    bands = sections.bands_across(predictions, modes)
+    if not out and not bands:
         return ""
-    return '<section class="phase" id="across"><h2>Across the phases</h2>' + "\n".join(out) + "</section>"
+    return '<section class="phase" id="across"><h2>Across the phases</h2>' + bands + "\n".join(out) + "</section>"
 
 
 def html_report(
@@ -296,6 +263,8 @@ def html_report(
     title: str | None = None,
     notes: Sequence[str] = (),
     modes: Mapping[str, ModeTable] | None = None,
+    explanations: Sequence[Explanation] = (),
+    lowering: Lowering | None = None,
 ) -> str:
     """The whole report as one self-contained HTML document.
 
@@ -308,8 +277,13 @@ def html_report(
     notes : sequence of str
         Free text shown under the title (plain text; escaped).
     modes : mapping of str to ModeTable, optional
-        Free-unit mode tables by unit formula; with one, the line pattern across phases
-        uses its wavenumbers (cm-1).
+        Free-unit mode tables by unit formula (default: the bundled table of each molecular
+        unit, where there is one): the band tables and the line pattern across phases use
+        their wavenumbers (cm-1) and cite their sources.
+    explanations : sequence of Explanation
+        Assignments of measured lines (:func:`splitting.spectra.assign.explain`) to show.
+    lowering : Lowering, optional
+        Candidate lower-symmetry phases (:func:`splitting.phases.lower.lower`) to show.
 
     Returns
     -------
@@ -323,12 +297,27 @@ def html_report(
     if not predictions:
         raise InputError("the report needs at least one prediction")
     figures = _Figures()
+    modes = dict(modes or {})
     heading = title or "Band splitting in the crystal: " + ", ".join(lab for lab, _ in predictions)
     toc = "".join(f'<li><a href="#phase-{k}">{escape(lab)}</a></li>' for k, (lab, _) in enumerate(predictions, 1))
-    phases = [_phase(k, lab, pred, figures) for k, (lab, pred) in enumerate(predictions, 1)]
-    across = _across(predictions, modes or {}, figures) if len(predictions) > 1 else ""
+    phases = [_phase(k, lab, pred, figures, modes) for k, (lab, pred) in enumerate(predictions, 1)]
+    across = _across(predictions, modes, figures) if len(predictions) > 1 else ""
     if across:
         toc += '<li><a href="#across">Across the phases</a></li>'
+    assigned = sections.assignment_section(explanations, figures)
+    if assigned:
+        toc += '<li><a href="#assignment">Assignment of the measured lines</a></li>'
+    candidates = sections.candidates_section(lowering)
+    if candidates:
+        toc += '<li><a href="#candidates">Candidate lower-symmetry phases</a></li>'
+    toc += '<li><a href="#methods">Methods</a></li>'
+    mode_sources = [
+        f"{t.name} ({t.formula}, {t.phase}): {t.source}"
+        for _, p in predictions
+        for _, t in sections.unit_tables(p, modes)
+    ]
+    methods = sections.methods_section(mode_sources)
+    software = sections.versions()
     note_html = ("<ul class=notes>" + "".join(f"<li>{escape(n)}</li>" for n in notes) + "</ul>") if notes else ""
     legend = (
         f'<p class="legend">{_MARK_IR} IR active &nbsp; {_MARK_RAMAN} Raman active. Species labels follow '
@@ -348,7 +337,7 @@ def html_report(
             "</head>",
             "<body>",
             f"<header><h1>{escape(heading)}</h1>",
-            f'<p class="meta">Predicted with splitting {escape(_version())} on {date.today().isoformat()}; '
+            f'<p class="meta">Computed on {date.today().isoformat()} with {escape(software)}; '
             f"{len(predictions)} phase{'s' if len(predictions) != 1 else ''}.</p>",
             note_html,
             legend,
@@ -357,9 +346,12 @@ def html_report(
             "<main>",
             *phases,
             across,
+            assigned,
+            candidates,
+            methods,
             "</main>",
-            "<footer>Self-contained report: styles and figures are inline; no scripts and no network access "
-            "are needed.</footer>",
+            f"<footer>Computed with {escape(software)}. Self-contained report: styles and figures are inline; "
+            "no scripts and no network access are needed.</footer>",
             "</body>",
             "</html>",
             "",
@@ -374,6 +366,8 @@ def write_report(
     title: str | None = None,
     notes: Sequence[str] = (),
     modes: Mapping[str, ModeTable] | None = None,
+    explanations: Sequence[Explanation] = (),
+    lowering: Lowering | None = None,
 ) -> Path:
     """Write :func:`html_report` to ``path`` atomically (the suffix should be ``.html``).
 
@@ -385,4 +379,7 @@ def write_report(
     target = Path(path)
     if target.suffix.lower() not in (".html", ".htm"):
         raise InputError(f"{target}: the report is HTML; give a file name ending in .html")
-    return atomic_write_text(target, html_report(predictions, title=title, notes=notes, modes=modes))
+    return atomic_write_text(
+        target,
+        html_report(predictions, title=title, notes=notes, modes=modes, explanations=explanations, lowering=lowering),
+    )
