@@ -71,6 +71,32 @@ def _write_spectra(result, target: str, kind: str, width: float) -> None:
     print(f"simulated spectra written to {target}", file=sys.stderr)
 
 
+def estimate_options(p: argparse.ArgumentParser, what: str) -> None:
+    """``--estimate`` (run the model estimate for every structure) and ``--cache DIR``."""
+    p.add_argument(
+        "--estimate",
+        action="store_true",
+        help=f"also run the model estimate of where each line lies (as the estimate command) and {what}",
+    )
+    p.add_argument(
+        "--cache", metavar="DIR", help="with --estimate: folder for cached free-unit Hessians (reused between runs)"
+    )
+
+
+def estimates_for(args: argparse.Namespace, files) -> list | None:
+    """One model estimate per structure file when ``--estimate`` was given, else None."""
+    if not getattr(args, "estimate", False):
+        if getattr(args, "cache", None):
+            raise InputError("--cache is the folder of the model estimate; give --estimate with it")
+        return None
+    from ..dynamics import EstimateOptions, estimate
+
+    if args.cache and not os.path.isdir(args.cache):
+        raise InputError(f"--cache {args.cache}: no such folder")
+    opts = options(args)
+    return [estimate(f, opts, EstimateOptions(cache=args.cache)) for f in files]
+
+
 def add_parsers(sub: argparse._SubParsersAction) -> None:
     es = sub.add_parser(
         "estimate",

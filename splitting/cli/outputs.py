@@ -8,6 +8,7 @@ import os
 
 from ..errors import InputError, SplittingError
 from ._shared import crystal_options, json_option, phase_predictions
+from .estimate import estimate_options, estimates_for
 
 
 def run_draw(args: argparse.Namespace) -> int:
@@ -16,7 +17,10 @@ def run_draw(args: argparse.Namespace) -> int:
     suffix = os.path.splitext(args.output)[1].lower()
     if suffix not in (".svg", ".pdf", ".png"):
         raise InputError(f"{args.output}: the figure type comes from the suffix: .svg, .pdf or .png")
+    if args.estimate and args.kind != "lines":
+        raise InputError("--estimate places the bars of the line pattern; give --kind lines with it")
     phases = phase_predictions(args)
+    estimates = estimates_for(args, args.files)
     unit = args.unit
     if unit is None:
         molecular = [u.formula for u in phases[0][1].units if u.correlation]
@@ -30,7 +34,7 @@ def run_draw(args: argparse.Namespace) -> int:
             modes = find_table(unit)
         except SplittingError:
             modes = None
-        art = line_pattern(phases, unit, band=args.band, modes=modes)
+        art = line_pattern(phases, unit, band=args.band, modes=modes, estimates=estimates)
     elif len(phases) > 1:
         art = phase_correlation_diagram(phases, unit, band=args.band)
     else:
@@ -83,6 +87,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
         help="correlation diagram (default) or the predicted line pattern of each phase",
     )
     dr.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, one per file")
+    estimate_options(dr, "draw the line pattern at the estimated positions (--kind lines)")
     crystal_options(dr)
     dr.set_defaults(run=run_draw)
 

@@ -1,15 +1,22 @@
 """Line patterns across phases, and writing figures to SVG, PDF or PNG.
 
 A line pattern shows, for every band of a free unit, the components the factor group of
-each phase splits it into, as short horizontal sticks in one column per phase (phases, or
-temperatures, along the x axis).  The first column is the free unit itself.  No frequencies
-are predicted, so the components of one band form a small cluster around the band's
-position; the order of the sticks inside a cluster means nothing.  When a mode table is
-given, bands sit at their free-unit wavenumbers on a wavenumber axis (cm-1).
+each phase splits it into, as short horizontal bars in one column per phase (phases, or
+temperatures, along the x axis).  The first column is the free unit itself.
 
-Each stick is one distinct frequency: a factor-group species occurring n times gives n
-sticks.  Stick length grows with the degeneracy; the activity marks are the ones of the
-correlation diagrams (filled circle: IR active, open square: Raman active).
+Without an estimate no position is predicted: every bar of a band sits exactly at the
+band's free-unit value (on a wavenumber axis when a mode table is given, else in one row
+per band), the components of one species drawn as one bar with their number in front of
+the species ("5Tg": five distinct frequencies), the species side by side; nothing is moved
+up or down to suggest a splitting, and a note on the figure says so.  Bands closer than a
+label's height are drawn side by side (in lanes), never shifted.
+
+With a model estimate (:mod:`splitting.dynamics`) for every phase the figure has one panel
+per band (and one for the lattice modes), each with its own wavenumber axis, and every
+component is a bar at its estimated wavenumber (:mod:`splitting.plot.estimated_lines`).
+
+Bar length grows with the degeneracy; the activity marks are the ones of the correlation
+diagrams (filled circle: IR active, open square: Raman active).
 """
 
 from __future__ import annotations
@@ -34,6 +41,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from matplotlib.text import Text
 
     from ..crystal.results import CrystalPrediction
+    from ..dynamics.results import Estimate
     from ..spectra.catalogue import ModeTable
 
 __all__ = ["FIGURE_FORMATS", "LinePatternArtists", "Stick", "figure_svg", "line_pattern", "write_figure"]
@@ -113,23 +121,28 @@ def figure_svg(fig: Figure, *, prefix: str = "") -> str:
 
 
 # ------------------------------------------------------------------ line pattern
-_STICK_GAP_PT = 3.2  # between sticks of one species (points)
-_GROUP_GAP_PT = 12.5  # between species groups of one cluster (points)
-_BAND_GAP_PT = 15.0  # between clusters of neighbouring bands (points)
+_ROW_PT = 26.0  # rows of bands without a wavenumber scale (points)
+_LANE_GAP_PT = 11.0  # bands closer than this on the wavenumber axis are drawn side by side
+_PAD_IN = 0.1  # left margin inside a column
+_MARK_IN = 0.1  # per activity mark
+_CHAR_IN = 0.072  # width of one label character at the small font (approximate)
 
 
 @dataclass(frozen=True)
 class Stick:
-    """One drawn stick: one distinct frequency of one band in one column.
+    """One drawn frequency of one band in one column.
+
+    Without an estimate the components of one species are one bar (``line``), shared by
+    the sticks of that species, at the free-unit value.
 
     Attributes
     ----------
     column : str
         ``"free"`` or the phase label.
     band : str
-        Free-unit species of the band.
+        Free-unit species of the band (``"lattice"`` for the lattice-mode panel).
     mode : str or None
-        Mode name from the mode table (None without one).
+        Mode name (from the mode table or the estimate; None without either).
     species : str
         Species of the stick (free-unit species in the free column, factor-group species otherwise).
     dimension : int
@@ -137,6 +150,11 @@ class Stick:
     ir, raman : bool
         Activity.
     line : matplotlib.lines.Line2D
+    wavenumber_cm1 : float or None
+        Where the bar is drawn (cm-1): the estimate, or the free-unit value; None on a figure
+        without a wavenumber axis.
+    estimated : bool
+        True when the position comes from a model estimate.
     """
 
     column: str
@@ -147,6 +165,8 @@ class Stick:
     ir: bool
     raman: bool
     line: Line2D
+    wavenumber_cm1: float | None = None
+    estimated: bool = False
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form (without the artist)."""
@@ -158,6 +178,8 @@ class Stick:
             "dimension": self.dimension,
             "ir": self.ir,
             "raman": self.raman,
+            "wavenumber_cm1": None if self.wavenumber_cm1 is None else round(self.wavenumber_cm1, 2),
+            "estimated": self.estimated,
         }
 
 
@@ -169,17 +191,24 @@ class LinePatternArtists:
     ----------
     figure : matplotlib.figure.Figure
     ax : matplotlib.axes.Axes
+        The axes (the first panel of an estimated pattern).
     unit : str
     columns : tuple of str
         ``"free"`` then the phase labels, left to right.
     bands : tuple of (str, str or None, float or None)
-        Free species, mode name and free-unit wavenumber (cm-1) of every band, top to bottom.
+        Free species, mode name and free-unit wavenumber (cm-1) of every band.
     sticks : tuple of Stick
     labels : tuple of (str, str, str, Text)
-        Column, band, species and the label next to its sticks (``"5T$_{g}$"`` for five sticks).
+        Column, band, species and the label next to its bar (``"5T$_{g}$"`` for five components).
     headers : tuple of Text
     marks : tuple of (str, str, str, Line2D)
         Column, band, ``"ir"``/``"raman"`` and the marker.
+    estimated : bool
+        True when the bars sit at the positions of a model estimate.
+    note : Text or None
+        The note under the legend (positions not predicted, or the model of the estimate).
+    panels : tuple of (str, Axes)
+        Band (free species, or ``"lattice"``) and its panel, for an estimated pattern.
     """
 
     figure: Figure
@@ -191,13 +220,16 @@ class LinePatternArtists:
     labels: tuple[tuple[str, str, str, Text], ...]
     headers: tuple[Text, ...]
     marks: tuple[tuple[str, str, str, Line2D], ...]
+    estimated: bool = False
+    note: Text | None = None
+    panels: tuple[tuple[str, Axes], ...] = ()
 
     def texts(self) -> list[Text]:
         """Every label and heading."""
         return [t for *_, t in self.labels] + list(self.headers)
 
     def components(self, column: str, band: str, mode: str | None = None) -> dict[str, int]:
-        """Species -> number of sticks drawn for one band in one column."""
+        """Species -> number of frequencies drawn for one band in one column."""
         out: dict[str, int] = {}
         for s in self.sticks:
             if s.column == column and s.band == band and s.mode == mode:
@@ -209,6 +241,7 @@ class LinePatternArtists:
         return {
             "unit": self.unit,
             "columns": list(self.columns),
+            "estimated": self.estimated,
             "bands": [{"species": b, "mode": m, "wavenumber_cm1": w} for b, m, w in self.bands],
             "sticks": [s.to_dict() for s in self.sticks],
         }
@@ -255,44 +288,33 @@ def _groups_of(rep) -> list[tuple[str, int, int]]:
     return [(lab, n, d) for (lab, n), d in zip(rep.counts, rep.dimensions, strict=True) if n]
 
 
-def _cluster_height(groups: Sequence[tuple[str, int, int]]) -> float:
-    h = sum((n - 1) * _STICK_GAP_PT for _, n, _ in groups)
-    return h + _GROUP_GAP_PT * (len(groups) - 1)
+def _visible_len(text: str) -> int:
+    """Characters a mathtext label shows (markup removed)."""
+    return len(re.sub(r"\\[a-zA-Z]+|[$_^{}\\]", "", text))
 
 
-def _spread(nominal: Sequence[float], heights: Sequence[float], top: float) -> list[float]:
-    """Centres (points) near ``nominal`` such that clusters of ``heights`` keep _BAND_GAP_PT apart in [0, top]."""
-    order = sorted(range(len(nominal)), key=lambda i: nominal[i])
-    blocks: list[list[int]] = [[i] for i in order]
+def _bar_in(dim: int) -> float:
+    return 0.12 + 0.075 * dim
 
-    def size(block: list[int]) -> float:
-        return sum(heights[i] for i in block) + _BAND_GAP_PT * (len(block) - 1)
 
-    def place(block: list[int]) -> float:
-        # bottom of the stacked block, placed so its items sit on average at their nominal centres
-        offs, acc = [], 0.0
-        for i in block:
-            offs.append(acc + heights[i] / 2)
-            acc += heights[i] + _BAND_GAP_PT
-        bottom = sum(nominal[i] - o for i, o in zip(block, offs, strict=True)) / len(block)
-        return min(max(bottom, _BAND_GAP_PT / 2), top - size(block) - _BAND_GAP_PT / 2)
+def _group_in(label: str, n_marks: int, dim: int) -> float:
+    """Width (inches) of one bar with its label and marks."""
+    return _bar_in(dim) + 0.06 + _CHAR_IN * _visible_len(label) + 0.05 + _MARK_IN * n_marks + 0.1
 
-    changed = True
-    while changed:
-        changed = False
-        for k in range(len(blocks) - 1):
-            a, b = blocks[k], blocks[k + 1]
-            if place(a) + size(a) + _BAND_GAP_PT > place(b) - 1e-9:
-                blocks[k : k + 2] = [a + b]
-                changed = True
+
+def _lanes(ys: Sequence[float]) -> list[int]:
+    """Lane of every band: the first lane with no band closer than _LANE_GAP_PT (bands sorted by y)."""
+    lanes = [0] * len(ys)
+    last: list[float] = []
+    for i in sorted(range(len(ys)), key=lambda i: ys[i]):
+        for k, y in enumerate(last):
+            if ys[i] - y >= _LANE_GAP_PT:
+                lanes[i], last[k] = k, ys[i]
                 break
-    centres = [0.0] * len(nominal)
-    for block in blocks:
-        acc = place(block)
-        for i in block:
-            centres[i] = acc + heights[i] / 2
-            acc += heights[i] + _BAND_GAP_PT
-    return centres
+        else:
+            lanes[i] = len(last)
+            last.append(ys[i])
+    return lanes
 
 
 def line_pattern(
@@ -301,8 +323,9 @@ def line_pattern(
     *,
     band: str | None = None,
     modes: ModeTable | None = None,
+    estimates: Sequence[Estimate] | None = None,
 ) -> LinePatternArtists:
-    """Predicted components of every band of a unit, one column per phase, as stick clusters.
+    """Components of every band of a unit, one column per phase, as bars.
 
     Parameters
     ----------
@@ -311,10 +334,15 @@ def line_pattern(
     unit_formula : str
         Formula of the unit followed across the phases (it must have the same free group in each).
     band : str, optional
-        Only this band: a free species (``"E'"``) or, with a mode table, a mode name (``"nu3"``).
+        Only this band: a free species (``"E'"``) or, with a mode table or an estimate, a mode
+        name (``"nu3"``).
     modes : ModeTable, optional
-        Free-unit fundamentals: one band per mode, placed at its wavenumber (cm-1) on the y axis.
-        Without it there is one band per free species and the y axis has no scale.
+        Free-unit fundamentals: one band per mode, at its wavenumber (cm-1) on the y axis.
+        Without it (and without an estimate) there is one band per free species and the y
+        axis has no scale.
+    estimates : sequence of Estimate, optional
+        One model estimate per phase (same order): every component is drawn at its estimated
+        wavenumber, one panel per band and one for the lattice modes.
 
     Returns
     -------
@@ -324,7 +352,7 @@ def line_pattern(
     ------
     InputError
         No phases, a unit missing from a phase, free groups that differ between phases, a mode
-        table for another point group, or an unknown band.
+        table for another point group, an unknown band, or estimates that do not match the phases.
     """
     from ..activity import activity_table
 
@@ -335,11 +363,15 @@ def line_pattern(
     if len(free_groups) != 1:
         raise InputError(f"{unit_formula} has different free groups in the phases ({', '.join(sorted(free_groups))})")
     u0 = units[0]
-    bands = _bands(u0, band, modes)
     free_act = {a.label: a for a in activity_table(u0.free_group)}
+    if estimates is not None:
+        from .estimated_lines import estimated_pattern
+
+        return estimated_pattern(phases, units, estimates, band=band, free_act=free_act)
+    bands = _bands(u0, band, modes)
     free_dim = {c.free: c.free_dimension for c in u0.correlation}
 
-    # columns: free unit, then phases; per band, the (species, count, dimension) groups in each column
+    # per band, the (species, count, dimension) groups in each column
     columns = ["free", *[lab for lab, _ in phases]]
     content: list[list[list[tuple[str, int, int]]]] = []
     for b in bands:
@@ -348,49 +380,63 @@ def line_pattern(
             corr = {c.free: c for c in u.correlation}
             row.append(_groups_of(corr[b.species].factor))
         content.append(row)
-    heights = [max(_cluster_height(col) for col in row) for row in content]
 
-    # vertical layout in points from the bottom of the axes
-    total = sum(heights) + _BAND_GAP_PT * (len(bands) + 1)
+    # vertical positions in points from the bottom of the axes: exactly at the free value
     if modes is None:
-        top = total
-        centres, acc = [], top - _BAND_GAP_PT
-        for h in heights:
-            centres.append(acc - h / 2)
-            acc -= h + _BAND_GAP_PT
+        top = _ROW_PT * (len(bands) + 1)
+        ys = [top - _ROW_PT * (i + 1) for i in range(len(bands))]
         scale = None
     else:
-        top = max(total * 1.15, 4.8 * 72)
+        top = max(_ROW_PT * (len(bands) + 1), 6.0 * 72)
         waves = [b.wavenumber for b in bands]
         lo, hi = min(waves), max(waves)
         span = max(hi - lo, 100.0)
         lo, hi = lo - 0.06 * span, hi + 0.06 * span
         scale = (lo, hi)
-        nominal = [(w - lo) / (hi - lo) * top for w in waves]
-        centres = _spread(nominal, heights, top)
-    return _draw_pattern(phases, units, columns, bands, content, centres, top, scale, free_act)
+        ys = [(w - lo) / (hi - lo) * top for w in waves]
+    lanes = _lanes(ys)
+    return _draw_pattern(phases, units, columns, bands, content, ys, lanes, top, scale, free_act)
 
 
-_FREE_W = 1.75  # inches
-_COL_W = 1.45
+def _column_widths(phases, bands, content, lanes, free_act) -> tuple[list[float], list[list[float]]]:
+    """Width of every column and the left offset of every lane in it (inches)."""
+    n_lanes = max(lanes) + 1
+    widths, offsets = [], []
+    for k in range(len(phases) + 1):
+        lane_w = [0.0] * n_lanes
+        for b, row, lane in zip(bands, content, lanes, strict=True):
+            w = 0.0
+            if k == 0 and b.mode is not None:
+                w += _CHAR_IN * _visible_len(_mode_mathtext(b.mode)) + 0.08
+            for species, count, dim in row[k]:
+                if k == 0:
+                    act = free_act[species]
+                    marks = int(bool(act.ir)) + int(bool(act.raman))
+                else:
+                    fs = phases[k - 1][1].species_by_label(species)
+                    marks = int(bool(fs.ir)) + int(bool(fs.raman))
+                w += _group_in((f"{count}" if count > 1 else "") + mathtext(species), marks, dim)
+            lane_w[lane] = max(lane_w[lane], w)
+        acc, offs = _PAD_IN, []
+        for w in lane_w:
+            offs.append(acc)
+            acc += w + 0.08
+        widths.append(max(acc + _PAD_IN, 1.75 if k == 0 else 1.45))
+        offsets.append(offs)
+    return widths, offsets
 
 
-def _column_left(k: int) -> float:
-    return 0.0 if k == 0 else _FREE_W + (k - 1) * _COL_W
-
-
-def _draw_pattern(phases, units, columns, bands, content, centres, top, scale, free_act) -> LinePatternArtists:
+def _draw_pattern(phases, units, columns, bands, content, ys, lanes, top, scale, free_act) -> LinePatternArtists:
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
     from matplotlib.lines import Line2D
     from matplotlib.ticker import MaxNLocator
 
-    from .mulliken import hermann_mauguin_mathtext, schoenflies_mathtext
-
-    n_phases = len(phases)
-    width_in = _FREE_W + n_phases * _COL_W
+    widths, offsets = _column_widths(phases, bands, content, lanes, free_act)
+    lefts = [sum(widths[:k]) for k in range(len(widths))]
+    width_in = sum(widths)
     left_in, right_in = (0.85 if scale else 0.25), 0.2
-    head_in, foot_in = 1.05, 0.7
+    head_in, foot_in = 1.05, 0.85
     height_in = top / 72
     fig = Figure(figsize=(left_in + width_in + right_in, head_in + height_in + foot_in))
     FigureCanvasAgg(fig)
@@ -414,62 +460,29 @@ def _draw_pattern(phases, units, columns, bands, content, centres, top, scale, f
         ax.tick_params(axis="y", colors=COLOURS["ink"], length=3.5, width=0.8)
         ax.set_ylabel("free-unit wavenumber / cm$^{-1}$", fontsize=small, color=COLOURS["ink"])
 
-    # column separators and headings
-    headers = []
-    u0 = units[0]
-    for k, name in enumerate(columns):
-        x0 = _column_left(k)
-        if k:
-            ax.axvline(x0, color="#e6e6e6", linewidth=0.8, zorder=0)
-            u = units[k - 1]
-            pred = phases[k - 1][1]
-            sub = f"{hermann_mauguin_mathtext(pred.space_group.symbol)}, site {schoenflies_mathtext(u.site_group)}"
-            title = name
-        else:
-            sub = f"{schoenflies_mathtext(u0.free_group)}"
-            title = f"free {formula_mathtext(u0.formula)}"
-        width = _FREE_W if k == 0 else _COL_W
-        cx = x0 + width / 2
-        head = ax.annotate(
-            title,
-            (cx, top),
-            xytext=(0, 30),
-            textcoords="offset points",
-            ha="center",
-            va="bottom",
-            fontsize=_FONT,
-            fontweight="bold",
-            color=COLOURS["ink"],
-            annotation_clip=False,
-            linespacing=1.1,
-        )
-        fit_width(head, (width - 0.1) * fig.dpi, fig.canvas.get_renderer())
-        headers.append(head)
-        headers.append(
-            ax.annotate(
-                sub,
-                (cx, top),
-                xytext=(0, 14),
-                textcoords="offset points",
-                ha="center",
-                va="bottom",
-                fontsize=small,
-                color=COLOURS["muted"],
-                annotation_clip=False,
-            )
-        )
+    headers = _headings(fig, ax, phases, units, columns, lefts, widths, top, small)
 
     sticks: list[Stick] = []
     labels = []
     marks = []
-    pt = 1.0  # y data unit is one point
-    for b, row, yc in zip(bands, content, centres, strict=True):
+    for b, row, y, lane in zip(bands, content, ys, lanes, strict=True):
         ends = []
         for k, groups in enumerate(row):
             name = columns[k]
-            x0 = _column_left(k) + (0.62 if k == 0 else 0.14)
-            h = _cluster_height(groups)
-            y = yc + h / 2
+            x = lefts[k] + offsets[k][lane]
+            start = x
+            if k == 0 and b.mode is not None:
+                ax.text(
+                    x,
+                    y,
+                    _mode_mathtext(b.mode),
+                    ha="left",
+                    va="center_baseline",
+                    fontsize=small,
+                    color=COLOURS["muted"],
+                )
+                x += _CHAR_IN * _visible_len(_mode_mathtext(b.mode)) + 0.08
+                start = x
             for species, count, dim in groups:
                 if k == 0:
                     act = free_act[species]
@@ -477,36 +490,26 @@ def _draw_pattern(phases, units, columns, bands, content, centres, top, scale, f
                 else:
                     fs = phases[k - 1][1].species_by_label(species)
                     ir, raman = bool(fs.ir), bool(fs.raman)
-                length = 0.12 + 0.075 * dim
-                y_first = y
+                length = _bar_in(dim)
+                (line,) = ax.plot(
+                    [x, x + length], [y, y], color=COLOURS["ink"], linewidth=1.6, solid_capstyle="butt", zorder=3
+                )
                 for _ in range(count):
-                    (line,) = ax.plot(
-                        [x0, x0 + length], [y, y], color=COLOURS["ink"], linewidth=1.6, solid_capstyle="butt", zorder=3
-                    )
-                    sticks.append(Stick(name, b.species, b.mode, species, dim, ir, raman, line))
-                    y -= _STICK_GAP_PT * pt
-                y_mid = (y_first + y + _STICK_GAP_PT) / 2
-                y = y + _STICK_GAP_PT - _GROUP_GAP_PT
+                    sticks.append(Stick(name, b.species, b.mode, species, dim, ir, raman, line, b.wavenumber))
                 text = (f"{count}" if count > 1 else "") + mathtext(species)
+                tx = x + length + 0.06
                 lab = ax.text(
-                    x0 + 0.58,
-                    y_mid,
-                    text,
-                    ha="left",
-                    va="center_baseline",
-                    fontsize=small,
-                    color=COLOURS["ink"],
-                    zorder=3,
+                    tx, y, text, ha="left", va="center_baseline", fontsize=small, color=COLOURS["ink"], zorder=3
                 )
                 labels.append((name, b.species, species, lab))
-                mx = x0 + 0.58 + (0.42 if count > 1 else 0.32)
+                mx = tx + _CHAR_IN * _visible_len(text) + 0.05 + _MARK_IN / 2
                 for kind, on in (("ir", ir), ("raman", raman)):
                     if not on:
                         continue
                     st = ACTIVITY_STYLE[kind]
                     (m,) = ax.plot(
                         [mx],
-                        [y_mid],
+                        [y],
                         linestyle="none",
                         marker=st["marker"],
                         markersize=4.6,
@@ -516,35 +519,19 @@ def _draw_pattern(phases, units, columns, bands, content, centres, top, scale, f
                         zorder=4,
                     )
                     marks.append((name, b.species, kind, m))
-                    mx += 0.1
-            ends.append((x0, x0 + 0.58 + 0.62))
-        # dotted guides between the columns at the cluster centre
-        for k in range(len(row) - 1):
-            ax.plot(
-                [ends[k][1] - 0.02, ends[k + 1][0] - 0.05],
-                [yc, yc],
-                color=COLOURS["guide"],
-                linewidth=0.8,
-                linestyle=(0, (1, 2)),
-                zorder=1,
-            )
-        if b.mode is not None:
-            ax.text(
-                0.08,
-                yc,
-                _mode_mathtext(b.mode),
-                ha="left",
-                va="center_baseline",
-                fontsize=small,
-                color=COLOURS["muted"],
-            )
-            if scale is not None:
-                lo, hi = scale
-                yt = (b.wavenumber - lo) / (hi - lo) * top
-                if abs(yt - yc) > 2.0:  # the cluster was moved away from its wavenumber: lead back to it
-                    ax.plot(
-                        [0.0, 0.04, 0.06], [yt, yt, yc], color=COLOURS["guide"], linewidth=0.8, zorder=1, clip_on=False
-                    )
+                    mx += _MARK_IN
+                x = mx - _MARK_IN / 2 + 0.1 + (0 if (ir or raman) else _MARK_IN / 2)
+            ends.append((start, x))
+        if lane == 0:  # dotted guides between the columns, at the band's own height
+            for k in range(len(row) - 1):
+                ax.plot(
+                    [ends[k][1], ends[k + 1][0] - 0.04],
+                    [y, y],
+                    color=COLOURS["guide"],
+                    linewidth=0.8,
+                    linestyle=(0, (1, 2)),
+                    zorder=1,
+                )
 
     handles = [
         Line2D(
@@ -560,37 +547,89 @@ def _draw_pattern(phases, units, columns, bands, content, centres, top, scale, f
         )
         for k in ("ir", "raman")
     ]
-    handles.append(Line2D([], [], color=COLOURS["ink"], linewidth=1.6, label="one frequency (length: degeneracy)"))
+    handles.append(Line2D([], [], color=COLOURS["ink"], linewidth=1.6, label="one species (length: degeneracy)"))
     fig.legend(
         handles=handles,
         loc="lower center",
         ncol=3,
         frameon=False,
         fontsize=small * 0.95,
-        bbox_to_anchor=(0.5, 0.2 / H),
+        bbox_to_anchor=(0.5, 0.34 / H),
         handlelength=1.6,
         columnspacing=1.4,
     )
-    headers.append(
-        fig.text(
-            0.5,
-            0.06 / H,
-            "order within a cluster is arbitrary (no frequencies are predicted)",
-            ha="center",
-            va="bottom",
-            fontsize=small * 0.85,
-            color=COLOURS["muted"],
-        )
+    where = "at the free-unit wavenumber of the mode table" if scale else "in the row of its free-unit band"
+    note = fig.text(
+        0.5,
+        0.04 / H,
+        f"positions are not predicted: every bar sits {where}; the number before a species counts its\n"
+        "components (distinct frequencies); a model estimate (estimate command) places them",
+        ha="center",
+        va="bottom",
+        fontsize=small * 0.85,
+        color=COLOURS["muted"],
+        linespacing=1.15,
     )
-
+    headers.append(note)
     return LinePatternArtists(
         figure=fig,
         ax=ax,
-        unit=u0.formula,
+        unit=units[0].formula,
         columns=tuple(columns),
         bands=tuple((b.species, b.mode, b.wavenumber) for b in bands),
         sticks=tuple(sticks),
         labels=tuple(labels),
         headers=tuple(headers),
         marks=tuple(marks),
+        estimated=False,
+        note=note,
     )
+
+
+def _headings(fig, ax, phases, units, columns, lefts, widths, top, small) -> list[Text]:
+    """Column separators, titles and sub-titles (space group and site, or the free group)."""
+    from .mulliken import hermann_mauguin_mathtext, schoenflies_mathtext
+
+    headers = []
+    u0 = units[0]
+    for k, name in enumerate(columns):
+        x0 = lefts[k]
+        if k:
+            ax.axvline(x0, color="#e6e6e6", linewidth=0.8, zorder=0)
+            u = units[k - 1]
+            pred = phases[k - 1][1]
+            sub = f"{hermann_mauguin_mathtext(pred.space_group.symbol)}, site {schoenflies_mathtext(u.site_group)}"
+            title = name
+        else:
+            sub = f"{schoenflies_mathtext(u0.free_group)}"
+            title = f"free {formula_mathtext(u0.formula)}"
+        cx = x0 + widths[k] / 2
+        head = ax.annotate(
+            title,
+            (cx, top),
+            xytext=(0, 30),
+            textcoords="offset points",
+            ha="center",
+            va="bottom",
+            fontsize=_FONT,
+            fontweight="bold",
+            color=COLOURS["ink"],
+            annotation_clip=False,
+            linespacing=1.1,
+        )
+        fit_width(head, (widths[k] - 0.1) * fig.dpi, fig.canvas.get_renderer())
+        headers.append(head)
+        headers.append(
+            ax.annotate(
+                sub,
+                (cx, top),
+                xytext=(0, 14),
+                textcoords="offset points",
+                ha="center",
+                va="bottom",
+                fontsize=small,
+                color=COLOURS["muted"],
+                annotation_clip=False,
+            )
+        )
+    return headers

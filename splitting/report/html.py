@@ -242,10 +242,10 @@ def _across(
         tables = {t.name: t for _, p in predictions for u, t in sections.unit_tables(p, modes) if u.formula == formula}
         art = line_pattern(predictions, formula, modes=next(iter(tables.values())) if len(tables) == 1 else None)
         caption = (
-            f"Bands of {formula_html(formula)} across the phases: each stick is one distinct frequency of "
-            "the factor group (length grows with the degeneracy); "
-            f"{_MARK_IR} IR active, {_MARK_RAMAN} Raman active. No frequencies are predicted: the order "
-            "of the sticks within a cluster is arbitrary."
+            f"Bands of {formula_html(formula)} across the phases: each bar is one factor-group species, "
+            "the number before it counts its components (length grows with the degeneracy); "
+            f"{_MARK_IR} IR active, {_MARK_RAMAN} Raman active. No frequencies are predicted: every bar "
+            "sits at the free-unit value."
         )
         out.append(
             f"<h3>{formula_html(formula)}</h3><figure class=pattern>{figures.svg(art.figure)}"
