@@ -161,7 +161,7 @@ def test_report_contents(calcite):
     text = "".join(_check(page).text)
     assert "calcite.cif" in text and "/home" not in page and "secret" not in page
     # cell parameters of the file (calcite, hexagonal axes: a = b, gamma = 120 degrees)
-    a, b, c, al, be, ga = calcite.cell_parameters
+    a, _b, _c, _al, _be, ga = calcite.cell_parameters
     assert f"a = {a:.4f} Å" in text and f"γ = {ga:.3f}°" in text and abs(ga - 120) < 1e-6
     # the carbonate bands with their free wavenumbers and the table's source
     table = find_table("CO3")
@@ -199,7 +199,7 @@ def test_setting_and_state_hooks(calcite):
 def test_report_with_assignment_and_candidates(c60_fcc, structures_dir):
     from splitting.phases.lower import lower
     from splitting.spectra.assign import explain
-    from splitting.spectra.measured import PeakList, Peak
+    from splitting.spectra.measured import Peak, PeakList
 
     table = find_table("C60")
     lines = tuple(Peak(m.wavenumber_cm1 + 1.0, 1.0) for m in table.modes if m.species == "T1u")
