@@ -43,6 +43,10 @@ def axes_html(axes: Mapping[str, str]) -> str:
     )
 
 
+#: Tables with at most this many rows are kept on one printed page.
+SHORT_ROWS = 12
+
+
 def table(
     headers: Sequence[str],
     rows: Sequence[Sequence[str]],
@@ -58,7 +62,8 @@ def table(
         cells = "".join(f"<td{' class=num' if i in numeric else ''}>{c}</td>" for i, c in enumerate(r))
         body.append(f"<tr>{cells}</tr>")
     cap = f"<caption>{caption}</caption>" if caption else ""
-    cls = f' class="{css}"' if css else ""
+    classes = " ".join(c for c in (css, "short" if len(rows) <= SHORT_ROWS else "") if c)
+    cls = f' class="{classes}"' if classes else ""
     return (
         f'<div class="table-wrap"><table{cls}>{cap}<thead><tr>{head}</tr></thead>'
         f"<tbody>{''.join(body)}</tbody></table></div>"

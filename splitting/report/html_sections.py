@@ -145,11 +145,9 @@ def _mode_name(name: str) -> str:
 
 
 def _source_note(table_: ModeTable) -> str:
-    notes = sorted({m.note for m in table_.modes if m.note})
-    extra = f" Notes: {escape('; '.join(notes))}." if notes else ""
     return (
         f"Wavenumbers of the free {escape(table_.name)} ({escape(table_.phase)}): {escape(table_.source)}."
-        f"{'' if table_.complete else ' Not every fundamental is listed.'}{extra}"
+        f"{'' if table_.complete else ' Not every fundamental is listed.'}"
     )
 
 
@@ -158,6 +156,7 @@ def bands_section(pred: CrystalPrediction, modes: Mapping[str, ModeTable]) -> st
     out = []
     for u, t in unit_tables(pred, modes):
         corr = {c.free: c for c in u.correlation}
+        noted = any(m.note for m in t.modes)
         rows = []
         for m in t.modes:
             c = corr[m.species]
@@ -170,6 +169,7 @@ def bands_section(pred: CrystalPrediction, modes: Mapping[str, ModeTable]) -> st
                     rep_html(c.site),
                     _marked(pred, c.factor),
                 ]
+                + ([f'<span class="note">{escape(m.note)}</span>' if m.note else ""] if noted else [])
             )
         out.append(
             f"<h3>Bands of {formula_html(u.formula)}</h3>"
@@ -181,7 +181,8 @@ def bands_section(pred: CrystalPrediction, modes: Mapping[str, ModeTable]) -> st
                     "free unit",
                     f"site {escape(u.wyckoff)} ({schoenflies_html(u.site_group)})",
                     f"factor group ({schoenflies_html(pred.factor_group)})",
-                ],
+                ]
+                + (["note"] if noted else []),
                 rows,
                 numeric=(2,),
                 caption="Each fundamental of the free unit, its wavenumber in the free unit, and the components "
