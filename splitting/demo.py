@@ -91,7 +91,8 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
     opts = Options()
     labels = ["300 K", "90 K"]
     # 1. before the run: both phases, what changes
-    seq = compare_phases([warm, cold], labels, opts)
+    # the warm fcc phase is the rotor (plastic) phase, the cold one ordered
+    seq = compare_phases([warm, cold], labels, opts, phase_states=[{"*": "rotor"}, {"*": "ordered"}])
     save_text("phases.txt", sequence_text(seq))
     save_json("phases.json", seq.to_dict())
     cold_pred = seq.phases[1].crystal
@@ -106,7 +107,7 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
     save_fig("correlation_C60_90K", art.figure)
     art = correlation_diagram(cold_pred, "C60", band="T1u")
     save_fig("correlation_C60_T1u_90K", art.figure)
-    pairs = [("300 K (one orientation)", warm_model), ("90 K", cold_pred)]
+    pairs = [("300 K (rotor phase; drawn: one-orientation model)", warm_model), ("90 K (ordered)", cold_pred)]
     art = phase_correlation_diagram(pairs, "C60", band="T1u")
     save_fig("phases_C60_T1u", art.figure)
     art = line_pattern(pairs, "C60", modes=table)
@@ -152,11 +153,17 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
         ),
         "Cryogens, class 3B/4 lasers and pressure cells are hazardous: follow your local rules (docs/safety.md).",
     ]
-    notes[1:1] = [f"300 K phase: {u.statement}" for u in seq.phases[0].disorder.units] if seq.phases[0].disorder else []
+    warm_units = seq.phases[0].disorder.units if seq.phases[0].disorder else ()
+    notes[1:1] = [
+        f"300 K phase (rotor phase, state given): {u.statement} Free-unit lines: "
+        + "; ".join(f"{st}: {ir} IR / {ra} Raman" for st, ir, ra in u.readings if st == "dynamic")
+        + "."
+        for u in warm_units
+    ] + ["90 K phase: ordered (factor-group components, sharp librations)."]
     report = folder / "report.html"
     write_report(
         report,
-        [("300 K (one-orientation model)", warm_model), ("90 K", cold_pred)],
+        [("300 K (rotor phase; one-orientation model shown)", warm_model), ("90 K (ordered)", cold_pred)],
         title="Harbour Bay C60 cooling run (demo scenario; invented data)",
         notes=notes,
         modes={"C60": table},

@@ -110,7 +110,7 @@ def test_partial_occupancy_without_a_model_is_one_clear_error():
 
 
 def test_unknown_state_is_rejected():
-    with pytest.raises(InputError, match="not one of"):
+    with pytest.raises(InputError, match="is not a state; use one of"):
         predict_disordered(NH4CL, states={"H4N": "spinning"})
     assert STATES == ("ordered", "static", "dynamic")
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import argparse
 
-from ._shared import crystal_options, disorder_options, emit, json_option, options, states
+from ._shared import crystal_options, disorder_options, emit, json_option, options, states, warn
 
 
 def run_predict(args: argparse.Namespace) -> int:
@@ -17,6 +17,7 @@ def run_predict(args: argparse.Namespace) -> int:
         from ..report.text import disordered_text
 
         dis = predict_disordered(args.file, options(args), states=chosen)
+        warn(dis.warnings)
         return emit(args, dis.to_dict(), lambda: disordered_text(dis))
     result = predict(args.file, options(args))
     payload = result.to_dict()
@@ -52,7 +53,8 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
         "--disordered",
         action="store_true",
         help="the file holds partly occupied orientations: predict one orientation at its site, "
-        "the averaged site, and what the disorder removes",
+        "the averaged site, and what the disorder removes (static disorder unless --state says otherwise, "
+        "with a warning giving what each state predicts)",
     )
     disorder_options(pr)
     json_option(pr)

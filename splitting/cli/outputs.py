@@ -7,7 +7,7 @@ import json
 import os
 
 from ..errors import InputError, SplittingError
-from ._shared import crystal_options, json_option, phase_predictions
+from ._shared import crystal_options, disorder_options, json_option, load_phases, phase_label, state_notes, warn
 from .estimate import estimate_options, estimates_for
 
 
@@ -19,7 +19,9 @@ def run_draw(args: argparse.Namespace) -> int:
         raise InputError(f"{args.output}: the figure type comes from the suffix: .svg, .pdf or .png")
     if args.estimate and args.kind != "lines":
         raise InputError("--estimate places the bars of the line pattern; give --kind lines with it")
-    phases = phase_predictions(args)
+    loaded = load_phases(args)
+    warn(w for ph in loaded for w in (ph.disorder.warnings if ph.disorder else ()))
+    phases = [(phase_label(ph), ph.crystal) for ph in loaded]
     estimates = estimates_for(args, args.files)
     unit = args.unit
     if unit is None:
@@ -27,6 +29,10 @@ def run_draw(args: argparse.Namespace) -> int:
         if not molecular:
             raise InputError(f"{args.files[0]}: no molecular unit to draw")
         unit = molecular[0]
+    else:
+        from ..crystal.names import match_unit
+
+        unit = match_unit(unit, [u.formula for u in phases[0][1].units], what="--unit", where=args.files[0])
     if args.kind == "lines":
         from ..spectra.catalogue import find_table
 
@@ -35,12 +41,15 @@ def run_draw(args: argparse.Namespace) -> int:
         except SplittingError:
             modes = None
         art = line_pattern(phases, unit, band=args.band, modes=modes, estimates=estimates)
-    elif len(phases) > 1:
+    elif len(phases) > 1 or not loaded[0].ordered:
+        # a disordered phase gets a titled panel, so the figure says its state
         art = phase_correlation_diagram(phases, unit, band=args.band)
     else:
         art = correlation_diagram(phases[0][1], unit, band=args.band)
     write_figure(art.figure, args.output)
     print(f"figure written to {args.output}")
+    for line in state_notes(loaded):
+        print(f"  {line}")
     return 0
 
 
@@ -49,8 +58,10 @@ def run_report(args: argparse.Namespace) -> int:
 
     if not args.output.lower().endswith((".html", ".htm")):
         raise InputError(f"{args.output}: the report is an HTML file; give a name ending in .html")
-    phases = phase_predictions(args)
-    write_report(args.output, phases, title=args.title, notes=args.note or ())
+    loaded = load_phases(args)
+    warn(w for ph in loaded for w in (ph.disorder.warnings if ph.disorder else ()))
+    phases = [(phase_label(ph), ph.crystal) for ph in loaded]
+    write_report(args.output, phases, title=args.title, notes=[*(args.note or ()), *state_notes(loaded)])
     print(f"report written to {args.output}")
     return 0
 
@@ -78,7 +89,9 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     )
     dr.add_argument("files", nargs="+", help="structure file(s), upper phase first")
     dr.add_argument("-o", "--output", required=True, metavar="FIGURE", help="output .svg, .pdf or .png")
-    dr.add_argument("--unit", metavar="FORMULA", help="which unit (default: the first molecular unit)")
+    dr.add_argument(
+        "--unit", metavar="UNIT", help="which unit, e.g. SO4^2- or its Hill formula (default: the first molecular unit)"
+    )
     dr.add_argument("--band", metavar="SPECIES", help="one free-unit species only, e.g. T1u")
     dr.add_argument(
         "--kind",
@@ -88,6 +101,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     )
     dr.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, one per file")
     estimate_options(dr, "draw the line pattern at the estimated positions (--kind lines)")
+    disorder_options(dr)
     crystal_options(dr)
     dr.set_defaults(run=run_draw)
 
@@ -97,6 +111,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     rp.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, one per file")
     rp.add_argument("--title", help="title of the report")
     rp.add_argument("--note", action="append", metavar="TEXT", help="a note printed at the top; repeatable")
+    disorder_options(rp)
     crystal_options(rp)
     rp.set_defaults(run=run_report)
 

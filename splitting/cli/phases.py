@@ -6,27 +6,50 @@ import argparse
 
 from ..defaults import DEFAULT_MAX_INDEX
 from ..errors import InputError
-from ._shared import crystal_options, disorder_options, emit, json_option, line_options, options, states
+from ._shared import (
+    crystal_options,
+    disorder_options,
+    emit,
+    json_option,
+    line_options,
+    options,
+    phase_states,
+    states,
+    warn,
+)
 
 
 def run_compare(args: argparse.Namespace) -> int:
+    import os
+
     from ..phases.compare import compare_phases
     from ..report.text import sequence_text
 
-    seq = compare_phases(args.files, args.labels, options(args), states=states(args))
+    labels = args.labels or [os.path.basename(f) for f in args.files]
+    if len(labels) != len(args.files):
+        raise InputError(f"{len(labels)} labels for {len(args.files)} files")
+    per = phase_states(args, list(args.files), list(labels))
+    seq = compare_phases(args.files, labels, options(args), phase_states=per)
+    warn(w for ph in seq.phases for w in (ph.disorder.warnings if ph.disorder else ()))
     return emit(args, seq.to_dict(), lambda: sequence_text(seq))
 
 
 def run_lower(args: argparse.Namespace) -> int:
+    from ..phases.disorder import ALL_UNITS
     from ..phases.lower import lower, parse_observed
     from ..report.text import lowering_text
 
     observed = parse_observed(args.observed)
-    if args.peaks:
-        from ..crystal.predict import predict
-        from ..spectra.bands import find_unit_table
+    chosen = states(args)
+    if set(chosen) - {ALL_UNITS}:
+        raise InputError("lower: give the state of the parent phase as a whole (--state rotor), not per unit")
+    modes = None
+    if args.modes:
         from ..spectra.catalogue import load_mode_table
-        from ..spectra.counting import observed_counts
+
+        modes = load_mode_table(args.modes)
+    peaks = None
+    if args.peaks:
         from ..spectra.measured import read_peaks
 
         peaks = read_peaks(args.peaks, technique=args.technique)
@@ -34,13 +57,16 @@ def run_lower(args: argparse.Namespace) -> int:
             raise InputError(
                 f"{args.peaks}: say whether the lines are IR or Raman (--technique or a '# technique:' line)"
             )
-        parent = predict(args.file, options(args))
-        units = [u.formula for u in parent.units if u.correlation]
-        if not units:
-            raise InputError(f"{args.file}: no molecular unit whose bands could be counted")
-        table = load_mode_table(args.modes) if args.modes else find_unit_table(units[0])
-        observed = observed + observed_counts(peaks, table, technique=peaks.technique, window_cm1=args.window)
-    result = lower(args.file, options(args), max_index=args.max_index, observed=observed)
+    result = lower(
+        args.file,
+        options(args),
+        max_index=args.max_index,
+        observed=observed,
+        peaks=peaks,
+        modes=modes,
+        window_cm1=args.window,
+        state=chosen.get(ALL_UNITS, "ordered"),
+    )
     return emit(args, result.to_dict(), lambda: lowering_text(result))
 
 
@@ -62,10 +88,12 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
         "--observed",
         nargs="+",
         metavar="BAND:TECH=N",
-        help="observed components, e.g. T1u:ir=3 Hg:raman=5 lattice:raman=5 (optionally UNIT/BAND)",
+        help="observed components, e.g. T1u:ir=3 Hg:raman=5 lattice:raman=5; BAND is a free species or a "
+        "vibration of the mode table (nu3), optionally UNIT/BAND (SO4^2-/nu3:ir=3)",
     )
     lo.add_argument("--peaks", metavar="CSV", help="count the observed components from a peak list instead")
     line_options(lo, window=15.0, what="from its free band when counting")
+    disorder_options(lo)
     crystal_options(lo)
     json_option(lo)
     lo.set_defaults(run=run_lower)

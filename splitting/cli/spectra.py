@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 
 from ..errors import InputError
-from ._shared import crystal_options, emit, json_option, line_options, options
+from ._shared import crystal_options, disorder_options, emit, json_option, line_options, options, states
 
 
 def run_explain(args: argparse.Namespace) -> int:
@@ -23,6 +23,7 @@ def run_explain(args: argparse.Namespace) -> int:
         figure=args.output,
         tolerance_cm1=args.window,
         options=options(args),
+        states=states(args),
     )
     code = emit(args, result.to_dict(), lambda: explanation_text(result))
     if args.output and not args.json:
@@ -44,6 +45,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
         "found in it when --peaks is not given, and it is drawn in the figure",
     )
     line_options(ex, window=40.0, what="from the band it is assigned to")
+    disorder_options(ex)
     ex.add_argument("-o", "--output", metavar="FIGURE", help="write a figure (.svg, .pdf or .png)")
     crystal_options(ex)
     json_option(ex)

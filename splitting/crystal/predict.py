@@ -65,6 +65,13 @@ class Options:
     ionic_metals: bool = True
     max_atoms: int = DEFAULT_MAX_ATOMS
 
+    def __post_init__(self) -> None:
+        # units may be named as written (SO4^2-, NH4+) or by Hill formula; keep Hill formulas
+        from .names import hill_of
+
+        object.__setattr__(self, "free_groups", tuple((hill_of(f), g) for f, g in self.free_groups))
+        object.__setattr__(self, "formulas", tuple(hill_of(f) for f in self.formulas))
+
 
 def predict(
     path: str | os.PathLike[str], options: Options | None = None, *, format: str | None = None
@@ -197,6 +204,14 @@ def _undercoordinated_carbon(unit: Unit) -> bool:
     return bool(np.any(bonded[carbon].sum(axis=1) < 3))
 
 
+def _given_free_groups(opts: Options, units: tuple[Unit, ...]) -> dict[str, str]:
+    """Free groups given by the user, keyed by Hill formula; a name matching no unit is an error."""
+    from .names import match_unit
+
+    found = sorted({u.formula for u in units if u.kind == "molecule"})
+    return {match_unit(f, found, what="--free-group"): g for f, g in opts.free_groups}
+
+
 def _predict(
     cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source: str, free_cache: FreeUnitCache | None = None
 ) -> CrystalPrediction:
@@ -205,7 +220,7 @@ def _predict(
     reference = cell.reference_axes
     orbits = _orbits(cell, units)
     wyckoffs = cell.wyckoff_of([units[orbit[0][0]].centre for orbit in orbits], tolerance=opts.tolerance)
-    given = {f.replace(" ", ""): g for f, g in opts.free_groups}
+    given = _given_free_groups(opts, units)
     if free_cache is None:
         free_cache = FreeUnitCache(opts.unit_tolerance, given)
     zero = fg.group.representation({})

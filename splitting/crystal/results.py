@@ -120,6 +120,20 @@ class UnitOrbit:
     geometry: tuple[tuple[float, float, float], ...] = ()
     site_to_factor: tuple[tuple[str, Representation], ...] = ()
 
+    @property
+    def name(self) -> str:
+        """The unit as spectroscopists write it (``SO4^2-``, ``NH4+``; :mod:`splitting.crystal.names`)."""
+        from .names import unit_name
+
+        return unit_name(self.formula)
+
+    @property
+    def charge(self) -> int | None:
+        """Charge from the common-ion table (:mod:`splitting.crystal.names`); ``None`` if not listed."""
+        from .names import unit_charge
+
+        return unit_charge(self.formula)
+
     def induced(self, site_label: str) -> Representation:
         """Factor-group components induced by one site species (all units of the orbit)."""
         for lab, rep in self.site_to_factor:
@@ -130,7 +144,9 @@ class UnitOrbit:
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
         return {
+            "name": self.name,
             "formula": self.formula,
+            "charge": self.charge,
             "kind": self.kind,
             "atoms_per_unit": self.atoms_per_unit,
             "count": self.count,
@@ -278,9 +294,19 @@ class CrystalPrediction(Summarised):
         raise KeyError(label)
 
     def unit(self, formula: str) -> UnitOrbit:
-        """The first orbit with this formula."""
+        """The first orbit with this formula (Hill formula or written name, ``SO4^2-``)."""
         for u in self.units:
             if u.formula == formula:
+                return u
+        from ..errors import InputError
+        from .names import hill_of
+
+        try:
+            hill = hill_of(formula)
+        except InputError:
+            raise KeyError(formula) from None
+        for u in self.units:
+            if u.formula == hill:
                 return u
         raise KeyError(formula)
 
@@ -327,6 +353,9 @@ class CrystalPrediction(Summarised):
             "factor_group": self.factor_group,
             "factor_axes": self.factor_axes,
             "centrosymmetric": self.centrosymmetric,
+            "state": "ordered",
+            "state_meaning": "every unit in one orientation: factor-group (Davydov) components with the "
+            "k = 0 selection rules; sharp librations",
             "atoms_primitive": self.atoms_primitive,
             "atoms_input": self.atoms_input,
             "cell_volume_angstrom3": round(self.cell_volume, 4),

@@ -197,13 +197,10 @@ def find_units(
         pos = cart[comp] + offset[comp] @ lattice
         units.append(_wrapped(tuple(int(a) for a in comp), pos, numbers[comp], masses[comp], inv, lattice, kind))
     if formulas:
-        wanted = {f.replace(" ", "") for f in formulas}
-        found = {u.formula for u in units}
-        missing = wanted - found
-        if missing:
-            raise InputError(
-                f"no unit with formula {', '.join(sorted(missing))}; units found: {', '.join(sorted(found))}"
-            )
+        from .names import match_unit
+
+        found = sorted({u.formula for u in units})
+        wanted = {match_unit(f, found, what="--units") for f in formulas}
         split: list[Unit] = []
         for u in units:
             if u.kind == "molecule" and u.formula not in wanted:

@@ -16,7 +16,7 @@ from ..crystal.predict import Options, predict_atoms
 from ..crystal.read import load_structure
 from ..crystal.results import CrystalPrediction
 from ..errors import InputError, SymmetryError
-from .disorder import DisorderedPrediction, occupancies, predict_disordered
+from .disorder import STATE_MEANING, DisorderedPrediction, occupancies, predict_disordered
 
 __all__ = [
     "BandChange",
@@ -127,6 +127,17 @@ class Phase:
         return self.disorder is None or not self.disorder.units
 
     @property
+    def state(self) -> str:
+        """``"ordered"``, ``"static"``, ``"dynamic"`` or ``"mixed"`` (units in different states)."""
+        return "ordered" if self.ordered else self.disorder.state
+
+    @property
+    def warnings(self) -> tuple[str, ...]:
+        """Warnings of the prediction (a state taken by default, ...)."""
+        own = self.disorder.warnings if self.disorder is not None else ()
+        return tuple(own) + tuple(self.crystal.warnings)
+
+    @property
     def space_group(self):
         """Space group (of the averaged structure for a disordered phase)."""
         return self.prediction.space_group if self.prediction is not None else self.disorder.space_group
@@ -225,6 +236,9 @@ class Phase:
             "label": self.label,
             "source": self.source,
             "ordered": self.ordered,
+            "state": self.state,
+            "state_meaning": STATE_MEANING.get(self.state, "units in different states (see disorder)"),
+            "warnings": list(self.warnings),
             "space_group": self.space_group.to_dict(),
             "factor_group": self.factor_group,
             "bands": [b.to_dict() for b in self.bands()],
@@ -345,7 +359,9 @@ def load_phase(
     opts = options or Options()
     atoms = load_structure(path, allow_partial=True)
     partial = bool(np.any(occupancies(atoms) < 0.999))
-    declared = {f: s for f, s in (states or {}).items() if s != "ordered"}
+    from .disorder import normalise_state
+
+    declared = {f: s for f, s in (states or {}).items() if normalise_state(s, where=f"state of {f}") != "ordered"}
     if partial or declared:
         d = predict_disordered(path, opts, atoms=atoms, states=states, free_cache=cache)
         return Phase(label, os.fspath(path), None, d)
@@ -408,6 +424,7 @@ def compare_phases(
     options: Options | None = None,
     *,
     states: dict[str, str] | None = None,
+    phase_states: Sequence[dict[str, str] | None] | None = None,
 ) -> PhaseSequence:
     """Predict every phase of a sequence (upper first) and say what changes between them.
 
@@ -419,7 +436,10 @@ def compare_phases(
         Names such as temperatures ("300 K", "90 K"); default the file names.
     options : Options
     states : dict, optional
-        Disorder states per unit formula (see :func:`predict_disordered`).
+        States per unit for every phase (see :func:`predict_disordered`).
+    phase_states : sequence of dict, optional
+        One mapping per path, ``{unit or "*": state}``, for that phase only (over ``states``),
+        e.g. ``[{"*": "rotor"}, {}]`` for a rotor phase above an ordered one.
     """
     if len(paths) < 2:
         raise InputError("compare needs at least two structure files")
@@ -428,7 +448,13 @@ def compare_phases(
         raise InputError(f"{len(labels)} labels for {len(paths)} files")
     opts = options or Options()
     cache = FreeUnitCache(opts.unit_tolerance, dict(opts.free_groups))
-    phases = [load_phase(p, lab, opts, states=states, cache=cache) for p, lab in zip(paths, labels, strict=True)]
+    per = list(phase_states) if phase_states is not None else [None] * len(paths)
+    if len(per) != len(paths):
+        raise InputError(f"{len(per)} sets of states for {len(paths)} files")
+    phases = [
+        load_phase(p, lab, opts, states={**(states or {}), **(own or {})}, cache=cache)
+        for p, lab, own in zip(paths, labels, per, strict=True)
+    ]
     steps = tuple(_relation(a, b) for a, b in itertools.pairwise(phases))
     by_band: dict[tuple[str, str], list[BandState | None]] = {}
     for k, ph in enumerate(phases):

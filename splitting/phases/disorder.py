@@ -21,7 +21,7 @@ from __future__ import annotations
 
 import itertools
 import os
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -38,9 +38,55 @@ from ..groups import OrientedGroup, Representation
 from ..groups.identify import crystal_preference, identify
 from ..groups.subgroups import subgroup_classes
 
-__all__ = ["STATES", "DisorderedPrediction", "DisorderedUnit", "occupancies", "predict_disordered"]
+__all__ = [
+    "ALL_UNITS",
+    "DEFAULT_OPEN_STATE",
+    "STATES",
+    "STATE_MEANING",
+    "DisorderedPrediction",
+    "DisorderedUnit",
+    "normalise_state",
+    "occupancies",
+    "predict_disordered",
+]
 
+#: The three states of a unit: one orientation everywhere, several frozen orientations, rotating.
 STATES = ("ordered", "static", "dynamic")
+#: Other words accepted for the states (a rotor phase and a plastic phase are dynamically disordered).
+STATE_WORDS = {
+    "ordered": "ordered",
+    "static": "static",
+    "frozen": "static",
+    "dynamic": "dynamic",
+    "rotor": "dynamic",
+    "plastic": "dynamic",
+}
+#: Key of a ``states`` mapping that sets the state of every molecular unit of the phase.
+ALL_UNITS = "*"
+#: State taken for a partly occupied unit whose state is not given (with a warning).
+DEFAULT_OPEN_STATE = "static"
+#: What each state implies for the lines (one sentence each; common practice, method notes).
+STATE_MEANING = {
+    "ordered": "ordered: factor-group (Davydov) components with the k = 0 selection rules; sharp librations",
+    "static": "static disorder (frozen orientations): the site-group pattern of one orientation as broadened "
+    "lines, no Davydov splitting, no sharp librations, weak disorder-activated modes",
+    "dynamic": "dynamic disorder (rotor / plastic phase): the free-unit lines, weakly perturbed by the averaged "
+    "site; no Davydov splitting; no sharp librations",
+}
+
+
+def normalise_state(word: str, *, where: str = "state") -> str:
+    """``"ordered"``, ``"static"`` or ``"dynamic"`` for a state word (``rotor``, ``plastic``, ``frozen`` too).
+
+    Raises
+    ------
+    InputError
+        For any other word, naming the accepted ones.
+    """
+    key = str(word).strip().lower()
+    if key not in STATE_WORDS:
+        raise InputError(f"{where}: {word!r} is not a state; use one of {', '.join(STATE_WORDS)}")
+    return STATE_WORDS[key]
 
 
 def occupancies(atoms) -> np.ndarray:
@@ -97,6 +143,12 @@ class DisorderedUnit:
         free group itself (dynamic).
     statement : str
         Plain statement of what the disorder removes.
+    state_given : bool
+        True when the user gave the state; False when it was taken by default.
+    readings : tuple of (str, int, int)
+        ``(state, IR lines, Raman lines)`` of the internal modes of this unit under each
+        state (static and dynamic; ordered when the one-orientation model has the unit),
+        counted as distinct frequencies: what each reading of the file predicts.
     """
 
     formula: str
@@ -108,12 +160,25 @@ class DisorderedUnit:
     orientation_site_group: str | None
     pattern: tuple[SitePattern, ...]
     statement: str
+    state_given: bool = True
+    readings: tuple[tuple[str, int, int], ...] = ()
+
+    @property
+    def name(self) -> str:
+        """The unit as spectroscopists write it (:mod:`splitting.crystal.names`)."""
+        from ..crystal.names import unit_name
+
+        return unit_name(self.formula)
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
         return {
+            "name": self.name,
             "formula": self.formula,
             "state": self.state,
+            "state_given": self.state_given,
+            "state_meaning": STATE_MEANING[self.state],
+            "readings": [{"state": st, "ir": ir, "raman": ra} for st, ir, ra in self.readings],
             "orientations": self.orientations,
             "averaged_site_group": self.averaged_site_group,
             "averaged_wyckoff": self.averaged_wyckoff,
@@ -156,13 +221,29 @@ class DisorderedPrediction:
     translations: Representation
     activity: tuple[tuple[str, bool, bool], ...]
     volume: float
+    warnings: tuple[str, ...] = ()
 
     def unit(self, formula: str) -> DisorderedUnit:
-        """The disordered unit with this formula."""
+        """The disordered unit with this formula (Hill formula or written name)."""
+        from ..crystal.names import hill_of
+
         for u in self.units:
             if u.formula == formula:
                 return u
+        try:
+            hill = hill_of(formula)
+        except InputError:
+            raise KeyError(formula) from None
+        for u in self.units:
+            if u.formula == hill:
+                return u
         raise KeyError(formula)
+
+    @property
+    def state(self) -> str:
+        """State of the phase: ``"ordered"``, ``"static"``, ``"dynamic"`` or ``"mixed"`` (units differ)."""
+        found = {u.state for u in self.units} or {"ordered"}
+        return found.pop() if len(found) == 1 else "mixed"
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
@@ -170,9 +251,11 @@ class DisorderedPrediction:
             "source": self.source,
             "space_group": self.space_group.to_dict(),
             "factor_group": self.factor_group,
+            "state": self.state,
             "units": [u.to_dict() for u in self.units],
             "optical_translations": str(self.translations),
             "ordered_model": self.ordered_model.to_dict(),
+            "warnings": list(self.warnings),
         }
 
 
@@ -288,14 +371,21 @@ def predict_disordered(
     options : Options
         Crystal-pipeline options.
     states : dict, optional
-        ``{formula: "ordered" | "static" | "dynamic"}`` overrides per unit (formula of one
-        orientation, or of a fully occupied unit to declare it a rotor).
+        ``{unit: state}`` per unit: the unit by its written name (``SO4^2-``, ``C60``) or its
+        Hill formula (of one orientation, or of a fully occupied unit to declare it a rotor);
+        the key :data:`ALL_UNITS` (``"*"``) sets every molecular unit of the phase. States:
+        ``"ordered"``, ``"static"``, ``"dynamic"`` (also ``"rotor"``, ``"plastic"``,
+        ``"frozen"``). A partly occupied unit with no state given is taken as
+        :data:`DEFAULT_OPEN_STATE` and the result carries a warning that says what each
+        state predicts.
+
+    Raises
+    ------
+    InputError
+        A state word not known, a unit name matching no unit of the structure.
     """
     opts = options or Options()
-    states = dict(states or {})
-    for f, s in states.items():
-        if s not in STATES:
-            raise InputError(f"disorder state {s!r} for {f} is not one of {', '.join(STATES)}")
+    states = {k: normalise_state(v, where=f"state of {k}") for k, v in (states or {}).items()}
     if atoms is None:
         if path is None:
             raise InputError("give a structure file or atoms")
@@ -322,7 +412,7 @@ def predict_disordered(
 
     kept: list[np.ndarray] = []  # Cartesian positions and numbers of the ordered model
     kept_num: list[int] = []
-    done: dict[str, DisorderedUnit] = {}
+    found: list[tuple[Unit, bool, int, OrientedGroup, np.ndarray]] = []
     for blob in blobs:
         occ = prim_occ[list(blob.atoms)]
         disordered = bool(np.any(occ < 0.999))
@@ -345,31 +435,35 @@ def predict_disordered(
         )
         kept.extend(unit.positions)
         kept_num.extend(int(z) for z in unit.numbers)
-        state = states.get(unit.formula, "static" if disordered else "ordered")
-        if state == "ordered" or unit.formula in done or len(chosen) == 1:
+        found.append((unit, disordered, n_orient, site_avg, blob.centre))
+    states = _resolve_states(states, [u for u, *_ in found], source)
+    done: dict[str, DisorderedUnit] = {}
+    warnings: list[str] = []
+    for unit, disordered, n_orient, site_avg, centre in found:
+        given = unit.formula in states or (ALL_UNITS in states and unit.kind == "molecule")
+        state = states.get(unit.formula, states.get(ALL_UNITS, DEFAULT_OPEN_STATE if disordered else "ordered"))
+        if unit.formula in done or unit.kind != "molecule" or (state == "ordered" and not disordered):
             continue
         free = cache.get(unit)
         inside = [op for op in site_avg.operations if free.group.contains(op)]
         one = identify(np.array(inside), prefer=crystal_preference(reference), reference=reference, tol=1e-3)
-        if state == "dynamic":
-            pattern = tuple(
-                SitePattern(lab, n, free.group.group.representation({lab: 1})) for lab, n in free.vibrations
+        dynamic = tuple(SitePattern(lab, n, free.group.group.representation({lab: 1})) for lab, n in free.vibrations)
+        static = tuple(
+            SitePattern(
+                lab,
+                n,
+                one.reduce_at(
+                    np.array([free.group.character(lab, op) for op in one.operations]),
+                    what=f"{lab} at the site of one orientation",
+                ),
             )
-            one_name = None
-        else:
-            pattern = tuple(
-                SitePattern(
-                    lab,
-                    n,
-                    one.reduce_at(
-                        np.array([free.group.character(lab, op) for op in one.operations]),
-                        what=f"{lab} at the site of one orientation",
-                    ),
-                )
-                for lab, n in free.vibrations
-            )
-            one_name = one.name
-        wyck = cell.wyckoff_of([blob.centre], tolerance=opts.tolerance)[0][0]
+            for lab, n in free.vibrations
+        )
+        readings = (("static", *_line_counts(static, one.name)), ("dynamic", *_line_counts(dynamic, free.group.name)))
+        if state == "ordered":
+            continue
+        pattern, one_name = (dynamic, None) if state == "dynamic" else (static, one.name)
+        wyck = cell.wyckoff_of([centre], tolerance=opts.tolerance)[0][0]
         done[unit.formula] = DisorderedUnit(
             unit.formula,
             state,
@@ -379,13 +473,29 @@ def predict_disordered(
             free.group.name,
             one_name,
             pattern,
-            _statement(unit.formula, state, one_name, site_avg.name),
+            _statement(_written(unit.formula), state, one_name, site_avg.name),
+            given,
+            readings,
         )
     from ase import Atoms
 
     model = Atoms(numbers=kept_num, positions=np.array(kept), cell=cell.lattice, pbc=True)
     model.wrap()
     ordered = predict_atoms(model, opts, source=f"{source} (one-orientation model)", free_cache=cache, scan=False)
+    for f, d in list(done.items()):
+        orbit = next((o for o in ordered.units if o.formula == f and o.correlation), None)
+        if orbit is not None:
+            ir_ra = _ordered_counts(ordered, orbit)
+            done[f] = replace(d, readings=(("ordered", *ir_ra), *d.readings))
+    for d in done.values():
+        if not d.state_given:
+            warnings.append(
+                f"{d.name}: the file has partial occupancies but does not say whether the orientations are "
+                f"frozen or the units rotate; {DEFAULT_OPEN_STATE} disorder taken (default). Internal lines "
+                "IR/Raman under each state: "
+                + ", ".join(f"{st} {ir}/{ra}" for st, ir, ra in d.readings)
+                + "; give the state (e.g. --state FILE=rotor) to choose"
+            )
     factor = FactorGroup.from_rotations(cell.rotations, reference)
     trans = factor.oriented.group.representation({})
     for orbit in _orbits(cell, blobs):
@@ -402,4 +512,40 @@ def predict_disordered(
         trans,
         act,
         float(abs(np.linalg.det(cell.lattice))),
+        tuple(warnings),
     )
+
+
+def _written(formula: str) -> str:
+    from ..crystal.names import unit_name
+
+    return unit_name(formula)
+
+
+def _resolve_states(states: dict[str, str], units: list[Unit], source: str) -> dict[str, str]:
+    """Unit names of ``states`` turned into Hill formulas; a name matching no unit is an error."""
+    from ..crystal.names import match_unit
+
+    formulas = sorted({u.formula for u in units if u.kind == "molecule"})
+    out = {}
+    for key, value in states.items():
+        if key == ALL_UNITS:
+            out[key] = value
+            continue
+        out[match_unit(key, formulas, what="state given for", where=source)] = value
+    return out
+
+
+def _line_counts(pattern: tuple[SitePattern, ...], group: str) -> tuple[int, int]:
+    """IR and Raman internal lines (distinct frequencies) of a pattern in ``group``."""
+    act = {a.label: a for a in activity_table(group)}
+    ir = sum(p.modes * n for p in pattern for lab, n in p.site if act[lab].ir)
+    raman = sum(p.modes * n for p in pattern for lab, n in p.site if act[lab].raman)
+    return ir, raman
+
+
+def _ordered_counts(pred: CrystalPrediction, orbit) -> tuple[int, int]:
+    """IR and Raman internal lines of one unit orbit in an ordered prediction."""
+    ir = sum(c.modes * n for c in orbit.correlation for lab, n in c.factor if pred.species_by_label(lab).ir)
+    raman = sum(c.modes * n for c in orbit.correlation for lab, n in c.factor if pred.species_by_label(lab).raman)
+    return ir, raman

@@ -216,17 +216,25 @@ class Lowering(Summarised):
     max_index: int
     candidates: tuple[Candidate, ...]
     observed: tuple[tuple[str, str, int], ...] = ()
+    parent_state: str = "ordered"
+    notes: tuple[str, ...] = ()
 
     def to_dict(self) -> dict[str, object]:
         """JSON-ready form."""
+        from .disorder import STATE_MEANING
+
         return {
             "parent": {
                 "space_group": self.parent.space_group.to_dict(),
                 "factor_group": self.parent.factor_group,
                 "source": self.parent.source,
+                "state": self.parent_state,
+                "state_meaning": STATE_MEANING[self.parent_state],
             },
+            "candidates_state": "ordered",
             "max_index": self.max_index,
             "observed": [{"band": b, "technique": t, "count": n} for b, t, n in self.observed],
+            "notes": list(self.notes),
             "candidates": [c.to_dict() for c in self.candidates],
         }
 
@@ -316,10 +324,84 @@ def parse_observed(items: list[str] | None) -> tuple[tuple[str, str, int], ...]:
             tech = tech.strip().lower()
             if tech not in ("ir", "raman", "total") or (band.strip() == "lattice" and tech == "total"):
                 raise ValueError
-            out.append((band.strip(), tech, int(n)))
+            count = int(n)
         except ValueError:
             raise InputError(f"observed count {item!r} is not of the form BAND:ir=N or BAND:raman=N") from None
+        if count < 0:
+            raise InputError(f"observed count {item!r}: a number of lines cannot be negative")
+        out.append((band.strip(), tech, count))
     return tuple(out)
+
+
+def _resolve_observed(
+    observed: tuple[tuple[str, str, int], ...], parent: CrystalPrediction, modes=None
+) -> tuple[tuple[tuple[str, str, int], ...], list[str]]:
+    """Observed counts with every band as a free species (``HILL/SPECIES`` when a unit is named).
+
+    A band may be a species (``T1u``) or the name of a vibration in the unit's mode table
+    (``nu3``, the bundled table or ``modes``), with or without ``UNIT/`` (written name or
+    Hill formula). A name that matches nothing is an error listing what there is.
+    """
+    from ..crystal.names import match_unit
+
+    molecular = [u for u in parent.units if u.correlation]
+    formulas = [u.formula for u in molecular]
+    tables = {}
+    for u in molecular:
+        if modes is not None and _same_unit(modes.formula, u.formula):
+            tables[u.formula] = modes
+            continue
+        try:
+            from ..spectra.bands import find_unit_table
+
+            tables[u.formula] = find_unit_table(u.formula)
+        except Exception:
+            continue
+    out, notes = [], []
+    for band, tech, n in observed:
+        if band == "lattice":
+            out.append((band, tech, n))
+            continue
+        unit_text, slash, name = band.rpartition("/")
+        units = [match_unit(unit_text, formulas, what="--observed unit", where=parent.source)] if slash else formulas
+        hits = []
+        for f in units:
+            orbit = next(u for u in molecular if u.formula == f)
+            if name in {c.free for c in orbit.correlation}:
+                hits.append((f, name, None))
+                continue
+            table = tables.get(f)
+            mode = next((m for m in table.modes if m.name == name), None) if table is not None else None
+            if mode is not None:
+                hits.append((f, mode.species, table.name))
+        if not hits:
+            known = []
+            for f in units:
+                orbit = next(u for u in molecular if u.formula == f)
+                names = [c.free for c in orbit.correlation]
+                if f in tables:
+                    names += [m.name for m in tables[f].modes]
+                known.append(f"{orbit.name}: {', '.join(names)}")
+            raise InputError(
+                f"--observed {band!r}: no band or vibration of that name; there are "
+                + ("; ".join(known) if known else "no molecular units")
+                + "; and 'lattice'"
+            )
+        f, species, table_name = hits[0]
+        key = f"{f}/{species}" if slash or len(formulas) > 1 else species
+        if table_name is not None:
+            notes.append(f"{band} read as {key} ({name} of the mode table {table_name!r})")
+        out.append((key, tech, n))
+    return tuple(out), notes
+
+
+def _same_unit(a: str, b: str) -> bool:
+    from ..crystal.names import hill_of
+
+    try:
+        return hill_of(a) == hill_of(b)
+    except InputError:
+        return False
 
 
 #: cost of a predicted component that was not observed (weak or unresolved lines are common),
@@ -368,6 +450,10 @@ def lower(
     max_index: int = DEFAULT_MAX_INDEX,
     observed: tuple[tuple[str, str, int], ...] = (),
     seed: int = 1,
+    peaks=None,
+    modes=None,
+    window_cm1: float = 15.0,
+    state: str = "ordered",
 ) -> Lowering:
     """Candidate lower-symmetry phases of an ordered structure, ranked by observed line counts.
 
@@ -380,8 +466,22 @@ def lower(
     observed : tuple of (band, technique, count)
         Observed numbers of components, e.g. ``(("T1u", "ir", 3),)``; see :func:`parse_observed`.
         The misfit of a candidate adds 1 for every observed line it cannot produce and
-        ``MISSING_COST`` for every predicted component not observed.
+        ``MISSING_COST`` for every predicted component not observed. A band is a free
+        species or a vibration name of the unit's mode table (``"SO4/nu3"``).
+    peaks : PeakList, optional
+        Measured lines (IR or Raman, said by the list): counted band by band
+        (:func:`~splitting.spectra.counting.observed_counts`, window ``window_cm1``) only
+        against the bands that are active in that technique in some candidate, and added to
+        ``observed``.
+    modes : ModeTable, optional
+        Free-unit mode table for ``peaks`` and for vibration names (default: bundled).
+    state : str
+        State of the parent phase (``ordered``, ``static``, ``rotor``), stated in the
+        result; the candidates are ordered phases.
     """
+    from .disorder import normalise_state
+
+    state = normalise_state(state, where="state of the parent")
     if not 2 <= max_index <= MAX_INDEX_LIMIT:
         raise InputError(
             f"the largest index {max_index} is out of range: it must be at least 2 and at most {MAX_INDEX_LIMIT} "
@@ -451,6 +551,10 @@ def lower(
         )
         merged.setdefault(sig, []).append(c)
     cands = [replace(group[0], variants=len(group)) for group in merged.values()]
+    observed, notes = _resolve_observed(tuple(observed), parent, modes)
+    if peaks is not None:
+        counted, more = _count_peaks(peaks, parent, cands, modes, window_cm1)
+        observed, notes = observed + counted, notes + more
     if observed:
         scored = []
         for c in cands:
@@ -459,7 +563,52 @@ def lower(
         cands = sorted(scored, key=lambda c: (c.score, c.index, -c.space_group[0]))
     else:
         cands.sort(key=lambda c: (c.index, -c.space_group[0]))
-    return Lowering(parent, max_index, tuple(cands), tuple(observed))
+    return Lowering(parent, max_index, tuple(cands), tuple(observed), state, tuple(notes))
+
+
+def _count_peaks(peaks, parent: CrystalPrediction, cands, modes, window_cm1: float):
+    """Observed counts from a peak list, against the bands some candidate makes active in its technique."""
+    from ..spectra.bands import find_unit_table
+    from ..spectra.catalogue import ModeTable
+    from ..spectra.counting import observed_counts
+
+    tech = peaks.technique
+    if tech is None:
+        raise InputError(f"{peaks.source or 'peaks'}: say whether the lines are IR or Raman")
+    units = [u for u in parent.units if u.correlation]
+    if not units:
+        raise InputError(f"{parent.source}: no molecular unit whose bands could be counted")
+    if modes is not None:
+        chosen = [u for u in units if _same_unit(modes.formula, u.formula)]
+        if not chosen:
+            names = ", ".join(u.name for u in units)
+            raise InputError(
+                f"mode table {modes.name!r} ({modes.formula}) matches no unit of {parent.source} ({names})"
+            )
+        unit, table = chosen[0], modes
+    else:
+        unit, table = units[0], find_unit_table(units[0].formula)
+    active = set()
+    for c in cands:
+        for b in c.bands():
+            if b.unit == unit.formula and (b.ir if tech == "ir" else b.raman):
+                active.add(b.band)
+    kept = tuple(m for m in table.modes if m.species in active)
+    dropped = [m.name for m in table.modes if m.species not in active]
+    notes = []
+    if dropped:
+        notes.append(
+            f"{tech} lines counted only against bands active in {tech} in some candidate; not counted against "
+            + ", ".join(dropped)
+        )
+    if not kept:
+        return (), [*notes, f"no band of {unit.name} is {tech}-active in any candidate: no line counted"]
+    fields = {f: getattr(table, f) for f in table.__dataclass_fields__}
+    restricted = ModeTable(**{**fields, "modes": kept, "complete": False})
+    counts = [c for c in observed_counts(peaks, restricted, technique=tech, window_cm1=window_cm1) if c[0] != "lattice"]
+    # the lattice region ends below the lowest fundamental of the whole table
+    lattice = [c for c in observed_counts(peaks, table, technique=tech, window_cm1=window_cm1) if c[0] == "lattice"]
+    return tuple(counts + lattice), notes
 
 
 def _candidate(

@@ -239,10 +239,10 @@ def select_unit(prediction: CrystalPrediction, unit: str | UnitOrbit | None) -> 
                 return u
         raise InputError(f"{prediction.source}: no molecular unit with internal vibrations to draw")
     if isinstance(unit, str):
-        found = [u for u in prediction.units if u.formula == unit.replace(" ", "")]
-        if not found:
-            known = ", ".join(u.formula for u in prediction.units)
-            raise InputError(f"{prediction.source}: no unit {unit!r}; units are {known}")
+        from ..crystal.names import match_unit
+
+        hill = match_unit(unit, [u.formula for u in prediction.units], where=prediction.source)
+        found = [u for u in prediction.units if u.formula == hill]
         with_corr = [u for u in found if u.correlation]
         if not with_corr:
             raise InputError(f"{prediction.source}: unit {unit!r} is a single atom and has no internal vibrations")

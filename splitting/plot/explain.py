@@ -207,6 +207,7 @@ def explain_files(
     figure: str | os.PathLike[str] | None = None,
     tolerance_cm1: float = DEFAULT_TOLERANCE_CM1,
     options: Any = None,
+    states: dict[str, str] | None = None,
 ) -> Explanation:
     """Read the files, explain the lines, and optionally save the figure.
 
@@ -233,6 +234,11 @@ def explain_files(
         Window half width, cm-1.
     options : splitting.crystal.predict.Options or None
         Crystal-pipeline options.
+    states : dict, optional
+        State of the phase (``{"*": "rotor"}``) or of its units (written name or Hill
+        formula). A file with partial occupancies is read as a disordered phase: its
+        one-orientation model is used with the state given, or static disorder by
+        default (with a note saying what each state predicts).
 
     Raises
     ------
@@ -264,8 +270,26 @@ def explain_files(
     elif spec is not None:
         peak_list = find_peaks(spec)
     table = load_mode_table(modes) if modes is not None else None
-    prediction = predict(structure, options)
-    result = explain(prediction, peak_list, modes=table, technique=technique, tolerance_cm1=tolerance_cm1)
+    from ..crystal.read import load_structure
+    from ..phases.disorder import occupancies, predict_disordered
+
+    partial = bool((occupancies(load_structure(structure, allow_partial=True)) < 0.999).any())
+    extra: tuple[str, ...] = ()
+    if partial or states:
+        dis = predict_disordered(structure, options, states=states)
+        prediction = dis.ordered_model
+        chosen = {u.formula: u.state for u in dis.units}
+        extra = dis.warnings
+    else:
+        prediction = predict(structure, options)
+        chosen = {}
+    result = explain(
+        prediction, peak_list, modes=table, technique=technique, tolerance_cm1=tolerance_cm1, states=chosen
+    )
+    if extra:
+        import dataclasses
+
+        result = dataclasses.replace(result, notes=(*result.notes, *extra))
     if figure is not None:
         save_explanation_figure(result, figure, spectrum=spec)
     return result

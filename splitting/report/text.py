@@ -154,6 +154,15 @@ def molecule_text(result) -> str:
     return "\n".join(lines)
 
 
+_ORDERED = "state: ordered: factor-group (Davydov) components with the k = 0 selection rules; sharp librations"
+
+
+def _name(formula: str) -> str:
+    from ..crystal.names import unit_name
+
+    return unit_name(formula)
+
+
 def prediction_text(pred) -> str:
     """Readable report of a :class:`~splitting.crystal.results.CrystalPrediction`."""
     sg = pred.space_group
@@ -165,6 +174,8 @@ def prediction_text(pred) -> str:
         f"  factor group {pred.factor_group} ({'centrosymmetric' if pred.centrosymmetric else 'non-centrosymmetric'});"
         f" labels use x = {ax['x']}, y = {ax['y']}, z = {ax['z']}",
     ]
+    if "one-orientation model" not in pred.source:
+        lines.append(f"  {_ORDERED}")
     for w in pred.warnings:
         lines.append(f"  warning: {w}")
     lines.append("")
@@ -173,6 +184,7 @@ def prediction_text(pred) -> str:
     for u in pred.units:
         rows.append(
             [
+                u.name,
                 u.formula,
                 u.kind,
                 u.free_group or "-",
@@ -184,7 +196,9 @@ def prediction_text(pred) -> str:
             ]
         )
     lines.append(
-        table(["unit", "kind", "free group", "Wyckoff", "site symbol", "site group", "Z (prim.)", "dev. A"], rows)
+        table(
+            ["unit", "Hill", "kind", "free group", "Wyckoff", "site symbol", "site group", "Z (prim.)", "dev. A"], rows
+        )
     )
     for u in pred.units:
         if not u.correlation:
@@ -192,7 +206,7 @@ def prediction_text(pred) -> str:
         lines.append("")
         sa = u.site_axes
         lines.append(
-            f"Correlation for {u.formula}: {u.free_group} -> {u.site_group} (site {u.wyckoff}; "
+            f"Correlation for {u.name}: {u.free_group} -> {u.site_group} (site {u.wyckoff}; "
             f"site axes x = {sa['x']}, y = {sa['y']}, z = {sa['z']}) -> {pred.factor_group}"
         )
         lines.append(
@@ -248,16 +262,22 @@ def sequence_text(seq) -> str:
     rows = []
     for ph in seq.phases:
         sg = ph.space_group
-        state = "ordered" if ph.ordered else "orientationally disordered"
-        rows.append([ph.label, f"{sg.symbol} (No. {sg.number})", ph.factor_group, state, ph.source])
-    lines.append(table(["phase", "space group", "factor group", "order", "file"], rows))
+        state = {"ordered": "ordered", "static": "static disorder", "dynamic": "rotor (dynamic disorder)"}
+        rows.append(
+            [ph.label, f"{sg.symbol} (No. {sg.number})", ph.factor_group, state.get(ph.state, "mixed"), ph.source]
+        )
+    lines.append(table(["phase", "space group", "factor group", "state", "file"], rows))
     for ph in seq.phases:
         if ph.disorder is not None:
             for u in ph.disorder.units:
                 lines.append(
                     f"  {ph.label}: {u.statement} (averaged site {u.averaged_site_group}, "
-                    f"Wyckoff {u.averaged_wyckoff}; {u.orientations} orientation(s) in the file)"
+                    f"Wyckoff {u.averaged_wyckoff}; {u.orientations} orientation(s) in the file; "
+                    f"state {'given' if u.state_given else 'taken by default'})"
                 )
+            lines += [f"  {ph.label}: warning: {w}" for w in ph.disorder.warnings]
+        else:
+            lines.append(f"  {ph.label}: {_ORDERED}")
     lines.append("")
     lines.append("Relations")
     rows = [
@@ -277,9 +297,9 @@ def sequence_text(seq) -> str:
     headers = ["unit", "band", *[ph.label for ph in seq.phases]]
     rows = []
     for b in seq.bands:
-        rows.append([b.unit, b.band, *[f"{s.text()}  [IR {s.ir}, R {s.raman}]" for s in b.states]])
+        rows.append([_name(b.unit), b.band, *[f"{s.text()}  [IR {s.ir}, R {s.raman}]" for s in b.states]])
     lines.append(table(headers, rows))
-    remarks = [f"  {b.unit} {b.band}: {r}" for b in seq.bands for r in b.remarks]
+    remarks = [f"  {_name(b.unit)} {b.band}: {r}" for b in seq.bands for r in b.remarks]
     if remarks:
         lines.append("")
         lines.append("What changes")
@@ -299,11 +319,18 @@ def lowering_text(result, *, limit: int = 40) -> str:
         f"Parent {p.space_group.symbol} (No. {p.space_group.number}), factor group {p.factor_group}; "
         f"candidates up to index {result.max_index}: {len(result.candidates)}"
     ]
+    from ..phases.disorder import STATE_MEANING
+
+    lines.append(
+        f"Parent state: {STATE_MEANING[result.parent_state]}; every candidate is an ordered phase "
+        "(factor-group components, sharp librations)"
+    )
     if result.observed:
         lines.append("Observed: " + ", ".join(f"{b} {t} = {n}" for b, t, n in result.observed))
+    lines += [f"note: {n}" for n in result.notes]
     rows = []
     for k, c in enumerate(result.candidates[:limit], 1):
-        sites = "; ".join(f"{u.formula} {u.wyckoff} {u.site_group} x{u.count}" for u in c.prediction.units)
+        sites = "; ".join(f"{u.name} {u.wyckoff} {u.site_group} x{u.count}" for u in c.prediction.units)
         wanted = {name.rpartition("/")[2] for name, _, _ in result.observed}
         shown = [b for b in c.bands() if b.band in wanted] or c.bands()[:6]
         bands = ", ".join(f"{b.band} {b.ir}/{b.raman}" for b in shown)
@@ -334,14 +361,25 @@ def disordered_text(pred) -> str:
         f"  averaged structure: {sg.symbol} (No. {sg.number}), factor group {pred.factor_group}",
         f"  optical translational modes of the averaged structure: {pred.translations}",
     ]
+    state = {"static": "static disorder", "dynamic": "rotor (dynamic disorder)", "ordered": "ordered"}
+    lines.append(f"  phase state: {state.get(pred.state, 'units in different states')}")
+    lines += [f"  warning: {w}" for w in pred.warnings]
+    if not pred.units:
+        lines.append(f"  {_ORDERED}")
     for u in pred.units:
         lines.append("")
         lines.append(
-            f"{u.formula}: {u.state} disorder, {u.orientations} orientation(s) in the file; free group "
+            f"{u.name}: {state[u.state]}, state {'given' if u.state_given else 'taken by default'}, "
+            f"{u.orientations} orientation(s) in the file; free group "
             f"{u.free_group}; averaged site {u.averaged_site_group} ({u.averaged_wyckoff})"
             + (f"; site of one orientation {u.orientation_site_group}" if u.orientation_site_group else "")
         )
         lines.append(f"  {u.statement}")
+        if u.readings:
+            lines.append(
+                "  internal lines under each state (IR / Raman): "
+                + "; ".join(f"{st} {ir} / {ra}" for st, ir, ra in u.readings)
+            )
         head = "site of one orientation" if u.state == "static" else "free unit"
         lines.append(table(["free", "modes", head], [[p.free, p.modes, str(p.site)] for p in u.pattern]))
     lines.append("")
@@ -359,6 +397,8 @@ def explanation_text(explanation) -> str:
         f"window {e.tolerance_cm1:g} cm-1; lattice region below {e.lattice_max_cm1:g} cm-1",
     ]
     out += [f"unit {u}" for u in e.units]
+    word = {"ordered": "ordered", "static": "static disorder", "dynamic": "rotor (dynamic disorder)"}
+    out.append(f"phase state: {word.get(e.state, 'units in different states')}")
     out.append("")
     out.append(f"{'line/cm-1':>10}  {'intensity':>10}  {'score':>5}  best candidate")
     for line in e.lines:

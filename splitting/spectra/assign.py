@@ -132,7 +132,10 @@ def _fundamental_candidates(x: float, ub: _UnitBands, tol: float, tech: str | No
         if b.factor_count:
             kind = "fundamental" if b.free_active else "site_activated"
             species = b.factor_labels
-            why = f"{where}: {b.factor_count} {word}-active factor-group component(s) {'/'.join(species)} predicted"
+            what = {"dynamic": "free-unit line(s) (rotor)", "static": "component(s) of one orientation's site"}.get(
+                ub.state, "factor-group component(s)"
+            )
+            why = f"{where}: {b.factor_count} {word}-active {what} {'/'.join(species)} predicted"
             if kind == "site_activated":
                 why += f"; inactive in the free unit, made active by the {ub.orbit.site_group} site"
         elif b.site_count:
@@ -205,8 +208,18 @@ def _isotopomer_lists(units: Sequence[_UnitBands], notes: list[str]) -> dict[str
     return out
 
 
-def _polar_species(prediction: Any, labels: Sequence[str], tech: str | None) -> tuple[str, ...]:
-    """Polar species among ``labels`` whose TO/LO pair the technique can see."""
+def _polar_species(prediction: Any, ub: _UnitBands, labels: Sequence[str], tech: str | None) -> tuple[str, ...]:
+    """Polar species among ``labels`` whose TO/LO pair the technique can see.
+
+    Factor-group species in an ordered phase; for a disordered unit, the species of the
+    group its lines are counted in (site of one orientation, or the free unit for a rotor).
+    """
+    from ..activity import activity_table
+
+    if ub.state != "ordered":
+        group = ub.orbit.free_group if ub.state == "dynamic" else ub.orbit.site_group
+        act = {a.label: a for a in activity_table(group)}
+        return tuple(lab for lab in labels if act[lab].ir_active and (tech != "raman" or act[lab].raman_active))
     out = []
     for lab in labels:
         s = prediction.species_by_label(lab)
@@ -232,7 +245,7 @@ def _lo_to_candidates(
     for ub in units:
         for b in ub.bands:
             idx = members.get((ub.orbit.formula, b.mode.name), [])
-            polar = _polar_species(prediction, b.factor_labels, tech)
+            polar = _polar_species(prediction, ub, b.factor_labels, tech)
             if not idx or not polar:
                 continue
             for y_i in idx:
@@ -270,6 +283,7 @@ def explain(
     tolerance_cm1: float = DEFAULT_TOLERANCE_CM1,
     alternatives: Sequence[Any] = (),
     lattice_max_cm1: float = LATTICE_MAX_CM1,
+    states: dict[str, str] | None = None,
 ) -> Explanation:
     """Rank candidate explanations for every measured line (method in the module docstring).
 
@@ -295,6 +309,11 @@ def explain(
         ``second_phase`` candidates and the band-count comparisons.
     lattice_max_cm1 : float
         Upper end of the lattice region, cm-1.
+    states : dict, optional
+        State of each unit (Hill formula, or ``"*"`` for all): ``"ordered"`` (default;
+        factor-group components), ``"static"`` (the site-group components of one
+        orientation) or ``"dynamic"`` (a rotor: the free unit's own lines). For a
+        disordered phase pass the one-orientation model as ``prediction``.
 
     Returns
     -------
@@ -320,7 +339,20 @@ def explain(
         if not (isinstance(value, (int, float)) and not isinstance(value, bool) and value > 0 and math.isfinite(value)):
             raise InputError(f"{name} must be a positive number of cm-1, got {value!r}")
     tol = float(tolerance_cm1)
-    units, notes = _resolve(prediction, modes, unit, tech)
+    from ..phases.disorder import ALL_UNITS, normalise_state
+
+    given = {k: normalise_state(v, where=f"state of {k}") for k, v in (states or {}).items()}
+    unit_states = {
+        u.formula: given.get(u.formula, given.get(ALL_UNITS, "ordered")) for u in prediction.units if u.correlation
+    }
+    units, notes = _resolve(prediction, modes, unit, tech, unit_states)
+    for f, st in unit_states.items():
+        if st != "ordered":
+            notes.append(
+                f"{f} taken as {'a rotor (free-unit lines)' if st == 'dynamic' else 'statically disordered'}: "
+                + ("components counted in the free unit" if st == "dynamic" else "site components of one orientation")
+                + "; librations give no sharp lines"
+            )
     if tech is None:
         notes.append("technique unknown: a component counts as active if it is IR or Raman active")
     if not units:
@@ -509,4 +541,5 @@ def explain(
         comparisons=tuple(comparisons),
         lattice_predicted=lattice_count,
         notes=tuple(notes),
+        states=tuple(sorted(unit_states.items())),
     )

@@ -60,9 +60,14 @@ class _UnitBands:
     orbit: Any  # UnitOrbit
     table: ModeTable
     bands: tuple[_Band, ...]
+    state: str = "ordered"
 
 
-def _unit_bands(prediction: Any, orbit: Any, table: ModeTable, technique: str | None) -> _UnitBands:
+def _unit_bands(
+    prediction: Any, orbit: Any, table: ModeTable, technique: str | None, state: str = "ordered"
+) -> _UnitBands:
+    """Bands of one unit; ``state`` ``"static"`` counts the site-group components of one
+    orientation, ``"dynamic"`` (rotor) the free unit's own (one per active fundamental)."""
     from ..activity import activity_table
 
     if orbit.free_group != table.point_group:
@@ -95,13 +100,24 @@ def _unit_bands(prediction: Any, orbit: Any, table: ModeTable, technique: str | 
             if _active(a.ir_active, a.raman_active, technique):
                 sl.append(lab)
                 sc += n
-        bands.append(_Band(mode, _active(ir, raman, technique), tuple(fl), fc, tuple(sl), sc))
-    return _UnitBands(orbit, table, tuple(bands))
+        free_active = _active(ir, raman, technique)
+        if state == "dynamic":
+            fl, fc = ([mode.species], 1) if free_active else ([], 0)
+            sl, sc = list(fl), fc
+        elif state == "static":
+            fl, fc = list(sl), sc
+        bands.append(_Band(mode, free_active, tuple(fl), fc, tuple(sl), sc))
+    return _UnitBands(orbit, table, tuple(bands), state)
 
 
 def _resolve(
-    prediction: Any, modes: ModeTable | str | os.PathLike[str] | None, unit: str | None, technique: str | None
+    prediction: Any,
+    modes: ModeTable | str | os.PathLike[str] | None,
+    unit: str | None,
+    technique: str | None,
+    states: dict[str, str] | None = None,
 ) -> tuple[list[_UnitBands], list[str]]:
+    states = states or {}
     notes: list[str] = []
     molecules = [u for u in prediction.units if u.kind == "molecule"]
     if isinstance(modes, (str, os.PathLike)):
@@ -126,7 +142,7 @@ def _resolve(
                 f"mode table {modes.name!r} ({modes.formula}) matches no molecular unit of "
                 f"{prediction.source} (units: {names})"
             )
-        out.append(_unit_bands(prediction, chosen[0], modes, technique))
+        out.append(_unit_bands(prediction, chosen[0], modes, technique, states.get(chosen[0].formula, "ordered")))
         return out, notes
     for orbit in molecules:
         try:
@@ -140,7 +156,7 @@ def _resolve(
                 f"is {orbit.free_group} here; pass a matching mode table"
             )
             continue
-        out.append(_unit_bands(prediction, orbit, table, technique))
+        out.append(_unit_bands(prediction, orbit, table, technique, states.get(orbit.formula, "ordered")))
     return out, notes
 
 

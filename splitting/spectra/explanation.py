@@ -206,6 +206,8 @@ class Explanation(Summarised):
         Lattice (translational + librational) frequencies active in the technique.
     notes : tuple of str
         Remarks (units without a mode table, ...).
+    states : tuple of (str, str)
+        State of every molecular unit used (``ordered``, ``static``, ``dynamic``).
     """
 
     phase: str
@@ -218,6 +220,13 @@ class Explanation(Summarised):
     comparisons: tuple[PhaseComparison, ...]
     lattice_predicted: int
     notes: tuple[str, ...]
+    states: tuple[tuple[str, str], ...] = ()
+
+    @property
+    def state(self) -> str:
+        """State of the phase: ``ordered``, ``static``, ``dynamic`` or ``mixed``."""
+        found = {st for _, st in self.states} or {"ordered"}
+        return found.pop() if len(found) == 1 else "mixed"
 
     @property
     def unexplained(self) -> tuple[Peak, ...]:
@@ -243,6 +252,8 @@ class Explanation(Summarised):
             "comparisons": [c.to_dict() for c in self.comparisons],
             "lattice_predicted": self.lattice_predicted,
             "notes": list(self.notes),
+            "state": self.state,
+            "unit_states": dict(self.states),
         }
 
 
