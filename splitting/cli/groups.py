@@ -35,16 +35,46 @@ def run_group(args: argparse.Namespace) -> int:
     return emit(args, payload, lambda: group_text(name))
 
 
+def _one_molecule(atoms, source: str):
+    """Positions of the one molecule in ``atoms``; a periodic cell of several units is refused.
+
+    A periodic file holding a single unit (a molecule in a box) gives that unit, made whole
+    across the cell faces; a crystal of several units is a job for ``predict``, never one
+    "molecule" made of the whole cell.
+    """
+    import numpy as np
+
+    if not bool(np.any(atoms.pbc)) or abs(float(np.linalg.det(atoms.cell[:]))) < 1e-9:
+        return atoms.positions
+    from ..crystal.names import unit_name
+    from ..crystal.units import find_units
+
+    units = find_units(atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers)
+    if len(units) == 1 and len(units[0].atoms) == len(atoms):
+        order = np.argsort(units[0].atoms)
+        return np.asarray(units[0].positions)[order]
+    counts: dict[str, int] = {}
+    for u in units:
+        counts[u.formula] = counts.get(u.formula, 0) + 1
+    listing = ", ".join(f"{unit_name(f)} x{n}" for f, n in counts.items())
+    raise InputError(
+        f"{source} is a periodic structure holding {len(units)} units ({listing}): run "
+        f"'splitting predict {source}' for the crystal (each unit's free group is in its output), "
+        "or give one molecule (e.g. an XYZ file)"
+    )
+
+
 def run_molecule(args: argparse.Namespace) -> int:
     from ..molecule.analysis import analyse_unit
     from ..readers import read_atoms
     from ..report.text import molecule_text
 
     atoms = read_atoms(args.file)
+    positions = _one_molecule(atoms, args.file)
     try:
         result = analyse_unit(
             atoms.numbers,
-            atoms.positions,
+            positions,
             tolerance=args.tolerance,
             point_group=args.point_group,
             symbols=atoms.get_chemical_symbols(),
