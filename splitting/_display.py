@@ -22,3 +22,19 @@ class Summarised:
         from .report.display import summary_html
 
         return summary_html(self)
+
+
+def file_name(source: str | None) -> str:
+    """The last part of a path, so no local folder shows in a figure or a report.
+
+    Examples
+    --------
+    >>> file_name("/home/someone/data/calcite.cif"), file_name(r"C:\\runs\\a.cif"), file_name("structure")
+    ('calcite.cif', 'a.cif', 'structure')
+    """
+    from pathlib import PurePosixPath, PureWindowsPath
+
+    if not source:
+        return ""
+    name = PureWindowsPath(source).name if "\\" in source else PurePosixPath(source).name
+    return name or source

@@ -168,7 +168,7 @@ def test_figure_artists(calcite, tmp_path):
     artists = explanation_figure(e, ax=ax)
     assert artists["spectrum"] and artists["bands"] and artists["labels"]
     texts = [a.get_text() for a in artists["labels"] if hasattr(a, "get_text")]
-    assert "?" in texts and any(t.startswith("nu1") for t in texts)
+    assert "?" in texts and any(t.startswith(r"$\nu_{1}$") for t in texts)
     spectrum = synthesize([1086.0, 712.0], [1.0, 0.4], 4.0, technique="raman")
     out = save_explanation_figure(e, tmp_path / "fig.png", spectrum=spectrum)
     assert out.read_bytes()[:4] == b"\x89PNG"

@@ -60,6 +60,73 @@ def _short(line: Any) -> str:
     return f"{best.band}{tag.get(best.kind, '')}"
 
 
+#: Figure size (inches) and the axes' place in it (fractions), fixed so labels can be measured.
+FIGURE_SIZE = (10.0, 4.8)
+_AXES_RECT = (0.075, 0.24, 0.905, 0.66)
+#: Colours of the figure, named in its legend.
+COLOURS = {
+    "line": "0.2",
+    "assigned": "tab:green",
+    "unexplained": "tab:red",
+    "component": "tab:blue",
+    "inactive": "0.5",
+    "outside": "0.6",
+}
+_FONT = 7.5
+
+
+def explanation_axes() -> Any:
+    """A new axes of the size and place :func:`explanation_figure` lays its labels out for."""
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=FIGURE_SIZE)
+    return fig.add_axes(_AXES_RECT)
+
+
+def _band_mathtext(name: str) -> str:
+    """``nu3`` -> ν₃ and ``T1u(2)`` -> T₁ᵤ(2) as mathtext, also inside ``nu1 + nu4``, ``2nu3``."""
+    import re
+
+    def one(m: re.Match[str]) -> str:
+        return rf"$\nu_{{{m[1]}{m[2]}}}$"
+
+    from .mulliken import mathtext
+
+    def species(m: re.Match[str]) -> str:
+        try:
+            return mathtext(m[1]) + m[2]
+        except InputError:
+            return m[0]
+
+    text = re.sub(r"(?<![A-Za-z])nu_?(\d+)([a-z]?)", one, name.replace("$", r"\$"))
+    return re.sub(r"(?<![\w$])([ABETGH]\d*[gu]?'{0,2})(\(\d+\))", species, text)
+
+
+def _label_text(line: Any) -> str:
+    return "?" if not line.candidates else _band_mathtext(_short(line))
+
+
+def _nonnegative_ticks(ax: Any, bottom: float, top: float) -> None:
+    from matplotlib.ticker import FixedLocator, MaxNLocator
+
+    ticks = MaxNLocator(nbins=5).tick_values(max(bottom, 0.0), top)
+    ax.yaxis.set_major_locator(FixedLocator([t for t in ticks if t >= 0 and t <= top * 1.0001]))
+
+
+def _place(ax: Any, text: Any, lo: float, hi: float) -> tuple[float, float]:
+    """Keep a label inside [lo, hi] (data x); return its measured x extent in data units."""
+    renderer = ax.figure._get_renderer()
+    inv = ax.transData.inverted()
+    bb = text.get_window_extent(renderer)
+    x0, x1 = (inv.transform((bb.x0, bb.y0))[0], inv.transform((bb.x1, bb.y0))[0])
+    shift = max(0.0, lo - x0) - max(0.0, x1 - hi)
+    if shift:
+        x = text.get_position()[0]
+        text.set_x(x + shift)
+        x0, x1 = x0 + shift, x1 + shift
+    return x0, x1
+
+
 def explanation_figure(
     explanation: Explanation, spectrum: Spectrum | None = None, *, ax: Any = None
 ) -> dict[str, list[Any]]:
@@ -72,25 +139,28 @@ def explanation_figure(
     spectrum : Spectrum or None
         The measured spectrum; ``None``: sticks at the measured lines.
     ax : matplotlib.axes.Axes or None
-        Where to draw; ``None``: a new figure (``matplotlib.figure.Figure``, no pyplot).
+        Where to draw; ``None``: a new figure (:func:`explanation_axes`, no pyplot). Labels
+        are measured in the axes as they are when drawn: resize the axes before, not after.
 
     Returns
     -------
     dict of str to list
         The artists: ``"spectrum"`` (line or sticks), ``"bands"`` (component ticks and
-        band names) and ``"labels"`` (assignment texts).
+        band names), ``"labels"`` (assignment texts and leaders) and ``"legend"``.
     """
-    if ax is None:
-        from matplotlib.figure import Figure
+    from matplotlib.lines import Line2D
 
-        ax = Figure(figsize=(10, 4.5)).add_subplot()
+    from .._display import file_name
+
+    if ax is None:
+        ax = explanation_axes()
     lines = explanation.lines
     positions = np.array([line.peak.position_cm1 for line in lines], dtype=float)
-    artists: dict[str, list[Any]] = {"spectrum": [], "bands": [], "labels": []}
+    artists: dict[str, list[Any]] = {"spectrum": [], "bands": [], "labels": [], "legend": []}
 
     if spectrum is not None:
         x, y = spectrum.wavenumber_cm1, spectrum.signal
-        artists["spectrum"] += ax.plot(x, y, color="0.2", lw=0.8)
+        artists["spectrum"] += ax.plot(x, y, color=COLOURS["line"], lw=0.8)
         heights = np.interp(positions, x, y) if positions.size else positions
         top = float(np.max(y)) if y.size else 1.0
         bottom = float(np.min(y)) if y.size else 0.0
@@ -98,29 +168,36 @@ def explanation_figure(
     else:
         heights = np.array([line.peak.intensity for line in lines], dtype=float)
         if positions.size:
-            artists["spectrum"].append(ax.vlines(positions, 0.0, heights, color="0.2", lw=1.0))
+            artists["spectrum"].append(ax.vlines(positions, 0.0, heights, color=COLOURS["line"], lw=1.0))
         top = float(heights.max()) if heights.size else 1.0
         bottom = 0.0
         lo = float(positions.min()) if positions.size else 0.0
         hi = float(positions.max()) if positions.size else 1.0
     span = max(top - bottom, 1e-12)
+    measured = (lo, hi)
     bands = [b for c in explanation.comparisons if c.phase == explanation.phase for b in c.bands]
-    if bands:
-        lo = min(lo, min(b.free_cm1 for b in bands) - explanation.tolerance_cm1)
-        hi = max(hi, max(b.free_cm1 for b in bands) + explanation.tolerance_cm1)
+    # bands far outside the measured range are left out (they say nothing about this spectrum)
+    reach = explanation.tolerance_cm1
+    shown = [b for b in bands if measured[0] - reach <= b.free_cm1 <= measured[1] + reach]
+    if shown:
+        lo = min(lo, min(b.free_cm1 for b in shown) - reach)
+        hi = max(hi, max(b.free_cm1 for b in shown) + reach)
     width = max(hi - lo, 1.0)
+    xlim = (lo - 0.03 * width, hi + 0.03 * width)
+    tick_lo, tick_hi = bottom - 0.12 * span, bottom - 0.04 * span
+    ax.set_xlim(*xlim)
+    ax.set_ylim(tick_lo - 0.42 * span, top + (0.2 + 0.1 * _LEVELS) * span)
 
     # predicted components, grouped by band
-    tick_lo, tick_hi = bottom - 0.12 * span, bottom - 0.04 * span
     half = min(explanation.tolerance_cm1 / 4.0, 0.01 * width)
-    for b in bands:
+    for b in shown:
         if not (b.predicted or b.predicted_site):
             continue
         n = b.predicted
         xs = [b.free_cm1] if n <= 1 else list(np.linspace(b.free_cm1 - half, b.free_cm1 + half, n))
         if n:
-            artists["bands"].append(ax.vlines(xs, tick_lo, tick_hi, color="tab:blue", lw=1.0))
-        text = f"{b.band} ×{n}" if n else f"{b.band} (inactive)"
+            artists["bands"].append(ax.vlines(xs, tick_lo, tick_hi, color=COLOURS["component"], lw=1.0))
+        text = f"{_band_mathtext(b.band)} ×{n}" if n else f"{_band_mathtext(b.band)} (inactive)"
         artists["bands"].append(
             ax.text(
                 b.free_cm1,
@@ -128,17 +205,16 @@ def explanation_figure(
                 text,
                 ha="center",
                 va="top",
-                fontsize=7,
-                color="tab:blue" if n else "0.5",
+                fontsize=_FONT - 0.5,
+                color=COLOURS["component"] if n else COLOURS["inactive"],
                 rotation=90,
             )
         )
 
     # assignment labels: neighbouring lines with the same best assignment share one label
-    # ("Hg(1) ×8") with a thin leader to each line; a label goes on the lowest level where
-    # it does not run into the previous label of that level (text width estimated per
-    # character: a little over one 7-point character on a 10-inch axis)
-    char = 0.009 * width
+    # ("Hg(1) ×8") with a thin leader to each line; a label goes on the lowest row where its
+    # measured extent does not run into the label before it on that row, and stays inside
+    # the axes
     order = [int(i) for i in np.argsort(positions, kind="stable")]
     groups: list[list[int]] = []
     for i in order:
@@ -146,25 +222,50 @@ def explanation_figure(
             groups[-1].append(i)
         else:
             groups.append([i])
+    gap = 0.004 * (xlim[1] - xlim[0])
     ends = [-np.inf] * _LEVELS
     for members in groups:
         xs = positions[members]
         xc = float(xs.mean())
-        text = _short(lines[members[0]]) + (f" ×{len(members)}" if len(members) > 1 else "")
-        half_text = 0.5 * len(text) * char
-        free = [k for k in range(_LEVELS) if xc - half_text > ends[k]]
+        text = _label_text(lines[members[0]]) + (f" ×{len(members)}" if len(members) > 1 else "")
+        color = COLOURS["unexplained"] if not lines[members[0]].candidates else COLOURS["assigned"]
+        label = ax.text(xc, top, text, ha="center", va="bottom", fontsize=_FONT, color=color)
+        x0, x1 = _place(ax, label, xlim[0], xlim[1])
+        free = [k for k in range(_LEVELS) if x0 > ends[k] + gap]
         level = free[0] if free else int(np.argmin(ends))
-        ends[level] = xc + half_text + char
-        base = top + (0.06 + 0.09 * level) * span  # one row per level above the whole spectrum
-        color = "tab:red" if not lines[members[0]].candidates else "tab:green"
+        ends[level] = x1
+        base = top + (0.06 + 0.1 * level) * span  # one row per level above the whole spectrum
+        label.set_y(base)
         artists["labels"].append(ax.vlines(xs, heights[members] + 0.02 * span, base, color=color, lw=0.4))
-        artists["labels"].append(ax.text(xc, base, text, ha="center", va="bottom", fontsize=7, color=color))
+        artists["labels"].append(label)
 
-    ax.set_xlim(lo - 0.02 * width, hi + 0.02 * width)
-    ax.set_ylim(tick_lo - 0.3 * span, top + (0.2 + 0.1 * _LEVELS) * span)
-    ax.set_xlabel("wavenumber / cm-1")
-    ax.set_ylabel("signal" if spectrum is not None else "intensity")
-    ax.set_title(f"{explanation.phase}: measured lines and predicted components", fontsize=9)
+    ax.set_xlabel("wavenumber / cm$^{-1}$")
+    ax.set_ylabel("signal" if spectrum is not None else "intensity (as given)")
+    _nonnegative_ticks(ax, bottom, top)
+    ax.spines[["top", "right"]].set_visible(False)
+    tech = {"ir": "IR", "raman": "Raman"}.get(explanation.technique or "", "measured")
+    ax.set_title(
+        f"{file_name(explanation.phase)}: {tech} lines and predicted components", fontsize=_FONT + 1.5, loc="left"
+    )
+    handles = [
+        Line2D([], [], color=COLOURS["line"], lw=1.0, label="measured"),
+        Line2D([], [], color=COLOURS["assigned"], lw=1.0, label="assigned (best candidate)"),
+        Line2D([], [], color=COLOURS["unexplained"], lw=1.0, label="unexplained (?)"),
+        Line2D([], [], color=COLOURS["component"], lw=1.0, label="active components of a band (number, not positions)"),
+    ]
+    if any(not b.predicted for b in shown if b.predicted_site):
+        handles.append(Line2D([], [], color=COLOURS["inactive"], lw=1.0, label="band inactive in the crystal"))
+    artists["legend"].append(
+        ax.legend(
+            handles=handles,
+            loc="upper center",
+            bbox_to_anchor=(0.5, -0.16),
+            ncol=3,
+            fontsize=_FONT,
+            frameon=False,
+            handlelength=1.5,
+        )
+    )
     return artists
 
 
@@ -180,20 +281,16 @@ def save_explanation_figure(
     InputError
         Unknown suffix or a folder that does not exist.
     """
-    from matplotlib.figure import Figure
-
     from .._io import atomic_write_bytes
 
     target = Path(path)
     fmt = FIGURE_FORMATS.get(target.suffix.lower())
     if fmt is None:
         raise InputError(f"{target}: unknown figure format {target.suffix!r}; use one of {', '.join(FIGURE_FORMATS)}")
-    fig = Figure(figsize=(10, 4.5))
-    ax = fig.add_subplot()
+    ax = explanation_axes()
     explanation_figure(explanation, spectrum, ax=ax)
-    fig.tight_layout()
     buffer = io.BytesIO()
-    fig.savefig(buffer, format=fmt, dpi=dpi)
+    ax.figure.savefig(buffer, format=fmt, dpi=dpi, bbox_inches="tight", pad_inches=0.1)
     return atomic_write_bytes(target, buffer.getvalue())
 
 

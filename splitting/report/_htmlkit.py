@@ -4,7 +4,6 @@ from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
 from html import escape
-from pathlib import PurePath, PurePosixPath, PureWindowsPath
 from typing import TYPE_CHECKING
 
 from ..plot.mulliken import html as species_html
@@ -14,20 +13,6 @@ if TYPE_CHECKING:  # pragma: no cover
 
 MARK_IR = '<span class="mark ir" role="img" aria-label="IR active" title="IR active"></span>'
 MARK_RAMAN = '<span class="mark raman" role="img" aria-label="Raman active" title="Raman active"></span>'
-
-
-def file_name(source: str | None) -> str:
-    """The last part of a path, so no local folder ever shows on the page.
-
-    Examples
-    --------
-    >>> file_name("/home/someone/data/calcite.cif"), file_name(r"C:\\runs\\a.cif"), file_name("structure")
-    ('calcite.cif', 'a.cif', 'structure')
-    """
-    if not source:
-        return ""
-    name: PurePath = PureWindowsPath(source) if "\\" in source else PurePosixPath(source)
-    return name.name or source
 
 
 def rep_html(rep: Representation) -> str:

@@ -13,9 +13,10 @@ from collections.abc import Mapping, Sequence
 from html import escape
 from typing import TYPE_CHECKING, Any
 
+from .._display import file_name
 from ..plot.mulliken import formula_html, hermann_mauguin_html, schoenflies_html
 from ..plot.mulliken import html as species_html
-from ._htmlkit import MARK_IR, MARK_RAMAN, file_name, geometry_html, rep_html, table
+from ._htmlkit import MARK_IR, MARK_RAMAN, geometry_html, rep_html, table
 
 if TYPE_CHECKING:  # pragma: no cover
     from ..crystal.results import CrystalPrediction, UnitOrbit
@@ -292,12 +293,11 @@ def assignment_section(explanations: Sequence[Explanation], figures: Any = None,
             f"{e.lattice_max_cm1:g} cm<sup>&minus;1</sup> ({e.lattice_predicted} lattice frequencies active).</p>"
         )
         if figures is not None:
-            from matplotlib.figure import Figure
+            from ..plot.explain import explanation_axes, explanation_figure
 
-            from ..plot.explain import explanation_figure
-
-            fig = Figure(figsize=(10, 4.5))
-            explanation_figure(e, ax=fig.add_subplot())
+            ax = explanation_axes()
+            explanation_figure(e, ax=ax)
+            fig = ax.figure
             out.append(
                 f'<figure class="explain">{figures.svg(fig)}<figcaption>{tech} lines of {src} with their best '
                 "assignments; ticks below the baseline mark the active components of each band.</figcaption></figure>"
