@@ -405,7 +405,10 @@ def explanation_text(explanation) -> str:
         p = line.peak
         if line.candidates:
             best = line.candidates[0]
-            out.append(f"{p.position_cm1:10.1f}  {p.intensity:10.4g}  {best.score:5.2f}  {best.label}")
+            sp = line.species
+            which = f"  -> {sp[0]}" if line.species_decided else (f"  -> {'/'.join(sp)}?" if sp else "")
+            pol = f" [{p.polarisation}]" if p.polarisation else ""
+            out.append(f"{p.position_cm1:10.1f}  {p.intensity:10.4g}  {best.score:5.2f}  {best.label}{which}{pol}")
             out.append(f"{'':30}{best.reason}")
             for other in line.candidates[1:3]:
                 out.append(f"{'':30}or {other.label} ({other.score:.2f})")

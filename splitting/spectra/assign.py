@@ -208,6 +208,70 @@ def _isotopomer_lists(units: Sequence[_UnitBands], notes: list[str]) -> dict[str
     return out
 
 
+#: Kinds whose species are factor-group species of the phase explained (the ones a
+#: polarisation restricts and that give a line its factor-group species).
+_FACTOR_KINDS = ("fundamental", "site_activated", "lo_to", "lattice", "overtone", "combination")
+
+
+def _geometry_species(prediction: Any, text: str, tech: str | None, where: str) -> tuple[str, frozenset[str]] | None:
+    """Factor-group species a polarisation / geometry label lets through, or ``None`` if it says nothing.
+
+    Raman: a scattering geometry in the notation of Damen, Porto and Tell (``z(xx)-z``) or a
+    bare tensor element (``xx``, ``yz``): the species whose Raman tensor has that element
+    (:meth:`~splitting.crystal.results.CrystalPrediction.seen_in`). IR: an electric-field
+    direction ``x``, ``y`` or ``z`` (also ``E||z``, ``E//z``): the species with that IR
+    component. Other labels (``p``, ``dp``, ``unpolarised``) restrict nothing.
+    """
+    import re
+
+    t = text.strip().lower().replace(" ", "")
+    ir = re.fullmatch(r"(?:e(?:\|\||//|∥))?([xyz])", t)
+    if ir:
+        if tech == "raman":
+            raise InputError(f"{where}: polarisation {text!r} is an IR field direction, but the lines are Raman")
+        k = ir.group(1)
+        return "ir", frozenset(s.label for s in prediction.species if k in "".join(s.ir))
+    pair = re.fullmatch(r"([xyz])([xyz])", t)
+    if pair:
+        i, j = pair.groups()
+        k = next(c for c in "zyx" if c not in (i, j))
+        t = f"{k}({i}{j})-{k}"
+    if "(" in t:
+        if tech == "ir":
+            raise InputError(f"{where}: polarisation {text!r} is a Raman geometry, but the lines are IR")
+        try:
+            seen = prediction.seen_in(t)
+        except InputError as exc:
+            raise InputError(f"{where}: {exc}") from None
+        return "raman", frozenset(lab for lab, _ in seen)
+    return None
+
+
+def _restrict(cands: list[Candidate], seen: frozenset[str], phase: str, ordered: set[str]) -> list[Candidate]:
+    """Keep, of each factor-group candidate of the phase, the species the geometry sees; drop it if none."""
+    out = []
+    for c in cands:
+        if c.phase != phase or c.kind not in _FACTOR_KINDS or (c.unit and c.unit not in ordered):
+            out.append(c)
+            continue
+        kept = tuple(lab for lab in c.species if lab in seen)
+        if not kept:
+            continue
+        if kept != c.species:
+            c = Candidate(
+                c.kind,
+                c.unit,
+                c.band,
+                kept,
+                c.predicted_cm1,
+                c.score,
+                c.reason + f"; the geometry sees {'/'.join(kept)}",
+                c.phase,
+            )
+        out.append(c)
+    return out
+
+
 def _polar_species(prediction: Any, ub: _UnitBands, labels: Sequence[str], tech: str | None) -> tuple[str, ...]:
     """Polar species among ``labels`` whose TO/LO pair the technique can see.
 
@@ -502,6 +566,20 @@ def explain(
                     else c
                     for c in found[i]
                 ]
+
+    # a polarisation / geometry column restricts each line to the species that geometry sees
+    ordered_units = {f for f, st in unit_states.items() if st == "ordered"}
+    used = 0
+    for i, p in enumerate(lines):
+        if not p.polarisation:
+            continue
+        g = _geometry_species(prediction, p.polarisation, tech, f"line at {p.position_cm1:g} cm-1")
+        if g is None:
+            continue
+        used += 1
+        found[i] = _restrict(found[i], g[1], phase, ordered_units)
+    if used:
+        notes.append(f"{used} line(s) restricted to the species their polarisation / geometry sees")
 
     explained = []
     for p, cands in zip(lines, found, strict=True):

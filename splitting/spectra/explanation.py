@@ -88,12 +88,28 @@ class LineExplanation:
         """Label of the best candidate, or ``"unexplained"``."""
         return self.candidates[0].label if self.candidates else "unexplained"
 
+    @property
+    def species(self) -> tuple[str, ...]:
+        """Factor-group species the best candidate leaves for this line (empty if not one of the crystal's)."""
+        if not self.candidates:
+            return ()
+        best = self.candidates[0]
+        factor = ("fundamental", "site_activated", "lo_to", "lattice", "overtone", "combination")
+        return best.species if best.kind in factor else ()
+
+    @property
+    def species_decided(self) -> bool:
+        """True when the data leave exactly one factor-group species for the line."""
+        return len(self.species) == 1
+
     def to_dict(self) -> dict[str, Any]:
         """Plain, JSON-ready dictionary of the fields."""
         return {
             "peak": self.peak.to_dict(),
             "explained": self.explained,
             "best": self.label,
+            "assigned_species": list(self.species),
+            "species_decided": self.species_decided,
             "candidates": [c.to_dict() for c in self.candidates],
         }
 
