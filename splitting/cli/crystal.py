@@ -4,7 +4,9 @@ from __future__ import annotations
 
 import argparse
 
+from ..errors import InputError
 from ._shared import crystal_options, disorder_options, emit, json_option, options, states, warn
+from .estimate import estimate_options, estimates_for
 
 
 def run_predict(args: argparse.Namespace) -> int:
@@ -12,6 +14,8 @@ def run_predict(args: argparse.Namespace) -> int:
     from ..report.text import prediction_text
 
     chosen = states(args)
+    if (args.disordered or chosen) and args.estimate:
+        raise InputError("--estimate needs an ordered structure; it cannot be combined with --disordered or --state")
     if args.disordered or chosen:
         from ..phases.disorder import predict_disordered
         from ..report.text import disordered_text
@@ -20,7 +24,11 @@ def run_predict(args: argparse.Namespace) -> int:
         warn(dis.warnings)
         return emit(args, dis.to_dict(), lambda: disordered_text(dis))
     result = predict(args.file, options(args))
+    estimates = estimates_for(args, [args.file])
+    est = estimates[0] if estimates else None
     payload = result.to_dict()
+    if est is not None:
+        payload["estimate"] = est.to_dict()
     seen = [(g, result.seen_in(g)) for g in args.geometry or []]
     if seen:
         payload["geometries"] = [
@@ -28,7 +36,7 @@ def run_predict(args: argparse.Namespace) -> int:
         ]
 
     def text() -> str:
-        out = prediction_text(result)
+        out = prediction_text(result, est)
         ax = result.factor_axes
         for g, sp in seen:
             shown = ", ".join(f"{lab} ({n})" for lab, n in sp) or "nothing (no allowed Raman component)"
@@ -57,5 +65,6 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
         "with a warning giving what each state predicts)",
     )
     disorder_options(pr)
+    estimate_options(pr, "add a column of model wavenumbers to the tables")
     json_option(pr)
     pr.set_defaults(run=run_predict)

@@ -17,6 +17,7 @@ from ._shared import (
     states,
     warn,
 )
+from .estimate import estimate_options, estimates_for
 
 
 def run_compare(args: argparse.Namespace) -> int:
@@ -31,7 +32,13 @@ def run_compare(args: argparse.Namespace) -> int:
     per = phase_states(args, list(args.files), list(labels))
     seq = compare_phases(args.files, labels, options(args), phase_states=per)
     warn(w for ph in seq.phases for w in (ph.disorder.warnings if ph.disorder else ()))
-    return emit(args, seq.to_dict(), lambda: sequence_text(seq))
+    if args.estimate and not all(ph.ordered for ph in seq.phases):
+        raise InputError("--estimate needs ordered structures; a disordered phase has no model estimate")
+    estimates = estimates_for(args, args.files)
+    payload = seq.to_dict()
+    if estimates is not None:
+        payload["estimates"] = [e.to_dict() for e in estimates]
+    return emit(args, payload, lambda: sequence_text(seq, estimates))
 
 
 def run_lower(args: argparse.Namespace) -> int:
@@ -75,6 +82,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     c.add_argument("files", nargs="+", help="structure files, upper (e.g. warmest) phase first")
     c.add_argument("--labels", nargs="+", metavar="LABEL", help="phase names, e.g. '300 K' '90 K'")
     disorder_options(c)
+    estimate_options(c, "add columns of model wavenumbers, one per phase")
     crystal_options(c)
     json_option(c)
     c.set_defaults(run=run_compare)

@@ -6,6 +6,7 @@ import argparse
 
 from ..errors import InputError
 from ._shared import crystal_options, disorder_options, emit, json_option, line_options, options, states
+from .estimate import estimate_options, estimates_for
 
 
 def run_explain(args: argparse.Namespace) -> int:
@@ -14,6 +15,7 @@ def run_explain(args: argparse.Namespace) -> int:
 
     if args.peaks is None and args.spectrum is None:
         raise InputError("give the measured lines with --peaks FILE or a raw spectrum with --spectrum FILE")
+    estimates = estimates_for(args, [args.file])
     result = explain_files(
         args.file,
         args.peaks,
@@ -24,6 +26,7 @@ def run_explain(args: argparse.Namespace) -> int:
         tolerance_cm1=args.window,
         options=options(args),
         states=states(args),
+        estimate=estimates[0] if estimates else None,
     )
     code = emit(args, result.to_dict(), lambda: explanation_text(result))
     if args.output and not args.json:
@@ -47,6 +50,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     line_options(ex, window=40.0, what="from the band it is assigned to")
     disorder_options(ex)
     ex.add_argument("-o", "--output", metavar="FIGURE", help="write a figure (.svg, .pdf or .png)")
+    estimate_options(ex, "rank closer matches to its lines higher")
     crystal_options(ex)
     json_option(ex)
     ex.set_defaults(run=run_explain)

@@ -43,3 +43,25 @@ def estimate_text(est: Estimate, *, internal: bool = True) -> str:
         out.append(f"  warning: {w}")
     out.append("  every number above is a model estimate, not a measurement")
     return "\n".join(out)
+
+
+def band_cell(est: Estimate, unit: str, free_species: str) -> str:
+    """Model positions of the bands of one free species of a unit, compact (table cells).
+
+    ``"nu2 604.8-610.7"`` (lowest and highest component) per fundamental of that species,
+    joined by ``"; "``; ``"-"`` when the estimate has none.
+    """
+    out = []
+    for b in sorted(
+        (b for b in est.bands if b.unit == unit and b.free_species == free_species), key=lambda b: b.free_cm1
+    ):
+        ws = [w for _, w in b.components]
+        lo, hi = min(ws), max(ws)
+        out.append(f"{b.band} {lo:.1f}" + (f"-{hi:.1f}" if hi - lo >= 0.05 else ""))
+    return "; ".join(out) or "-"
+
+
+def lattice_cell(est: Estimate, species: str | None = None) -> str:
+    """Model wavenumbers (cm-1, whole numbers) of the lattice lines, of one species or all."""
+    ws = [ln.wavenumber_cm1 for ln in est.lattice_lines() if species is None or ln.species == species]
+    return ", ".join(f"{w:.0f}" for w in ws) or "-"

@@ -305,6 +305,7 @@ def explain_files(
     tolerance_cm1: float = DEFAULT_TOLERANCE_CM1,
     options: Any = None,
     states: dict[str, str] | None = None,
+    estimate: Any = None,
 ) -> Explanation:
     """Read the files, explain the lines, and optionally save the figure.
 
@@ -336,6 +337,8 @@ def explain_files(
         formula). A file with partial occupancies is read as a disordered phase: its
         one-orientation model is used with the state given, or static disorder by
         default (with a note saying what each state predicts).
+    estimate : splitting.dynamics.Estimate, optional
+        Model estimate of the structure: closer matches rank higher.
 
     Raises
     ------
@@ -381,7 +384,13 @@ def explain_files(
         prediction = predict(structure, options)
         chosen = {}
     result = explain(
-        prediction, peak_list, modes=table, technique=technique, tolerance_cm1=tolerance_cm1, states=chosen
+        prediction,
+        peak_list,
+        modes=table,
+        technique=technique,
+        tolerance_cm1=tolerance_cm1,
+        states=chosen,
+        estimate=estimate,
     )
     if extra:
         import dataclasses

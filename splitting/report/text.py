@@ -163,8 +163,14 @@ def _name(formula: str) -> str:
     return unit_name(formula)
 
 
-def prediction_text(pred) -> str:
-    """Readable report of a :class:`~splitting.crystal.results.CrystalPrediction`."""
+def prediction_text(pred, estimate=None) -> str:
+    """Readable report of a :class:`~splitting.crystal.results.CrystalPrediction`.
+
+    With a model ``estimate`` (:class:`~splitting.dynamics.results.Estimate`) the correlation
+    and species tables get a column of model wavenumbers, the model named beneath.
+    """
+    if estimate is not None:
+        from ..dynamics.text import band_cell, lattice_cell
     sg = pred.space_group
     ax = pred.factor_axes
     lines = [
@@ -209,12 +215,12 @@ def prediction_text(pred) -> str:
             f"Correlation for {u.name}: {u.free_group} -> {u.site_group} (site {u.wyckoff}; "
             f"site axes x = {sa['x']}, y = {sa['y']}, z = {sa['z']}) -> {pred.factor_group}"
         )
-        lines.append(
-            table(
-                ["free", "modes", "site", "factor group (per mode)"],
-                [[c.free, c.modes, str(c.site), str(c.factor)] for c in u.correlation],
-            )
-        )
+        headers = ["free", "modes", "site", "factor group (per mode)"]
+        rows = [[c.free, c.modes, str(c.site), str(c.factor)] for c in u.correlation]
+        if estimate is not None:
+            headers.append("model cm-1 (estimate)")
+            rows = [[*r, band_cell(estimate, u.formula, c.free)] for r, c in zip(rows, u.correlation, strict=True)]
+        lines.append(table(headers, rows))
         lines.append(f"  translations: {u.translations};  librations: {u.librations}")
     lines.append("")
     lines.append(f"Factor-group species (k = 0); counts are distinct frequencies; acoustic: {pred.acoustic}")
@@ -234,9 +240,10 @@ def prediction_text(pred) -> str:
                 "polar" if s.polar else "",
             ]
         )
-    lines.append(
-        table(["species", "dim", "internal", "transl.", "librat.", "acoustic", "optical", "IR", "Raman", ""], rows)
-    )
+        if estimate is not None:
+            rows[-1].append(lattice_cell(estimate, s.label))
+    headers = ["species", "dim", "internal", "transl.", "librat.", "acoustic", "optical", "IR", "Raman", ""]
+    lines.append(table(headers + (["lattice cm-1 (estimate)"] if estimate is not None else []), rows))
     t = pred.totals()
     lines.append("")
     lines.append(f"  Γ3N = {pred.gamma_3n}  (whole-cell count, checked against the unit-by-unit sum)")
@@ -253,11 +260,21 @@ def prediction_text(pred) -> str:
     if pred.centrosymmetric:
         lines.append("  centrosymmetric factor group: no frequency is both IR and Raman active (mutual exclusion)")
     lines.append("  inelastic neutron scattering: every mode is allowed")
+    if estimate is not None:
+        lines.append(
+            f"  estimate columns: {estimate.model.removeprefix('model: ')}; uncertainty: {estimate.uncertainty_rule}"
+        )
     return "\n".join(lines)
 
 
-def sequence_text(seq) -> str:
-    """Readable report of a :class:`~splitting.phases.compare.PhaseSequence`."""
+def sequence_text(seq, estimates=None) -> str:
+    """Readable report of a :class:`~splitting.phases.compare.PhaseSequence`.
+
+    With one model estimate per phase (``estimates``) the band table gets a column of model
+    wavenumbers per phase, and the lattice modes their model values.
+    """
+    if estimates is not None:
+        from ..dynamics.text import band_cell, lattice_cell
     lines = ["Phases"]
     rows = []
     for ph in seq.phases:
@@ -295,9 +312,13 @@ def sequence_text(seq) -> str:
     lines.append("")
     lines.append("Bands (components per fundamental; IR / Raman counts)")
     headers = ["unit", "band", *[ph.label for ph in seq.phases]]
+    if estimates is not None:
+        headers += [f"model cm-1, {ph.label}" for ph in seq.phases]
     rows = []
     for b in seq.bands:
         rows.append([_name(b.unit), b.band, *[f"{s.text()}  [IR {s.ir}, R {s.raman}]" for s in b.states]])
+        if estimates is not None:
+            rows[-1] += [band_cell(e, b.unit, b.band) for e in estimates]
     lines.append(table(headers, rows))
     remarks = [f"  {_name(b.unit)} {b.band}: {r}" for b in seq.bands for r in b.remarks]
     if remarks:
@@ -309,6 +330,10 @@ def sequence_text(seq) -> str:
     for ph in seq.phases:
         lines.append(f"  {ph.label}: {ph.lattice()['text']}")
     lines += [f"  {r}" for r in seq.lattice_remarks]
+    if estimates is not None:
+        for ph, e in zip(seq.phases, estimates, strict=True):
+            lines.append(f"  {ph.label}, model estimate (cm-1): {lattice_cell(e)}")
+        lines.append(f"  model columns: {estimates[0].model.removeprefix('model: ')}")
     return "\n".join(lines)
 
 

@@ -348,6 +348,7 @@ def explain(
     alternatives: Sequence[Any] = (),
     lattice_max_cm1: float = LATTICE_MAX_CM1,
     states: dict[str, str] | None = None,
+    estimate: Any = None,
 ) -> Explanation:
     """Rank candidate explanations for every measured line (method in the module docstring).
 
@@ -378,6 +379,9 @@ def explain(
         factor-group components), ``"static"`` (the site-group components of one
         orientation) or ``"dynamic"`` (a rotor: the free unit's own lines). For a
         disordered phase pass the one-orientation model as ``prediction``.
+    estimate : splitting.dynamics.Estimate, optional
+        Model estimate of the same crystal: closer matches to its components and lattice
+        lines rank higher (:mod:`splitting.spectra.estimated`).
 
     Returns
     -------
@@ -567,6 +571,14 @@ def explain(
                     for c in found[i]
                 ]
 
+    if estimate is not None:
+        from .estimated import rescore
+
+        found = [
+            rescore(p.position_cm1, cands, estimate, tolerance_cm1=tol, technique=tech, phase=phase)
+            for p, cands in zip(lines, found, strict=True)
+        ]
+        notes.append(f"ranked with a model estimate ({estimate.model.removeprefix('model: ')})")
     # a polarisation / geometry column restricts each line to the species that geometry sees
     ordered_units = {f for f, st in unit_states.items() if st == "ordered"}
     used = 0
