@@ -61,7 +61,10 @@ def run_report(args: argparse.Namespace) -> int:
     loaded = load_phases(args)
     warn(w for ph in loaded for w in (ph.disorder.warnings if ph.disorder else ()))
     phases = [(phase_label(ph), ph.crystal) for ph in loaded]
-    write_report(args.output, phases, title=args.title, notes=[*(args.note or ()), *state_notes(loaded)])
+    estimates = estimates_for(args, args.files) or ()
+    write_report(
+        args.output, phases, title=args.title, notes=[*(args.note or ()), *state_notes(loaded)], estimates=estimates
+    )
     print(f"report written to {args.output}")
     return 0
 
@@ -112,6 +115,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     rp.add_argument("--title", help="title of the report")
     rp.add_argument("--note", action="append", metavar="TEXT", help="a note printed at the top; repeatable")
     disorder_options(rp)
+    estimate_options(rp, "add a section with the model's positions")
     crystal_options(rp)
     rp.set_defaults(run=run_report)
 

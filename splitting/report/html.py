@@ -265,6 +265,7 @@ def html_report(
     modes: Mapping[str, ModeTable] | None = None,
     explanations: Sequence[Explanation] = (),
     lowering: Lowering | None = None,
+    estimates: Sequence = (),
 ) -> str:
     """The whole report as one self-contained HTML document.
 
@@ -284,6 +285,9 @@ def html_report(
         Assignments of measured lines (:func:`splitting.spectra.assign.explain`) to show.
     lowering : Lowering, optional
         Candidate lower-symmetry phases (:func:`splitting.phases.lower.lower`) to show.
+    estimates : sequence of Estimate or None
+        Model estimates (:func:`splitting.dynamics.estimate`), one per prediction: a section
+        with the positions of the model (:mod:`splitting.report.html_estimate`).
 
     Returns
     -------
@@ -304,6 +308,11 @@ def html_report(
     across = _across(predictions, modes, figures) if len(predictions) > 1 else ""
     if across:
         toc += '<li><a href="#across">Across the phases</a></li>'
+    from .html_estimate import estimate_section
+
+    estimated = estimate_section(predictions, estimates, figures)
+    if estimated:
+        toc += '<li><a href="#estimate">Model estimate of the positions</a></li>'
     assigned = sections.assignment_section(explanations, figures)
     if assigned:
         toc += '<li><a href="#assignment">Assignment of the measured lines</a></li>'
@@ -346,6 +355,7 @@ def html_report(
             "<main>",
             *phases,
             across,
+            estimated,
             assigned,
             candidates,
             methods,
@@ -368,6 +378,7 @@ def write_report(
     modes: Mapping[str, ModeTable] | None = None,
     explanations: Sequence[Explanation] = (),
     lowering: Lowering | None = None,
+    estimates: Sequence = (),
 ) -> Path:
     """Write :func:`html_report` to ``path`` atomically (the suffix should be ``.html``).
 
@@ -381,5 +392,13 @@ def write_report(
         raise InputError(f"{target}: the report is HTML; give a file name ending in .html")
     return atomic_write_text(
         target,
-        html_report(predictions, title=title, notes=notes, modes=modes, explanations=explanations, lowering=lowering),
+        html_report(
+            predictions,
+            title=title,
+            notes=notes,
+            modes=modes,
+            explanations=explanations,
+            lowering=lowering,
+            estimates=estimates,
+        ),
     )
