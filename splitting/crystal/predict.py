@@ -29,7 +29,7 @@ from .results import Correlation, CrystalPrediction, FactorSpecies, UnitOrbit
 from .spacegroup import DEFAULT_CELL_TOLERANCE, CellSymmetry, analyse_cell
 from .units import DEFAULT_BOND_SCALE, Unit, find_units
 
-__all__ = ["Options", "predict", "predict_atoms"]
+__all__ = ["RETRY_TOLERANCES", "Options", "predict", "predict_atoms"]
 
 
 @dataclass(frozen=True)
@@ -95,19 +95,49 @@ def predict_atoms(
     *,
     source: str = "structure",
     free_cache: FreeUnitCache | None = None,
-    scan: bool = True,
+    scan: bool = False,
 ) -> CrystalPrediction:
     """As :func:`predict`, for an ``ase.Atoms`` object with a periodic cell.
 
-    ``free_cache`` shares free-unit analyses between calls (related phases, candidates).
+    One spglib search at ``options.tolerance`` decides the space group, and that one
+    decision governs the header, the factor group and every site.  ``free_cache`` shares
+    free-unit analyses between calls (related phases, candidates); ``scan`` also reports
+    the space groups at a tenth and ten times the tolerance (two more searches).  A result
+    that fails its own cross-checks raises :class:`~splitting.errors.BookkeepingError`
+    naming the tolerances (of :data:`RETRY_TOLERANCES`) at which the checks pass.
     """
     opts = options or Options()
     check_atom_count(len(atoms), opts.max_atoms)
-    cell = analyse_cell(
-        atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=opts.tolerance, scan=scan
-    )
-    pred = _predict(cell, units_of(cell, opts), opts, source, free_cache)
+    lattice, frac, numbers = atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers
+    cell = analyse_cell(lattice, frac, numbers, tolerance=opts.tolerance, scan=scan)
+    try:
+        pred = _predict(cell, units_of(cell, opts), opts, source, free_cache)
+    except BookkeepingError as exc:
+        raise BookkeepingError(f"{exc}; {_tolerances_that_pass(atoms, opts)}") from None
     return replace(pred, cell_parameters=tuple(float(v) for v in atoms.cell.cellpar()))
+
+
+#: tolerances (angstrom) tried when a prediction fails its own cross-checks
+RETRY_TOLERANCES = (1e-3, 3e-3, 1e-2, 3e-2, 0.1)
+
+
+def _tolerances_that_pass(atoms, opts: Options) -> str:
+    """Which of a few other space-group tolerances give a prediction that passes its checks."""
+    lattice, frac, numbers = atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers
+    passing = []
+    for t in RETRY_TOLERANCES:
+        if abs(t - opts.tolerance) < 1e-12:
+            continue
+        try:
+            cell = analyse_cell(lattice, frac, numbers, tolerance=t)
+            trial = replace(opts, tolerance=t)
+            _predict(cell, units_of(cell, trial), trial, "trial")
+        except SymmetryError:
+            continue
+        passing.append(f"--tolerance {t:g} ({cell.info.symbol})")
+    if not passing:
+        return "no tolerance of " + ", ".join(f"{t:g}" for t in RETRY_TOLERANCES) + " A passes either"
+    return "the checks pass at " + ", ".join(passing)
 
 
 def units_of(cell: CellSymmetry, opts: Options) -> tuple[Unit, ...]:

@@ -13,7 +13,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..defaults import DEFAULT_CELL_TOLERANCE
-from ..errors import InputError, SymmetryError
+from ..errors import BookkeepingError, InputError, SymmetryError
 
 __all__ = [
     "DEFAULT_CELL_TOLERANCE",
@@ -23,6 +23,10 @@ __all__ = [
     "crystal_system",
     "spglib_dataset",
 ]
+
+
+#: tolerance (angstrom) for look-ups on an idealised cell, whose symmetry is exact
+_EXACT = 1e-5
 
 
 @contextlib.contextmanager
@@ -90,7 +94,11 @@ class SpaceGroupInfo:
     tolerance : float
         Distance tolerance used (angstrom).
     other_tolerances : tuple of (float, int, str)
-        Looser and tighter tolerances tried, with the space group each gives.
+        Looser and tighter tolerances tried, with the space group each gives (empty unless
+        a scan was asked for).
+    largest_shift : float
+        Largest distance (angstrom) an atom moved when the cell was idealised to this
+        space group.
     """
 
     number: int
@@ -101,6 +109,7 @@ class SpaceGroupInfo:
     crystal_system: str
     tolerance: float
     other_tolerances: tuple[tuple[float, int, str], ...] = ()
+    largest_shift: float = 0.0
 
     @property
     def tolerance_sensitive(self) -> bool:
@@ -117,6 +126,7 @@ class SpaceGroupInfo:
             "point_group": self.point_group,
             "crystal_system": self.crystal_system,
             "tolerance_angstrom": self.tolerance,
+            "largest_shift_angstrom": round(self.largest_shift, 6),
             "other_tolerances": [
                 {"tolerance_angstrom": t, "number": n, "symbol": s} for t, n, s in self.other_tolerances
             ],
@@ -152,6 +162,13 @@ class CellSymmetry:
     sites_named : bool
         False for a cell built from operations alone (a candidate phase whose atoms do not
         show its lower symmetry): Wyckoff letters are then unknown.
+    given_lattice : numpy.ndarray, shape (3, 3) or None
+        The cell as given (rows a, b, c, angstrom), idealised to the space group found.
+    transformation : numpy.ndarray, shape (3, 3) or None
+        spglib's transformation matrix P: (a_s b_s c_s) = (a b c) P^-1, where a_s, b_s, c_s
+        are the standard (ITA) setting's basis.
+    origin_shift : numpy.ndarray, shape (3,) or None
+        spglib's origin shift p: x_s = P x + p.
     """
 
     info: SpaceGroupInfo
@@ -167,6 +184,9 @@ class CellSymmetry:
     site_symbols: tuple[str, ...] = field(repr=False)
     input_atoms: int = 0
     sites_named: bool = True
+    given_lattice: np.ndarray | None = field(default=None, repr=False)
+    transformation: np.ndarray | None = field(default=None, repr=False)
+    origin_shift: np.ndarray | None = field(default=None, repr=False)
 
     @property
     def cartesian(self) -> np.ndarray:
@@ -227,7 +247,8 @@ class CellSymmetry:
         """Wyckoff position (multiplicity and letter, e.g. ``"4a"``) and oriented site symbol of points.
 
         Where no atom sits at a point, a dummy atom of a new kind is placed on its orbit and
-        spglib is asked once for all points.
+        spglib's tables are read once for all points, on the idealised cell (exact symmetry,
+        so this makes no tolerance decision; the ``tolerance`` argument is kept for callers).
         """
         inv = np.linalg.inv(self.lattice)
         ratio = abs(np.linalg.det(self.conventional) / np.linalg.det(self.lattice))
@@ -251,7 +272,12 @@ class CellSymmetry:
             numbers.append(np.full(len(f), kind + n))
             count += len(f)
         if count > len(self.numbers):
-            ds = spglib_dataset(self.lattice, np.vstack(frac), np.concatenate(numbers), tolerance)
+            ds = spglib_dataset(self.lattice, np.vstack(frac), np.concatenate(numbers), _EXACT)
+            if int(ds.number) != self.info.number:
+                raise BookkeepingError(
+                    f"unit centres placed on the idealised cell give space group No. {ds.number}, "
+                    f"not No. {self.info.number}"
+                )
             wyck, sites = list(ds.wyckoffs), list(ds.site_symmetry_symbols)
         else:
             wyck, sites = list(self.wyckoffs), list(self.site_symbols)
@@ -268,15 +294,15 @@ class CellSymmetry:
         return bool(np.linalg.norm(d @ self.lattice) < tol)
 
 
-def _info(ds, tolerance: float, others) -> SpaceGroupInfo:
+def _info(ds, tolerance: float, others, largest_shift: float = 0.0) -> SpaceGroupInfo:
     import spglib
 
     with _quiet_spglib():
         t = spglib.get_spacegroup_type(ds.hall_number)
-    return _info_of_type(t, tolerance, others)
+    return _info_of_type(t, tolerance, others, largest_shift)
 
 
-def _info_of_type(t, tolerance: float, others=()) -> SpaceGroupInfo:
+def _info_of_type(t, tolerance: float, others=(), largest_shift: float = 0.0) -> SpaceGroupInfo:
     return SpaceGroupInfo(
         int(t.number),
         t.international_short,
@@ -286,6 +312,7 @@ def _info_of_type(t, tolerance: float, others=()) -> SpaceGroupInfo:
         crystal_system(int(t.number)),
         tolerance,
         tuple(others),
+        largest_shift,
     )
 
 
@@ -331,9 +358,15 @@ def cell_from_operations(
 
 
 def analyse_cell(
-    lattice, frac, numbers, *, tolerance: float = DEFAULT_CELL_TOLERANCE, scan: bool = True
+    lattice, frac, numbers, *, tolerance: float = DEFAULT_CELL_TOLERANCE, scan: bool = False
 ) -> CellSymmetry:
-    """Space group of a periodic structure and its primitive cell with operations.
+    """Space group of a periodic structure and its idealised primitive cell with operations.
+
+    One spglib search at ``tolerance`` decides the space group; everything else (the
+    primitive cell, the operations, the sites, the Wyckoff letters) follows from that one
+    dataset.  The cell is idealised to that decision: lattice metric and positions are
+    spglib's symmetrised standard cell, rotated back into the input frame, so that every
+    later step sees exact symmetry and no later step makes a tolerance decision of its own.
 
     Parameters
     ----------
@@ -346,45 +379,81 @@ def analyse_cell(
     tolerance : float
         spglib distance tolerance (angstrom).
     scan : bool
-        Also try tolerance / 10 and tolerance * 10 and report their space groups.
+        Also search at tolerance / 10 and tolerance * 10 and report their space groups
+        (two more searches; off by default).
     """
-    if tolerance <= 0:
+    if not tolerance > 0:
         raise InputError("the symmetry tolerance must be positive")
     lattice = np.asarray(lattice, dtype=float)
     frac = np.asarray(frac, dtype=float)
     numbers = np.asarray(numbers, dtype=int)
     ds = spglib_dataset(lattice, frac, numbers, tolerance)
-    # primitive cell in the input frame
-    plat = np.asarray(ds.primitive_lattice, dtype=float)
-    mapping = np.asarray(ds.mapping_to_primitive)
-    n_prim = int(mapping.max()) + 1
-    first = np.array([int(np.flatnonzero(mapping == k)[0]) for k in range(n_prim)])
-    cart = frac[first] @ lattice
-    pfrac = cart @ np.linalg.inv(plat)
-    pfrac -= np.floor(pfrac + 1e-9)
-    pnum = numbers[first]
-    if n_prim == len(numbers) and np.allclose(plat, lattice, atol=1e-8):
-        pds = ds  # the input is already primitive
-    else:
-        pds = spglib_dataset(plat, pfrac, pnum, tolerance)
-    if len(pds.rotations) != len({r.tobytes() for r in np.asarray(pds.rotations)}):
-        raise SymmetryError("the primitive cell found by spglib still has pure translations")  # pragma: no cover
-    inv_plat = np.linalg.inv(plat)
-    rot_frac = np.asarray(pds.rotations, dtype=float)
-    rots = np.einsum("ji,njk,kl->nil", plat, rot_frac, inv_plat.T)  # L^T W L^-T
-    trans = np.asarray(pds.translations, dtype=float) @ plat
-    # conventional cell in the input frame: (a_s b_s c_s) = (a b c) P^-1
-    conv_cols = lattice.T @ np.linalg.inv(np.asarray(ds.transformation_matrix, dtype=float))
     others = []
     if scan:
         for t in (tolerance / 10, tolerance * 10):
             try:
-                o = spglib_dataset(plat, pfrac, pnum, t)
+                o = spglib_dataset(lattice, frac, numbers, t)
                 others.append((t, int(o.number), str(o.international)))
             except SymmetryError:
                 others.append((t, 0, "none"))
-    info = _info(ds, tolerance, others)
-    for arr in (plat, pfrac, pnum, rots, trans, conv_cols):
+    return _cell_of_dataset(ds, lattice, frac, numbers, tolerance, others)
+
+
+def _cell_of_dataset(ds, lattice, frac, numbers, tolerance: float, others) -> CellSymmetry:
+    """The idealised primitive cell and factor-group operations of one spglib dataset."""
+    import spglib
+
+    p_mat = np.asarray(ds.transformation_matrix, dtype=float)
+    shift = np.asarray(ds.origin_shift, dtype=float)
+    turn = np.asarray(ds.std_rotation_matrix, dtype=float)
+    # idealised conventional (standard-setting) basis in the input frame: rows a_s, b_s, c_s
+    conv = (turn.T @ np.asarray(ds.std_lattice, dtype=float).T).T
+    # (a_s b_s c_s) = (a b c) P^-1, so the idealised input basis is (a_s b_s c_s) P
+    given = (conv.T @ p_mat).T
+    raw_conv = (lattice.T @ np.linalg.inv(p_mat)).T
+    m = np.asarray(ds.primitive_lattice, dtype=float) @ np.linalg.inv(raw_conv)
+    m_round = np.round(m * 12) / 12
+    if np.abs(m - m_round).max() > 1e-3:  # pragma: no cover - spglib's primitive is a sublattice
+        raise BookkeepingError("spglib's primitive cell is not a sublattice of its conventional cell")
+    plat = m_round @ conv
+    inv_plat = np.linalg.inv(plat)
+    # primitive atoms: spglib's symmetrised standard positions, back in the input frame
+    std_map = np.asarray(ds.std_mapping_to_primitive)
+    in_map = np.asarray(ds.mapping_to_primitive)
+    n_prim = int(in_map.max()) + 1
+    first_std = np.array([int(np.flatnonzero(std_map == k)[0]) for k in range(n_prim)])
+    first_in = np.array([int(np.flatnonzero(in_map == k)[0]) for k in range(n_prim)])
+    cart = (np.asarray(ds.std_positions, dtype=float)[first_std] - shift) @ conv
+    pfrac = cart @ inv_plat
+    pfrac -= np.floor(pfrac + 1e-9)
+    pnum = np.asarray(ds.std_types)[first_std].astype(int)
+    if not np.array_equal(pnum, numbers[first_in]):  # pragma: no cover - spglib keeps the species
+        raise BookkeepingError("spglib's standard cell does not keep the species of the input")
+    # how far the decision moved the atoms (modulo the primitive lattice)
+    d = (frac @ lattice - pfrac[in_map] @ plat) @ inv_plat
+    d -= np.round(d)
+    largest_shift = float(np.linalg.norm(d @ plat, axis=1).max()) if len(d) else 0.0
+    # operations: the exact ones of the standard setting (one per rotation part) in the input frame
+    with _quiet_spglib():
+        db = spglib.get_symmetry_from_database(int(ds.hall_number))
+    w_std = np.asarray(db["rotations"], dtype=float)
+    t_std = np.asarray(db["translations"], dtype=float)
+    keep: dict[bytes, int] = {}
+    for k, w in enumerate(np.rint(w_std).astype(int)):
+        keep.setdefault(w.tobytes(), k)
+    idx = sorted(keep.values())
+    w_std, t_std = w_std[idx], t_std[idx]
+    rots = np.einsum("ji,njk,kl->nil", conv, w_std, np.linalg.inv(conv).T)  # C^T W C^-T
+    trans = (np.einsum("nij,j->ni", w_std, shift) + t_std - shift) @ conv
+    rot_frac = np.einsum("ij,njk,lk->nil", inv_plat.T, rots, plat)  # Lp^-T R Lp^T
+    if np.abs(rot_frac - np.rint(rot_frac)).max() > 1e-6:  # pragma: no cover
+        raise BookkeepingError("an operation of the space group is not a symmetry of the primitive lattice")
+    rot_frac = np.rint(rot_frac)
+    trans_frac = trans @ inv_plat
+    info = _info(ds, tolerance, others, largest_shift)
+    wyckoffs = tuple(str(ds.wyckoffs[i]) for i in first_in)
+    sites = tuple(str(ds.site_symmetry_symbols[i]) for i in first_in)
+    for arr in (plat, pfrac, pnum, rots, trans, rot_frac, trans_frac, conv, given):
         arr.setflags(write=False)
     return CellSymmetry(
         info=info,
@@ -394,9 +463,12 @@ def analyse_cell(
         rotations=rots,
         translations=trans,
         frac_rotations=rot_frac,
-        frac_translations=np.asarray(pds.translations, dtype=float),
-        conventional=conv_cols.T.copy(),
-        wyckoffs=tuple(pds.wyckoffs),
-        site_symbols=tuple(pds.site_symmetry_symbols),
+        frac_translations=trans_frac,
+        conventional=conv,
+        wyckoffs=wyckoffs,
+        site_symbols=sites,
         input_atoms=len(numbers),
+        given_lattice=given,
+        transformation=p_mat.copy(),
+        origin_shift=shift.copy(),
     )

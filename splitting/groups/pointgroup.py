@@ -164,7 +164,9 @@ class PointGroup(SpeciesList):
             vals = n[list(s.irreps)]
             v = vals[0]
             if abs(v.imag) > 1e-6 or abs(v.real - round(v.real)) > 1e-6 or round(v.real) < 0:
-                raise BookkeepingError(f"{what} does not reduce to whole multiplicities in {self.name}: {n}")
+                raise BookkeepingError(
+                    f"{what} does not reduce to whole multiplicities in {self.name} ({s.label}: {v.real:.4f})"
+                )
             if len(vals) == 2 and abs(vals[0] - vals[1]) > 1e-6:
                 raise BookkeepingError(f"{what} is not a real representation of {self.name}")
             counts.append((s.label, round(v.real)))
