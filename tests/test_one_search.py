@@ -165,5 +165,5 @@ def test_failed_check_with_no_passing_tolerance(monkeypatch: pytest.MonkeyPatch)
         raise BookkeepingError("invented failure")
 
     monkeypatch.setattr(predict_module, "_predict", always_fails)
-    with pytest.raises(BookkeepingError, match="no tolerance of .* passes either"):
+    with pytest.raises(BookkeepingError, match=r"no tolerance of .* passes either"):
         predict(STRUCTURES / "calcite.cif")
