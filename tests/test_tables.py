@@ -46,7 +46,7 @@ def test_calcite_counts(calcite):
 
 def test_correlation_csv(calcite):
     rows = _csv(correlation_table(calcite, "CO3", "csv"))
-    assert rows[0] == ["free (D3h)", "dim", "modes", "site 6a (D3)", "factor group (D3d)"]
+    assert rows[0] == ["free CO3^2- (D3h)", "dim", "modes", "site 6a (D3)", "factor group (D3d)"]
     unit = calcite.unit("CO3")
     assert [r[0] for r in rows[1:]] == [c.free for c in unit.correlation]
     for r, c in zip(rows[1:], unit.correlation, strict=True):
@@ -92,7 +92,7 @@ def test_latex_species(c60):
 def test_latex_correlation(calcite):
     text = correlation_table(calcite, "CO3", "latex")
     body = _latex_structure(text, 5)
-    assert r"free ($D_{3h}$)" in text and r"site 6a ($D_{3}$)" in text
+    assert r"free CO$_{3}$$^{2-}$ ($D_{3h}$)" in text and r"site 6a ($D_{3}$)" in text
     assert body[0] == r"$A_{1}'$ & 1 & 1 & $A_{1}$ & $A_{1g} + A_{1u}$ \\"
     assert body[2] == r"$A_{2}''$ & 1 & 1 & $A_{2}$ & $A_{2g} + A_{2u}$ \\"
 

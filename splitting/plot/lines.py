@@ -602,7 +602,7 @@ def _headings(fig, ax, phases, units, columns, lefts, widths, top, small) -> lis
             title = name
         else:
             sub = f"{schoenflies_mathtext(u0.free_group)}"
-            title = f"free {formula_mathtext(u0.formula)}"
+            title = f"free {formula_mathtext(u0.name)}"
         cx = x0 + widths[k] / 2
         head = ax.annotate(
             title,

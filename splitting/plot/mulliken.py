@@ -284,37 +284,48 @@ def hermann_mauguin_html(symbol: str) -> str:
 
 
 # ------------------------------------------------------------------ formulas
-_FORMULA = re.compile(r"([A-Z][a-z]?)(\d*)")
+_FORMULA = re.compile(r"([A-Z][a-z]?|\(|\))(\d*)")
 
 
-def _formula_parts(formula: str) -> list[tuple[str, str]]:
-    text = formula.replace(" ", "")
+def _formula_parts(formula: str) -> tuple[list[tuple[str, str]], str]:
+    """(symbol or parenthesis, count) pairs and the charge text (``"2-"``, ``"+"``, ``""``)."""
+    from ..crystal.names import _split_charge
+
+    body, charge = _split_charge(formula.strip())
+    text = body.replace(" ", "")
     parts = _FORMULA.findall(text)
-    if "".join(e + n for e, n in parts) != text:
-        raise InputError(f"{formula!r} is not a chemical formula (expected e.g. CO3, C10H8)")
-    return parts
+    if not parts or "".join(e + n for e, n in parts) != text:
+        raise InputError(f"{formula!r} is not a chemical formula (expected e.g. CO3, C10H8, SO4^2-)")
+    if charge is None or charge == 0:
+        return parts, ""
+    sign = "+" if charge > 0 else "-"
+    return parts, (f"{abs(charge)}{sign}" if abs(charge) > 1 else sign)
 
 
 def formula_mathtext(formula: str) -> str:
-    """Mathtext of a formula with subscript counts.
+    """Mathtext of a formula or unit name with subscript counts and a superscript charge.
 
     Examples
     --------
-    >>> formula_mathtext("CO3"), formula_mathtext("Ca")
-    ('CO$_{3}$', 'Ca')
+    >>> formula_mathtext("CO3"), formula_mathtext("Ca"), formula_mathtext("SO4^2-")
+    ('CO$_{3}$', 'Ca', 'SO$_{4}$$^{2-}$')
     """
-    return "".join(e + (f"$_{{{n}}}$" if n else "") for e, n in _formula_parts(formula))
+    parts, charge = _formula_parts(formula)
+    text = "".join(e + (f"$_{{{n}}}$" if n else "") for e, n in parts)
+    return text + (f"$^{{{charge}}}$" if charge else "")
 
 
 def formula_html(formula: str) -> str:
-    """HTML of a formula with ``<sub>`` counts.
+    """HTML of a formula or unit name with ``<sub>`` counts and a ``<sup>`` charge.
 
     Examples
     --------
-    >>> formula_html("C10H8")
-    'C<sub>10</sub>H<sub>8</sub>'
+    >>> formula_html("C10H8"), formula_html("NH4+")
+    ('C<sub>10</sub>H<sub>8</sub>', 'NH<sub>4</sub><sup>+</sup>')
     """
-    return "".join(e + (f"<sub>{n}</sub>" if n else "") for e, n in _formula_parts(formula))
+    parts, charge = _formula_parts(formula)
+    text = "".join(e + (f"<sub>{n}</sub>" if n else "") for e, n in parts)
+    return text + (f"<sup>{charge.replace('-', '&minus;')}</sup>" if charge else "")
 
 
 def formula_latex(formula: str) -> str:

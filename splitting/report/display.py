@@ -27,7 +27,7 @@ def _plural(n: int, word: str) -> str:
 def _units(pred: Any) -> str:
     parts = []
     for u in pred.units:
-        parts.append(f"{u.formula} ×{u.count} at {u.wyckoff} (site {u.site_group})")
+        parts.append(f"{u.name} ×{u.count} at {u.wyckoff} (site {u.site_group})")
     return ", ".join(parts) or "none"
 
 

@@ -24,6 +24,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from .._io import atomic_write_text
+from ..crystal.names import unit_name
 from ..errors import InputError
 from ..plot.mulliken import formula_html, hermann_mauguin_html, schoenflies_html
 from ..plot.mulliken import html as species_html
@@ -92,7 +93,7 @@ def _units(pred: CrystalPrediction) -> str:
     for u in pred.units:
         rows.append(
             [
-                formula_html(u.formula),
+                formula_html(u.name),
                 escape(u.kind),
                 schoenflies_html(u.free_group) if u.free_group else "&ndash;",
                 escape(u.wyckoff),
@@ -145,19 +146,19 @@ def _correlation(pred: CrystalPrediction, u: UnitOrbit, figures: _Figures) -> st
     art = correlation_diagram(pred, u)
     svg = figures.svg(art.figure)
     caption = (
-        f"Correlation diagram of {formula_html(u.formula)}: free group {schoenflies_html(u.free_group)} "
+        f"Correlation diagram of {formula_html(u.name)}: free group {schoenflies_html(u.free_group)} "
         f"&rarr; site group {schoenflies_html(u.site_group)} (Wyckoff {escape(u.wyckoff)}) &rarr; factor "
         f"group {schoenflies_html(pred.factor_group)}. {_MARK_IR} IR active, {_MARK_RAMAN} Raman active; "
         "small grey numbers give the degeneracy, numbers on lines the multiplicity."
     )
     lattice = (
-        f"<p>Lattice modes from {formula_html(u.formula)}: translations {_rep_html(u.translations)}; "
+        f"<p>Lattice modes from {formula_html(u.name)}: translations {_rep_html(u.translations)}; "
         f"librations {_rep_html(u.librations)}.</p>"
     )
     sa = _axes_html(u.site_axes)
     axes = f"<p class=muted>Site-group labels use {sa}.</p>" if sa else ""
     return (
-        f"<h3>Correlation: {formula_html(u.formula)}</h3>{axes}{table}"
+        f"<h3>Correlation: {formula_html(u.name)}</h3>{axes}{table}"
         f'<figure class="diagram">{svg}<figcaption>{caption}</figcaption></figure>{lattice}'
     )
 
@@ -242,13 +243,13 @@ def _across(
         tables = {t.name: t for _, p in predictions for u, t in sections.unit_tables(p, modes) if u.formula == formula}
         art = line_pattern(predictions, formula, modes=next(iter(tables.values())) if len(tables) == 1 else None)
         caption = (
-            f"Bands of {formula_html(formula)} across the phases: each bar is one factor-group species, "
+            f"Bands of {formula_html(unit_name(formula))} across the phases: each bar is one factor-group species, "
             "the number before it counts its components (length grows with the degeneracy); "
             f"{_MARK_IR} IR active, {_MARK_RAMAN} Raman active. No frequencies are predicted: every bar "
             "sits at the free-unit value."
         )
         out.append(
-            f"<h3>{formula_html(formula)}</h3><figure class=pattern>{figures.svg(art.figure)}"
+            f"<h3>{formula_html(unit_name(formula))}</h3><figure class=pattern>{figures.svg(art.figure)}"
             f"<figcaption>{caption}</figcaption></figure>"
         )
     bands = sections.bands_across(predictions, modes)

@@ -14,6 +14,7 @@ from html import escape
 from typing import TYPE_CHECKING, Any
 
 from .._display import file_name
+from ..crystal.names import unit_name
 from ..plot.mulliken import formula_html, hermann_mauguin_html, schoenflies_html
 from ..plot.mulliken import html as species_html
 from ._htmlkit import MARK_IR, MARK_RAMAN, geometry_html, rep_html, table
@@ -173,7 +174,7 @@ def bands_section(pred: CrystalPrediction, modes: Mapping[str, ModeTable]) -> st
                 + ([f'<span class="note">{escape(m.note)}</span>' if m.note else ""] if noted else [])
             )
         out.append(
-            f"<h3>Bands of {formula_html(u.formula)}</h3>"
+            f"<h3>Bands of {formula_html(u.name)}</h3>"
             + table(
                 [
                     "band",
@@ -218,7 +219,7 @@ def bands_across(predictions: Sequence[tuple[str, CrystalPrediction]], modes: Ma
         heads = ["band", f"free ({schoenflies_html(t.point_group)})", "&nu; / cm<sup>&minus;1</sup>"]
         heads += [f"{escape(lab)} ({schoenflies_html(p.factor_group)})" for lab, p in predictions]
         out.append(
-            f"<h3>Bands of {formula_html(formula)}, phase by phase</h3>"
+            f"<h3>Bands of {formula_html(unit_name(formula))}, phase by phase</h3>"
             + table(
                 heads,
                 rows,
@@ -352,7 +353,8 @@ def assignment_section(explanations: Sequence[Explanation], figures: Any = None,
                     ["band", "free", "&nu; / cm<sup>&minus;1</sup>", "observed", "crystal", "site only"],
                     crow,
                     numeric=(2, 3, 4, 5),
-                    caption=f"Lines per band of {formula_html(comp.unit)}: observed, predicted by the factor group "
+                    caption=f"Lines per band of {formula_html(unit_name(comp.unit))}: observed, "
+                    "predicted by the factor group "
                     f"{schoenflies_html(comp.factor_group)} of {escape(file_name(comp.phase))}, and by the site "
                     f"group {schoenflies_html(comp.site_group)} alone (a phase with orientational disorder); "
                     f"misfit {comp.mismatch} (site only: {comp.site_mismatch}).",

@@ -218,17 +218,17 @@ def correlation_table(prediction: CrystalPrediction, unit: str | UnitOrbit | Non
     u = select_unit(prediction, unit)
     free, site = u.free_group or "C1", u.site_group
     headers = [
-        f"free ({free})",
+        f"free {u.name} ({free})",
         "dim",
         "modes",
         f"site {u.wyckoff} ({site})",
         f"factor group ({prediction.factor_group})",
     ]
     if fmt == "latex":
-        from ..plot.mulliken import schoenflies_latex
+        from ..plot.mulliken import formula_latex, schoenflies_latex
 
         headers = [
-            _Cell(f"free ({schoenflies_latex(free)})"),
+            _Cell(f"free {formula_latex(u.name)} ({schoenflies_latex(free)})"),
             "dim",
             "modes",
             _Cell(f"site {escape_latex(u.wyckoff)} ({schoenflies_latex(site)})"),
