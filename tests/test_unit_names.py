@@ -21,7 +21,6 @@ from splitting.errors import InputError
 from splitting.phases.lower import lower, parse_observed
 
 S = Path(__file__).resolve().parent.parent / "structures"
-BAD = Path("/work/shared/bad-inputs/R32_silently_ignored_options")
 
 
 @pytest.mark.parametrize(
@@ -84,7 +83,7 @@ def test_prediction_names_units_and_keeps_hill():
     assert p.unit("NH4+").free_group_source == "given"
 
 
-def test_R32_silently_ignored_options(run_cli):
+def test_R32_silently_ignored_options(run_cli, tmp_path):
     # R32 (bad-inputs): unknown units in --free-group/--rotor/--disorder, a negative observed
     # count and an unreadable mode table must each be a one-line error
     cases = [
@@ -97,14 +96,17 @@ def test_R32_silently_ignored_options(run_cli):
         ["lower", S / "co2_Pa-3.cif", "--observed", "T1u:ir=-1"],
         ["lower", S / "calcite.cif", "--observed", "Xg:ir=2"],
         ["lower", S / "calcite.cif", "--observed", "nu7:ir=2"],
-        ["draw", S / "calcite.cif", "--unit", "SO4", "-o", "never.svg"],
+        ["draw", S / "calcite.cif", "--unit", "SO4", "-o", tmp_path / "never.svg"],
+        ["draw", S / "calcite.cif", "--band", "Xg", "-o", tmp_path / "never.svg"],
+        ["explain", S / "calcite.cif", "--peaks", S / "calcite.cif", "--rotor", "Nope"],
     ]
-    if (BAD / "syntax_error.toml").exists():
-        cases.append(["lower", S / "calcite.cif", "--observed", "Eu:ir=2", "--modes", BAD / "syntax_error.toml"])
+    broken = tmp_path / "syntax_error.toml"
+    broken.write_text("name = \n[[mode\n")  # the reproducer's broken mode table
+    cases.append(["lower", S / "calcite.cif", "--observed", "Eu:ir=2", "--modes", broken])
     for argv in cases:
         code, out, err = run_cli(argv)
         assert code != 0 and out == "" and err.startswith("error: ") and err.count("\n") == 1, (argv, err)
-    assert not Path("never.svg").exists()
+    assert not (tmp_path / "never.svg").exists()
     code, out, err = run_cli(["predict", S / "calcite.cif", "--free-group", "CO3^2-=D3h", "--json"])
     assert code == 0
     (co3,) = [u for u in json.loads(out)["units"] if u["formula"] == "CO3"]
