@@ -15,6 +15,11 @@ __all__ = [
     "DEFAULT_MAX_INDEX",
     "DEFAULT_SPECTRUM_WIDTH",
     "DEFAULT_TOLERANCE",
+    "MAX_BOND_SCALE",
+    "MAX_CELL_TOLERANCE",
+    "MAX_CUTOFF",
+    "MAX_UNIT_TOLERANCE",
+    "MAX_WINDOW_CM1",
     "POTENTIAL_NAMES",
 ]
 
@@ -37,3 +42,19 @@ DEFAULT_CUTOFF = 12.0
 DEFAULT_SPECTRUM_WIDTH = 3.0
 #: names of the exp-6 parameter sets of the model estimate (splitting.dynamics.potential)
 POTENTIAL_NAMES = ("williams", "gavezzotti")
+
+# Upper bounds of the numeric options.  Beyond them an answer is either meaningless or
+# costs minutes: a symmetry tolerance of 1e6 angstrom makes every molecule linear, a bond
+# scale of 1e3 bonds every atom to every other.
+
+#: largest space-group distance tolerance, angstrom (beyond it atoms of a cell merge)
+MAX_CELL_TOLERANCE = 0.5
+#: largest free-unit symmetry tolerance, angstrom (four times the default; beyond it any
+#: molecule looks more symmetric than it is)
+MAX_UNIT_TOLERANCE = 1.0
+#: largest bond scale accepted: beyond it "bonds" reach past the second neighbours of most solids
+MAX_BOND_SCALE = 2.5
+#: largest distance between a measured line and a predicted band, cm-1
+MAX_WINDOW_CM1 = 500.0
+#: largest lattice-sum cut-off of the model estimate, angstrom (the sum grows as its cube)
+MAX_CUTOFF = 50.0

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from importlib import resources
 from pathlib import Path
 
-from ._io import atomic_write_text
+from ._io import atomic_folder, atomic_write_text
 from .errors import DataError
 
 __all__ = ["SCENARIO", "DemoOutputs", "run_demo"]
@@ -52,7 +52,24 @@ def _data(name: str) -> Path:
 
 
 def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
-    """Run the whole scenario and write report, figures, tables and JSON to ``out``."""
+    """Run the whole scenario and write report, figures, tables and JSON to ``out``.
+
+    The files are written into a temporary folder beside ``out`` and moved into place
+    together: after a failure (a full disk, say) there is no half-filled folder.  An
+    existing ``out`` is replaced only when it is empty or an earlier demo wrote it.
+
+    Raises
+    ------
+    OutputError
+        ``out`` is a file, a folder of other files, or cannot be written.
+    """
+    target = Path(out)
+    with atomic_folder(target) as tmp:
+        written = _run_demo_into(tmp)
+    return DemoOutputs(target.resolve(), tuple(target / p.name for p in written))
+
+
+def _run_demo_into(folder: Path) -> list[Path]:
     import matplotlib
 
     matplotlib.use("Agg")
@@ -71,8 +88,6 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
     from .spectra.counting import count_components
     from .spectra.measured import read_peaks
 
-    folder = Path(out)
-    folder.mkdir(parents=True, exist_ok=True)
     written: list[Path] = []
 
     def save_text(name: str, text: str) -> None:
@@ -171,4 +186,4 @@ def run_demo(out: str | Path = "demo-output") -> DemoOutputs:
         lowering=ranking,
     )
     written.append(report)
-    return DemoOutputs(folder.resolve(), tuple(written))
+    return written

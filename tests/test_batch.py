@@ -141,8 +141,8 @@ def test_command(folder: Path, tmp_path: Path, cluster: str, run_cli) -> None:
     [
         (["nowhere/*.cif"], "the pattern matches no file"),
         (["missing.cif"], "no such file or folder"),
-        (["{s}", "--timeout", "-1"], "the time and memory limits must be zero"),
-        (["{s}", "--part-size", "0"], "the part size must be at least 1"),
+        (["{s}", "--timeout", "-1"], "--timeout: -1 is out of range: give a number at least 0 and at most"),
+        (["{s}", "--part-size", "0"], "--part-size: 0 is out of range: give a whole number at least 1 and at most"),
     ],
 )
 def test_bad_input(argv: list[str], message: str, tmp_path: Path, structures_dir: Path, run_cli) -> None:

@@ -7,13 +7,25 @@ import json
 import os
 from collections.abc import Callable
 
-from ..defaults import DEFAULT_BOND_SCALE, DEFAULT_CELL_TOLERANCE, DEFAULT_MAX_ATOMS, DEFAULT_TOLERANCE
+from ..defaults import (
+    DEFAULT_BOND_SCALE,
+    DEFAULT_CELL_TOLERANCE,
+    DEFAULT_INPUT_MB,
+    DEFAULT_MAX_ATOMS,
+    DEFAULT_TOLERANCE,
+    MAX_BOND_SCALE,
+    MAX_CELL_TOLERANCE,
+    MAX_UNIT_TOLERANCE,
+    MAX_WINDOW_CM1,
+)
 from ..errors import InputError
+from ._parser import number
 
 __all__ = [
     "crystal_options",
     "disorder_options",
     "emit",
+    "input_limit_option",
     "json_option",
     "line_options",
     "load_phases",
@@ -40,17 +52,28 @@ def json_option(p: argparse.ArgumentParser, what: str = "print JSON instead of t
     p.add_argument("--json", action="store_true", help=what)
 
 
+def input_limit_option(p: argparse.ArgumentParser) -> None:
+    """``--max-input-mb``: the cap on what is read from one input file."""
+    p.add_argument(
+        "--max-input-mb",
+        type=number(low=0, high=1e6, unit="MB"),
+        metavar="MB",
+        help=f"read at most this much of one input file, decompressed (default {DEFAULT_INPUT_MB}, "
+        "or SPLITTING_MAX_INPUT_MB)",
+    )
+
+
 def crystal_options(p: argparse.ArgumentParser) -> None:
     """Options of every command that reads a crystal: tolerances, units, bonds, size limit."""
     p.add_argument(
         "--tolerance",
-        type=float,
+        type=number(low=0, high=MAX_CELL_TOLERANCE, unit="A"),
         default=DEFAULT_CELL_TOLERANCE,
         help=f"space-group distance tolerance, angstrom (default {DEFAULT_CELL_TOLERANCE})",
     )
     p.add_argument(
         "--unit-tolerance",
-        type=float,
+        type=number(low=0, high=MAX_UNIT_TOLERANCE, unit="A"),
         default=DEFAULT_TOLERANCE,
         help=f"free-unit symmetry tolerance, angstrom (default {DEFAULT_TOLERANCE})",
     )
@@ -74,7 +97,7 @@ def crystal_options(p: argparse.ArgumentParser) -> None:
     )
     p.add_argument(
         "--bond-scale",
-        type=float,
+        type=number(low=0, high=MAX_BOND_SCALE),
         default=DEFAULT_BOND_SCALE,
         help=f"bond when distance < scale x sum of covalent radii (default {DEFAULT_BOND_SCALE})",
     )
@@ -83,10 +106,11 @@ def crystal_options(p: argparse.ArgumentParser) -> None:
     )
     p.add_argument(
         "--max-atoms",
-        type=int,
+        type=number(low=1, high=10_000_000, integer=True, low_inclusive=True),
         default=DEFAULT_MAX_ATOMS,
         help=f"refuse cells of more atoms than this, before the symmetry search (default {DEFAULT_MAX_ATOMS})",
     )
+    input_limit_option(p)
 
 
 def options(args: argparse.Namespace):
@@ -235,7 +259,7 @@ def line_options(p: argparse.ArgumentParser, *, window: float, what: str) -> Non
     p.add_argument("--technique", choices=["ir", "raman"], help="what was measured (else read from the files)")
     p.add_argument(
         "--window",
-        type=float,
+        type=number(low=0, high=MAX_WINDOW_CM1, unit="cm-1"),
         default=window,
         help=f"largest distance (cm-1) of a line {what} (default {window:g})",
     )

@@ -6,8 +6,9 @@ import argparse
 import os
 import sys
 
-from ..defaults import DEFAULT_CUTOFF, DEFAULT_SPECTRUM_WIDTH, POTENTIAL_NAMES
+from ..defaults import DEFAULT_CUTOFF, DEFAULT_SPECTRUM_WIDTH, MAX_CUTOFF, POTENTIAL_NAMES
 from ..errors import InputError
+from ._parser import number
 from ._shared import crystal_options, emit, json_option, options
 
 
@@ -113,7 +114,10 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     )
     es.add_argument("--charge", action="append", metavar="FORMULA=Q", help="total charge of a unit; repeatable")
     es.add_argument(
-        "--cutoff", type=float, default=DEFAULT_CUTOFF, help=f"lattice-sum cut-off, angstrom (default {DEFAULT_CUTOFF})"
+        "--cutoff",
+        type=number(low=0, high=MAX_CUTOFF, unit="A (the lattice-sum cut-off)"),
+        default=DEFAULT_CUTOFF,
+        help=f"lattice-sum cut-off, angstrom (default {DEFAULT_CUTOFF})",
     )
     es.add_argument(
         "--scale-to-measured",
@@ -131,7 +135,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     )
     es.add_argument(
         "--width",
-        type=float,
+        type=number(low=0, high=999.999, unit="cm-1"),
         metavar="CM1",
         help=f"full width at half maximum of the Lorentzian of every simulated line, cm-1 "
         f"(default {DEFAULT_SPECTRUM_WIDTH:g})",

@@ -4,9 +4,10 @@ from __future__ import annotations
 
 import argparse
 
-from ..defaults import DEFAULT_TOLERANCE
-from ..errors import InputError, SplittingError
-from ._shared import emit, json_option
+from ..defaults import DEFAULT_TOLERANCE, MAX_UNIT_TOLERANCE
+from ..errors import BookkeepingError, InputError, SplittingError, SymmetryError
+from ._parser import number
+from ._shared import emit, input_limit_option, json_option
 
 
 def run_group(args: argparse.Namespace) -> int:
@@ -25,7 +26,12 @@ def run_group(args: argparse.Namespace) -> int:
 
         if "∞" in name:
             raise InputError("subgroup embeddings of linear groups are not enumerated; give a finite group")
-        embs = embeddings(name, args.to)
+        try:
+            embs = embeddings(name, args.to)
+        except BookkeepingError:
+            raise
+        except SymmetryError as exc:  # an unknown or non-subgroup --to is an input mistake
+            raise InputError(f"--to {args.to}: {exc}") from None
         return emit(
             args, {"group": name, "embeddings": [e.to_dict() for e in embs]}, lambda: embeddings_text(name, args.to)
         )
@@ -99,10 +105,11 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     m.add_argument("file", help="structure file (XYZ, or any format ase reads)")
     m.add_argument(
         "--tolerance",
-        type=float,
+        type=number(low=0, high=MAX_UNIT_TOLERANCE, unit="A"),
         default=DEFAULT_TOLERANCE,
         help=f"largest displacement of an atom from its symmetric position, angstrom (default {DEFAULT_TOLERANCE})",
     )
     m.add_argument("--point-group", metavar="NAME", help="use this subgroup of the detected group")
+    input_limit_option(m)
     json_option(m)
     m.set_defaults(run=run_molecule)

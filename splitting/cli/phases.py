@@ -6,6 +6,7 @@ import argparse
 
 from ..defaults import DEFAULT_MAX_INDEX
 from ..errors import InputError
+from ._parser import number
 from ._shared import (
     crystal_options,
     disorder_options,
@@ -90,7 +91,10 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     lo = sub.add_parser("lower", help="candidate lower-symmetry phases, ranked by observed line counts")
     lo.add_argument("file", help="ordered parent structure")
     lo.add_argument(
-        "--max-index", type=int, default=DEFAULT_MAX_INDEX, help=f"largest subgroup index (default {DEFAULT_MAX_INDEX})"
+        "--max-index",
+        type=number(low=2, high=10**6, integer=True, low_inclusive=True),
+        default=DEFAULT_MAX_INDEX,
+        help=f"largest subgroup index (default {DEFAULT_MAX_INDEX})",
     )
     lo.add_argument(
         "--observed",

@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 import sys
 
+from ._parser import number
 from ._shared import crystal_options, emit, json_option, options
 
 
@@ -39,10 +40,32 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     sc.add_argument("sources", nargs="+", help="folders, glob patterns ('db/**/*.cif'), list files (.txt) or files")
     sc.add_argument("-o", "--out", required=True, metavar="FOLDER", help="output folder (rerun to resume)")
     sc.add_argument("--scheduler", metavar="ADDRESS", help="a running Dask scheduler, e.g. tcp://host:8786")
-    sc.add_argument("--workers", type=int, metavar="N", help="local worker processes (default: one per core)")
-    sc.add_argument("--timeout", type=float, default=120.0, help="seconds per structure, 0 for none (default 120)")
-    sc.add_argument("--memory", type=int, default=4096, metavar="MIB", help="memory per structure (default 4096)")
-    sc.add_argument("--part-size", type=int, default=32, metavar="N", help="structures per committed part")
+    sc.add_argument(
+        "--workers",
+        type=number(low=1, high=1024, integer=True, low_inclusive=True),
+        metavar="N",
+        help="local worker processes (default: one per core)",
+    )
+    sc.add_argument(
+        "--timeout",
+        type=number(low=0, high=1e6, unit="s", low_inclusive=True, what="0 for none"),
+        default=120.0,
+        help="seconds per structure, 0 for none (default 120)",
+    )
+    sc.add_argument(
+        "--memory",
+        type=number(low=0, high=10**7, integer=True, low_inclusive=True, unit="MiB", what="0 for none"),
+        default=4096,
+        metavar="MIB",
+        help="memory per structure (default 4096)",
+    )
+    sc.add_argument(
+        "--part-size",
+        type=number(low=1, high=10**6, integer=True, low_inclusive=True),
+        default=32,
+        metavar="N",
+        help="structures per committed part",
+    )
     sc.add_argument("--quiet", action="store_true", help="no progress bar")
     crystal_options(sc)
     json_option(sc, "print the summary as JSON")

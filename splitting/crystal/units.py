@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..defaults import DEFAULT_BOND_SCALE
+from ..defaults import DEFAULT_BOND_SCALE, MAX_BOND_SCALE
 from ..errors import InputError
 from .neighbours import periodic_pairs
 
@@ -29,8 +29,6 @@ __all__ = [
     "parse_cutoffs",
 ]
 
-#: largest bond scale accepted: beyond it "bonds" reach past the second neighbours of most solids
-MAX_BOND_SCALE = 2.5
 #: largest explicit bond length accepted (angstrom); the longest covalent bonds are near 3 A
 MAX_BOND_LENGTH = 5.0
 

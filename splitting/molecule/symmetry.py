@@ -15,7 +15,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.spatial import cKDTree
 
-from ..defaults import DEFAULT_TOLERANCE
+from ..defaults import DEFAULT_TOLERANCE, MAX_UNIT_TOLERANCE
 from ..errors import InputError, SymmetryError
 from ..groups.identify import OrientedGroup, identify, molecular_preference, oriented
 
@@ -153,6 +153,11 @@ def find_symmetry(numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE, m
     >>> s.group.name
     'C2v'
     """
+    if not (np.isfinite(tolerance) and 0 < tolerance <= MAX_UNIT_TOLERANCE):
+        raise InputError(
+            f"the symmetry tolerance {tolerance:g} A is out of range: give a distance above 0 and at most "
+            f"{MAX_UNIT_TOLERANCE:g} A (beyond it any molecule looks more symmetric than it is)"
+        )
     numbers = np.asarray(numbers, dtype=int)
     pos_in = np.asarray(positions, dtype=float).reshape(-1, 3)
     _validate(numbers, pos_in)
