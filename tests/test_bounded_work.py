@@ -121,8 +121,8 @@ def test_absurd_cutoff_is_refused_before_the_search() -> None:
 @pytest.mark.parametrize(
     ("args", "words"),
     [
-        (["--bond-scale", "1e3"], "bond scale"),
-        (["--bond-scale", "inf"], "bond scale"),
+        (["--bond-scale", "1e3"], "bond-scale"),
+        (["--bond-scale", "inf"], "bond-scale"),
         (["--bond-scale", "nan"], "bond-scale"),
         (["--bond", "C-O=inf"], "C-O"),
         (["--bond", "C-O=nan"], "C-O"),
