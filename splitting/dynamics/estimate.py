@@ -22,7 +22,7 @@ from .freeunit import METHOD
 from .neutron import neutron_weight
 from .potential import DEFAULT_CUTOFF, PARAMETER_SETS
 from .results import BandEstimate, Estimate, Line
-from .species import atom_permutations, origin_weights, split_by_species
+from .species import atom_permutations, origin_weights, species_bases, split_by_species
 
 __all__ = ["EstimateOptions", "estimate", "estimate_atoms"]
 
@@ -153,12 +153,13 @@ def estimate_atoms(
     use_charges = mo.charges == "all" or (mo.charges == "auto" and charged)
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     perms = atom_permutations(cell, cm.positions)
+    bases = species_bases(cell, factor, perms, prediction.gamma_3n)
 
     def solve(ps):
         if progress:
             progress(f"dynamical matrix with the exp-6 set {ps.name!r}")
         dmat, energy = dynamical_matrix(cm, ps, cutoff=mo.cutoff, use_charges=use_charges)
-        return split_by_species(dmat, cell, factor, perms, prediction.gamma_3n), energy
+        return split_by_species(dmat, cell, factor, perms, prediction.gamma_3n, bases), energy
 
     blocks, energy = solve(params)
     elements = {e for u in units for e in u.symbols}

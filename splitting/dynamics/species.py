@@ -20,7 +20,7 @@ from ..errors import BookkeepingError
 from .constants import WAVENUMBER, ZERO_CM1
 from .freemodes import rigid_basis
 
-__all__ = ["SpeciesBlock", "atom_permutations", "origin_weights", "split_by_species"]
+__all__ = ["SpeciesBasis", "SpeciesBlock", "atom_permutations", "origin_weights", "species_bases", "split_by_species"]
 
 
 @dataclass(frozen=True, eq=False)
@@ -68,38 +68,67 @@ def _gamma(perm: np.ndarray, rot: np.ndarray) -> np.ndarray:
     return g.reshape(3 * n, 3 * n)
 
 
-def split_by_species(dmat: np.ndarray, cell, factor, perms: np.ndarray, gamma_3n) -> list[SpeciesBlock]:
-    """Diagonalise ``dmat`` species by species of the factor group."""
+@dataclass(frozen=True, eq=False)
+class SpeciesBasis:
+    """Orthonormal basis (3n, count * dimension) of the displacements of one factor-group species."""
+
+    label: str
+    dimension: int
+    count: int
+    basis: np.ndarray = field(repr=False)
+
+
+def species_bases(cell, factor, perms: np.ndarray, gamma_3n) -> list[SpeciesBasis]:
+    """The displacement subspace of every factor-group species (independent of the force constants).
+
+    The rank of each projector is its trace (exact for a projector) and is checked against
+    the engine's whole-cell count; the subspace is spanned by the projector applied to a
+    fixed random block of that many columns, orthonormalised (cost ~ (3n)^2 per species,
+    instead of diagonalising the (3n, 3n) projector).
+    """
     group = factor.oriented.group
     chars = group.characters_at_operations()  # (species, order)
     gammas = [_gamma(perms[k], cell.rotations[k]) for k in range(len(cell.rotations))]
     order = len(gammas)
-    blocks = []
+    rng = np.random.default_rng(20240611)
+    out = []
     for s_idx, sp in enumerate(group.species):
         dim_phys = round(chars[s_idx][0])
         d_irrep = dim_phys / len(sp.irreps)
         chi = chars[s_idx][factor.index]  # at each cell operation
         proj = sum(c * g for c, g in zip(chi, gammas, strict=True)) * (d_irrep / order)
         proj = (proj + proj.T) / 2
-        val, vec = np.linalg.eigh(proj)
-        basis = vec[:, val > 0.5]
+        rank = round(float(np.trace(proj)))
         expected = gamma_3n[sp.label] * dim_phys
-        if basis.shape[1] != expected:
+        if rank != expected:
             raise BookkeepingError(
-                f"{sp.label}: the displacements give {basis.shape[1]} dimensions, the whole-cell count {expected}"
+                f"{sp.label}: the displacements give {rank} dimensions, the whole-cell count {expected}"
             )
         if not expected:
             continue
-        lam, v = np.linalg.eigh(basis.T @ dmat @ basis)
-        full = basis @ v
-        count = expected // dim_phys
+        q, _ = np.linalg.qr(proj @ rng.standard_normal((len(proj), expected)))
+        q, _ = np.linalg.qr(proj @ q)  # once more through the projector: clean to rounding
+        if np.max(np.abs(proj @ q - q)) > 1e-8:
+            raise BookkeepingError(f"{sp.label}: the species subspace is not invariant")
+        out.append(SpeciesBasis(sp.label, dim_phys, expected // dim_phys, q))
+    return out
+
+
+def split_by_species(dmat: np.ndarray, cell, factor, perms: np.ndarray, gamma_3n, bases=None) -> list[SpeciesBlock]:
+    """Diagonalise ``dmat`` species by species of the factor group (``bases`` from :func:`species_bases`)."""
+    if bases is None:
+        bases = species_bases(cell, factor, perms, gamma_3n)
+    blocks = []
+    for b in bases:
+        lam, v = np.linalg.eigh(b.basis.T @ dmat @ b.basis)
+        full = b.basis @ v
         wn, vecs = [], []
-        for k in range(count):
-            sl = slice(k * dim_phys, (k + 1) * dim_phys)
+        for k in range(b.count):
+            sl = slice(k * b.dimension, (k + 1) * b.dimension)
             mean = float(np.mean(lam[sl]))
             wn.append(np.sign(mean) * WAVENUMBER * np.sqrt(abs(mean)))
             vecs.append(full[:, sl])
-        blocks.append(SpeciesBlock(sp.label, dim_phys, np.array(wn), vecs))
+        blocks.append(SpeciesBlock(b.label, b.dimension, np.array(wn), vecs))
     return blocks
 
 
