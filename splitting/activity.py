@@ -139,11 +139,52 @@ def _fmt_coeff(c: float, first: bool) -> str:
 
 
 def _polynomial(vec: np.ndarray) -> str:
+    if np.allclose(vec, (-1, -1, 2, 0, 0, 0)):
+        return "2z²-x²-y²"  # the usual spelling, the positive term first
     parts = []
     for c, name in zip(vec, _POLY_NAMES, strict=True):
         if abs(c) > 1e-8:
             parts.append(_fmt_coeff(c, not parts) + name)
     return "".join(parts)
+
+
+#: Quadratic functions in the forms the tables of the trade write them, tried in this order
+#: for the partners of a degenerate species (coefficients of x², y², z², xy, xz, yz).
+_USUAL_FORMS = (
+    (1, 1, 1, 0, 0, 0),
+    (1, -1, 0, 0, 0, 0),
+    (-1, -1, 2, 0, 0, 0),
+    (0, 0, 0, 1, 0, 0),
+    (0, 0, 0, 0, 1, 0),
+    (0, 0, 0, 0, 0, 1),
+)
+
+
+def _usual_basis(poly: np.ndarray) -> np.ndarray:
+    """The span of ``poly`` (rows) written with the usual functions where they lie in it.
+
+    A degenerate species gets x²-y², 2z²-x²-y², xy, xz, yz wherever these span it (the
+    forms of the standard character tables, e.g. Wilson, Decius and Cross, Appendix X);
+    rows that no usual function covers keep their reduced form.
+    """
+    if len(poly) < 2:
+        return poly
+    q, _ = np.linalg.qr(poly.T)  # orthonormal columns spanning the species
+    chosen: list[np.ndarray] = []
+    for c in _USUAL_FORMS:
+        v = np.array(c, dtype=float)
+        if np.linalg.norm(v - q @ (q.T @ v)) > 1e-8:
+            continue
+        trial = np.array([*chosen, v])
+        if np.linalg.matrix_rank(trial, tol=1e-8) == len(trial):
+            chosen.append(v)
+    for row in poly:
+        if len(chosen) == len(poly):
+            break
+        trial = np.array([*chosen, row])
+        if np.linalg.matrix_rank(trial, tol=1e-8) == len(trial):
+            chosen.append(row)
+    return np.array(chosen)
 
 
 def _tensor_pattern(rows: np.ndarray) -> tuple[tuple[str, ...], ...]:
@@ -186,6 +227,8 @@ def activity_table(name: str) -> tuple[SpeciesActivity, ...]:
         poly = image.copy()
         poly[:, 3:] *= np.sqrt(2)  # coordinates of the quadratic form (coefficient of xy, ...)
         poly = _rref(poly)
+        if s.dimension > 1:
+            poly = _usual_basis(poly)
         raman = tuple(_polynomial(v) for v in poly)
         tensor_rows = image.copy()
         tensor_rows[:, 3:] /= np.sqrt(2)

@@ -184,6 +184,7 @@ def _run_demo_into(folder: Path) -> list[Path]:
         modes={"C60": table},
         explanations=explained,
         lowering=ranking,
+        states=[seq.phases[0].state, seq.phases[1].state],
     )
     written.append(report)
     return written

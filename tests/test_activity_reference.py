@@ -208,3 +208,24 @@ def test_to_dict_is_plain():
     d = activity_of("D4h", "Eg").to_dict()
     assert json.loads(json.dumps(d)) == d
     assert d["raman"] == ["xz", "yz"] and d["ir"] == []
+
+
+@pytest.mark.parametrize(
+    ("group", "label", "forms"),
+    [
+        # E species in the forms of the standard character tables (Wilson, Decius and Cross,
+        # Molecular Vibrations, 1955, Appendix X; common practice in every later table)
+        ("Oh", "Eg", ("x²-y²", "2z²-x²-y²")),
+        ("Td", "E", ("x²-y²", "2z²-x²-y²")),
+        ("Th", "Eg", ("x²-y²", "2z²-x²-y²")),
+        ("D4h", "Eg", ("xz", "yz")),
+        ("D6h", "E2g", ("x²-y²", "xy")),
+        ("D3h", "E'", ("x²-y²", "xy")),
+        ("D3d", "Eg", ("x²-y²", "xy", "xz", "yz")),
+        ("Oh", "T2g", ("xy", "xz", "yz")),
+    ],
+)
+def test_degenerate_raman_functions_in_usual_forms(group, label, forms):
+    from splitting.activity import activity_of
+
+    assert activity_of(group, label).raman == forms

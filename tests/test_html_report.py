@@ -214,3 +214,11 @@ def test_report_with_assignment_and_candidates(c60_fcc, structures_dir):
     assert "Candidate lower-symmetry phases" in text
     # the assignment figure is inline too: correlation diagram + explanation figure
     assert c.tags["svg"] == 2
+
+
+def test_state_of_each_phase(c60, c60_fcc):
+    page = html_report([("fcc", c60_fcc), ("Pa-3", c60)], states=["dynamic", "ordered"])
+    text = "".join(_check(page).text)
+    assert "rotor / plastic phase" in text and "factor-group (Davydov) components" in text
+    with pytest.raises(InputError, match="one per phase"):
+        html_report([("fcc", c60_fcc)], states=["dynamic", "ordered"])

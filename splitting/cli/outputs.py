@@ -63,7 +63,12 @@ def run_report(args: argparse.Namespace) -> int:
     phases = [(phase_label(ph), ph.crystal) for ph in loaded]
     estimates = estimates_for(args, args.files) or ()
     write_report(
-        args.output, phases, title=args.title, notes=[*(args.note or ()), *state_notes(loaded)], estimates=estimates
+        args.output,
+        phases,
+        title=args.title,
+        notes=[*(args.note or ()), *state_notes(loaded)],
+        estimates=estimates,
+        states=[ph.state for ph in loaded],
     )
     print(f"report written to {args.output}")
     return 0

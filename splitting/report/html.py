@@ -57,10 +57,10 @@ def _point_group_hm(symbol: str) -> str:
     return re.sub(r"-(\d)", r'<span class="bar">\1</span>', escape(symbol))
 
 
-def _facts(pred: CrystalPrediction) -> str:
+def _facts(pred: CrystalPrediction, state: str | None = None) -> str:
     sg = pred.space_group
     centro = "centrosymmetric" if pred.centrosymmetric else "non-centrosymmetric"
-    items = sections.cell_items(pred)
+    items = sections.cell_items(pred, state)
     items += [
         (
             "cell",
@@ -205,8 +205,15 @@ def _species(pred: CrystalPrediction) -> str:
     return f'<h3>Factor-group species</h3>{table}<div class="summary">{summary}</div>'
 
 
-def _phase(index: int, label: str, pred: CrystalPrediction, figures: _Figures, modes: Mapping[str, ModeTable]) -> str:
-    out = [f'<section class="phase" id="phase-{index}">', f"<h2>{escape(label)}</h2>", _facts(pred)]
+def _phase(
+    index: int,
+    label: str,
+    pred: CrystalPrediction,
+    figures: _Figures,
+    modes: Mapping[str, ModeTable],
+    state: str | None = None,
+) -> str:
+    out = [f'<section class="phase" id="phase-{index}">', f"<h2>{escape(label)}</h2>", _facts(pred, state)]
     for w in pred.warnings:
         out.append(f'<div class="warning" role="note"><strong>Warning.</strong>{escape(w)}</div>')
     if pred.space_group.tolerance_sensitive:
@@ -267,6 +274,7 @@ def html_report(
     explanations: Sequence[Explanation] = (),
     lowering: Lowering | None = None,
     estimates: Sequence = (),
+    states: Sequence[str | None] = (),
 ) -> str:
     """The whole report as one self-contained HTML document.
 
@@ -289,6 +297,9 @@ def html_report(
     estimates : sequence of Estimate or None
         Model estimates (:func:`splitting.dynamics.estimate`), one per prediction: a section
         with the positions of the model (:mod:`splitting.report.html_estimate`).
+    states : sequence of str, optional
+        State of each phase in order (``"ordered"``, ``"static"``, ``"dynamic"``), shown
+        with what it means for the lines.
 
     Returns
     -------
@@ -305,7 +316,10 @@ def html_report(
     modes = dict(modes or {})
     heading = title or "Band splitting in the crystal: " + ", ".join(lab for lab, _ in predictions)
     toc = "".join(f'<li><a href="#phase-{k}">{escape(lab)}</a></li>' for k, (lab, _) in enumerate(predictions, 1))
-    phases = [_phase(k, lab, pred, figures, modes) for k, (lab, pred) in enumerate(predictions, 1)]
+    if states and len(states) != len(predictions):
+        raise InputError(f"{len(states)} states for {len(predictions)} phases; give one per phase")
+    given = list(states) or [None] * len(predictions)
+    phases = [_phase(k, lab, pred, figures, modes, given[k - 1]) for k, (lab, pred) in enumerate(predictions, 1)]
     across = _across(predictions, modes, figures) if len(predictions) > 1 else ""
     if across:
         toc += '<li><a href="#across">Across the phases</a></li>'
@@ -380,6 +394,7 @@ def write_report(
     explanations: Sequence[Explanation] = (),
     lowering: Lowering | None = None,
     estimates: Sequence = (),
+    states: Sequence[str | None] = (),
 ) -> Path:
     """Write :func:`html_report` to ``path`` atomically (the suffix should be ``.html``).
 
@@ -401,5 +416,6 @@ def write_report(
             explanations=explanations,
             lowering=lowering,
             estimates=estimates,
+            states=states,
         ),
     )

@@ -67,8 +67,12 @@ def _number(x: Any) -> str:
         return escape(str(x))
 
 
-def cell_items(pred: CrystalPrediction) -> list[tuple[str, str]]:
-    """Rows for the facts list: source file, cell parameters, setting and state when known."""
+def cell_items(pred: CrystalPrediction, state: str | None = None) -> list[tuple[str, str]]:
+    """Rows for the facts list: source file, cell parameters, setting and state when known.
+
+    ``state`` is the phase's state (``"ordered"``, ``"static"``, ``"dynamic"``, or another
+    word such as ``"mixed"``), shown with what it means for the lines.
+    """
     items = [("structure", escape(file_name(pred.source)) or "&ndash;")]
     cp = tuple(getattr(pred, "cell_parameters", ()) or ())
     if len(cp) == 6:
@@ -87,9 +91,12 @@ def cell_items(pred: CrystalPrediction) -> list[tuple[str, str]]:
             value = getattr(owner, name, None)
             if value not in (None, "", (), [], {}):
                 items.append((name.replace("_", " "), _value_html(value)))
-    state = getattr(pred, "state", None)
+    state = state or getattr(pred, "state", None)
     if state:
-        items.append(("state", _value_html(state)))
+        from ..phases.disorder import STATE_MEANING
+
+        meaning = STATE_MEANING.get(str(state))
+        items.append(("state", escape(meaning) if meaning else _value_html(state)))
     return items
 
 
@@ -274,10 +281,6 @@ def tensor_section(pred: CrystalPrediction) -> str:
 # --------------------------------------------------------------------------- measured lines
 
 
-def _intensity(x: float) -> str:
-    return f"{x:.3g}"
-
-
 def assignment_section(explanations: Sequence[Explanation], figures: Any = None, index: int = 0) -> str:
     """The assignment of measured lines: every line with its best explanation, and the band counts."""
     if not explanations:
@@ -303,6 +306,9 @@ def assignment_section(explanations: Sequence[Explanation], figures: Any = None,
                 f'<figure class="explain">{figures.svg(fig)}<figcaption>{tech} lines of {src} with their best '
                 "assignments; ticks below the baseline mark the active components of each band.</figcaption></figure>"
             )
+        from .text import intensity_decimals
+
+        digits = intensity_decimals([line.peak.intensity for line in e.lines])
         rows = []
         for line in e.lines:
             p = line.peak
@@ -311,7 +317,7 @@ def assignment_section(explanations: Sequence[Explanation], figures: Any = None,
             rows.append(
                 [
                     f"{p.position_cm1:.1f}",
-                    _intensity(p.intensity),
+                    f"{p.intensity:.{digits}f}",
                     escape(best.label) if best else "<em>unexplained</em>",
                     " ".join(species_html(s) for s in best.species) if best else "&ndash;",
                     f"{best.predicted_cm1:.0f}" if best and best.predicted_cm1 is not None else "&ndash;",

@@ -126,8 +126,8 @@ def molecule_text(result) -> str:
     d = result.to_dict()
     lines = [
         f"{d['formula']}: {d['atoms']} atoms, point group {d['point_group']}",
-        f"  symmetry tolerance {d['tolerance_angstrom']} A; largest deviation from the symmetric "
-        f"geometry {d['max_deviation_angstrom']:.3f} A",
+        f"  symmetry tolerance {d['tolerance_angstrom']} Å; largest deviation from the symmetric "
+        f"geometry {d['max_deviation_angstrom']:.3f} Å",
         "  axes (input frame): "
         + "; ".join(f"{k} = ({', '.join(f'{c:+.3f}' for c in v)})" for k, v in d["axes"].items()),
         f"  Γ3N  = {d['gamma_3n']}",
@@ -176,7 +176,7 @@ def prediction_text(pred, estimate=None) -> str:
     lines = [
         f"{pred.source}",
         f"  {pred.formula} (primitive cell, {pred.atoms_primitive} atoms; {pred.atoms_input} as given)",
-        f"  space group {sg.symbol} (No. {sg.number}, {sg.schoenflies}), tolerance {sg.tolerance:g} A",
+        f"  space group {sg.symbol} (No. {sg.number}, {sg.schoenflies}), tolerance {sg.tolerance:g} Å",
         f"  factor group {pred.factor_group} ({'centrosymmetric' if pred.centrosymmetric else 'non-centrosymmetric'});"
         f" labels use x = {ax['x']}, y = {ax['y']}, z = {ax['z']}",
     ]
@@ -203,7 +203,8 @@ def prediction_text(pred, estimate=None) -> str:
         )
     lines.append(
         table(
-            ["unit", "Hill", "kind", "free group", "Wyckoff", "site symbol", "site group", "Z (prim.)", "dev. A"], rows
+            ["unit", "Hill", "kind", "free group", "Wyckoff", "site symmetry", "site group", "Z (prim.)", "dev./Å"],
+            rows,
         )
     )
     for u in pred.units:
@@ -242,7 +243,7 @@ def prediction_text(pred, estimate=None) -> str:
         )
         if estimate is not None:
             rows[-1].append(lattice_cell(estimate, s.label))
-    headers = ["species", "dim", "internal", "transl.", "librat.", "acoustic", "optical", "IR", "Raman", ""]
+    headers = ["species", "dim", "internal", "transl.", "librat.", "acoustic", "optical", "IR", "Raman", "LO/TO"]
     lines.append(table(headers + (["lattice cm-1 (estimate)"] if estimate is not None else []), rows))
     t = pred.totals()
     lines.append("")
@@ -309,6 +310,11 @@ def sequence_text(seq, estimates=None) -> str:
         for s in seq.steps
     ]
     lines.append(table(["step", "factor subgroup", "point index", "cell x", "volume/unit", "type"], rows))
+    lines.append(
+        "  cell x: units per primitive cell, lower phase over upper (2 = the cell doubles); volume/unit: "
+        "primitive-cell volume per unit, lower over upper (below 1 = denser); type: t = fewer rotations, "
+        "same cell; k = same rotations, larger cell"
+    )
     lines.append("")
     lines.append("Bands (components per fundamental; IR / Raman counts)")
     headers = ["unit", "band", *[ph.label for ph in seq.phases]]
@@ -321,10 +327,9 @@ def sequence_text(seq, estimates=None) -> str:
             rows[-1] += [band_cell(e, b.unit, b.band) for e in estimates]
     lines.append(table(headers, rows))
     remarks = [f"  {_name(b.unit)} {b.band}: {r}" for b in seq.bands for r in b.remarks]
-    if remarks:
-        lines.append("")
-        lines.append("What changes")
-        lines += remarks
+    lines.append("")
+    lines.append("What changes")
+    lines += remarks or ["  nothing changes: every band has the same components in every phase"]
     lines.append("")
     lines.append("Lattice modes")
     for ph in seq.phases:
@@ -413,6 +418,22 @@ def disordered_text(pred) -> str:
     return "\n".join(lines)
 
 
+def intensity_decimals(values) -> int:
+    """Decimals that give the largest intensity three significant figures (all rows alike).
+
+    Examples
+    --------
+    >>> intensity_decimals([1.0, 0.06]), intensity_decimals([1520.0, 3.0]), intensity_decimals([0.004])
+    (2, 0, 5)
+    """
+    import math
+
+    top = max((abs(v) for v in values), default=0.0)
+    if not top or not math.isfinite(top):
+        return 2
+    return max(0, 2 - math.floor(math.log10(top)))
+
+
 def explanation_text(explanation) -> str:
     """Plain-text report: one row per line with its best candidate, then the band counts."""
     e = explanation
@@ -426,6 +447,8 @@ def explanation_text(explanation) -> str:
     out.append(f"phase state: {word.get(e.state, 'units in different states')}")
     out.append("")
     out.append(f"{'line/cm-1':>10}  {'intensity':>10}  {'score':>5}  best candidate")
+    digits = intensity_decimals([line.peak.intensity for line in e.lines])
+    lattice_said = False
     for line in e.lines:
         p = line.peak
         if line.candidates:
@@ -433,16 +456,20 @@ def explanation_text(explanation) -> str:
             sp = line.species
             which = f"  -> {sp[0]}" if line.species_decided else (f"  -> {'/'.join(sp)}?" if sp else "")
             pol = f" [{p.polarisation}]" if p.polarisation else ""
-            out.append(f"{p.position_cm1:10.1f}  {p.intensity:10.4g}  {best.score:5.2f}  {best.label}{which}{pol}")
-            out.append(f"{'':30}{best.reason}")
+            out.append(
+                f"{p.position_cm1:10.1f}  {p.intensity:10.{digits}f}  {best.score:5.2f}  {best.label}{which}{pol}"
+            )
+            if best.kind != "lattice" or not lattice_said:
+                out.append(f"{'':30}{best.reason}")
+            lattice_said = lattice_said or best.kind == "lattice"
             for other in line.candidates[1:3]:
                 out.append(f"{'':30}or {other.label} ({other.score:.2f})")
         else:
-            out.append(f"{p.position_cm1:10.1f}  {p.intensity:10.4g}  {'-':>5}  unexplained")
+            out.append(f"{p.position_cm1:10.1f}  {p.intensity:10.{digits}f}  {'-':>5}  unexplained")
     n_un = len(e.unexplained)
     out.append("")
     out.append(
-        f"{len(e.lines) - n_un} of {len(e.lines)} lines explained; "
+        f"{len(e.lines) - n_un} of {len(e.lines)} line{'s' if len(e.lines) != 1 else ''} explained; "
         f"{n_un} unexplained{': ' if n_un else ''}" + ", ".join(f"{p.position_cm1:.1f}" for p in e.unexplained)
     )
     for comp in e.comparisons:
