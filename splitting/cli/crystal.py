@@ -16,6 +16,8 @@ def run_predict(args: argparse.Namespace) -> int:
     chosen = states(args)
     if (args.disordered or chosen) and args.estimate:
         raise InputError("--estimate needs an ordered structure; it cannot be combined with --disordered or --state")
+    if args.format != "text" and (args.disordered or chosen):
+        raise InputError(f"--format {args.format} is for an ordered prediction; leave out --disordered and the states")
     if args.disordered or chosen:
         from ..phases.disorder import predict_disordered
         from ..report.text import disordered_text
@@ -23,7 +25,14 @@ def run_predict(args: argparse.Namespace) -> int:
         dis = predict_disordered(args.file, options(args), states=chosen)
         warn(dis.warnings)
         return emit(args, dis.to_dict(), lambda: disordered_text(dis))
+    if args.format != "text" and (args.json or args.geometry or args.estimate):
+        raise InputError(f"--format {args.format} writes the tables only; leave out --json, --geometry and --estimate")
     result = predict(args.file, options(args))
+    if args.format != "text":
+        from ..report.tables import CLI_FORMATS, prediction_tables
+
+        print(prediction_tables(result, CLI_FORMATS[args.format]), end="")
+        return 0
     estimates = estimates_for(args, [args.file])
     est = estimates[0] if estimates else None
     payload = result.to_dict()
@@ -67,4 +76,10 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     disorder_options(pr)
     estimate_options(pr, "add a column of model wavenumbers to the tables")
     json_option(pr)
+    pr.add_argument(
+        "--format",
+        choices=["text", "csv", "md", "tex"],
+        default="text",
+        help="text (default), or the species and correlation tables as CSV, Markdown or LaTeX (booktabs)",
+    )
     pr.set_defaults(run=run_predict)

@@ -351,19 +351,26 @@ def assignment_section(explanations: Sequence[Explanation], figures: Any = None,
                     str(b.observed),
                     str(b.predicted),
                     str(b.predicted_site),
+                    "" if b.measured else "outside",
                 ]
                 for b in comp.bands
             ]
+            outside = (
+                f" {len(comp.outside)} band{'s' if len(comp.outside) != 1 else ''} outside the measured range "
+                "(&lsquo;outside&rsquo;) are left out of the misfit."
+                if comp.outside
+                else ""
+            )
             out.append(
                 table(
-                    ["band", "free", "&nu; / cm<sup>&minus;1</sup>", "observed", "crystal", "site only"],
+                    ["band", "free", "&nu; / cm<sup>&minus;1</sup>", "observed", "crystal", "site only", "range"],
                     crow,
                     numeric=(2, 3, 4, 5),
                     caption=f"Lines per band of {formula_html(unit_name(comp.unit))}: observed, "
                     "predicted by the factor group "
                     f"{schoenflies_html(comp.factor_group)} of {escape(file_name(comp.phase))}, and by the site "
                     f"group {schoenflies_html(comp.site_group)} alone (a phase with orientational disorder); "
-                    f"misfit {comp.mismatch} (site only: {comp.site_mismatch}).",
+                    f"misfit {comp.mismatch} (site only: {comp.site_mismatch}).{outside}",
                 )
             )
         for note in e.notes:

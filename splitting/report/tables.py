@@ -239,3 +239,34 @@ def correlation_table(prediction: CrystalPrediction, unit: str | UnitOrbit | Non
         for c in u.correlation
     ]
     return render_table(headers, rows, fmt, align="lrrll")
+
+
+#: Names of the table formats on the command line, and the writer's name for each.
+CLI_FORMATS = {"csv": "csv", "md": "markdown", "tex": "latex"}
+
+
+def prediction_tables(prediction: CrystalPrediction, fmt: str = "markdown") -> str:
+    """The species table, then the correlation table of every molecular unit, in one format.
+
+    Markdown tables get a bold title line, LaTeX tables a ``%`` comment naming them; CSV
+    tables are separated by one empty line (the first row of each is its header).
+
+    Raises
+    ------
+    InputError
+        For an unknown format.
+    """
+    _check(fmt)
+    parts = [("Factor-group species (k = 0; counts are distinct frequencies)", species_table(prediction, fmt))]
+    for u in prediction.units:
+        if u.correlation:
+            parts.append((f"Correlation of {u.formula} (site {u.wyckoff})", correlation_table(prediction, u, fmt)))
+    out = []
+    for title, body in parts:
+        if fmt == "markdown":
+            out.append(f"**{_escape_markdown(title)}**\n\n{body.rstrip()}")
+        elif fmt == "latex":
+            out.append(f"% {title}\n{body.rstrip()}")
+        else:
+            out.append(body.rstrip())
+    return "\n\n".join(out) + "\n"

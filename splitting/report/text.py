@@ -342,6 +342,24 @@ def sequence_text(seq, estimates=None) -> str:
     return "\n".join(lines)
 
 
+#: Widths (characters) of the wrapped columns of the candidate table, so it stays within 100 columns.
+_LOWER_SITES_WIDTH = 20
+_LOWER_BANDS_WIDTH = 26
+
+
+def _wrap_items(items: list[str], sep: str, width: int) -> list[str]:
+    """Join ``items`` with ``sep`` into lines of at most ``width`` characters (an item is never cut)."""
+    out: list[str] = []
+    for item in items:
+        if out and len(out[-1]) + len(sep) + 1 + len(item) <= width:
+            out[-1] += f"{sep} {item}"
+        else:
+            if out:
+                out[-1] += sep
+            out.append(item)
+    return out or [""]
+
+
 def lowering_text(result, *, limit: int = 40) -> str:
     """Readable list of candidate lower-symmetry phases."""
     p = result.parent
@@ -349,11 +367,15 @@ def lowering_text(result, *, limit: int = 40) -> str:
         f"Parent {p.space_group.symbol} (No. {p.space_group.number}), factor group {p.factor_group}; "
         f"candidates up to index {result.max_index}: {len(result.candidates)}"
     ]
+    import textwrap
+
     from ..phases.disorder import STATE_MEANING
 
-    lines.append(
+    lines += textwrap.wrap(
         f"Parent state: {STATE_MEANING[result.parent_state]}; every candidate is an ordered phase "
-        "(factor-group components, sharp librations)"
+        "(factor-group components, sharp librations)",
+        width=100,
+        subsequent_indent="  ",
     )
     if result.observed:
         lines.append("Observed: " + ", ".join(f"{b} {t} = {n}" for b, t, n in result.observed))
@@ -371,9 +393,22 @@ def lowering_text(result, *, limit: int = 40) -> str:
                 f"{lat['translational_raman'] + lat['librational_raman']}"
             )
         score = "-" if c.score is None else f"{c.score:g}"
-        rows.append(
-            [k, f"{c.space_group[1]} ({c.space_group[0]})", c.kind, c.index, c.point_group, sites, bands, score]
-        )
+        site_lines = _wrap_items(sites.split("; "), ";", _LOWER_SITES_WIDTH)
+        band_lines = _wrap_items(bands.split(", "), ",", _LOWER_BANDS_WIDTH)
+        for j in range(max(len(site_lines), len(band_lines))):
+            first = j == 0
+            rows.append(
+                [
+                    k if first else "",
+                    f"{c.space_group[1]} ({c.space_group[0]})" if first else "",
+                    c.kind if first else "",
+                    c.index if first else "",
+                    c.point_group if first else "",
+                    site_lines[j] if j < len(site_lines) else "",
+                    band_lines[j] if j < len(band_lines) else "",
+                    score if first else "",
+                ]
+            )
     lines.append(table(["#", "space group", "type", "index", "factor", "sites", "bands IR/Raman", "misfit"], rows))
     if result.observed:
         lines.append("")
@@ -482,7 +517,13 @@ def explanation_text(explanation) -> str:
         for b in comp.bands:
             out.append(
                 f"{b.band:>10}  {b.species:>8}  {b.free_cm1:9.1f}  {b.observed:8d}  {b.predicted:9d}  "
-                f"{b.predicted_site:4d}"
+                f"{b.predicted_site:4d}" + ("" if b.measured else "  outside the measured range")
+            )
+        if comp.outside:
+            n = len(comp.outside)
+            out.append(
+                f"{n} band{'s' if n != 1 else ''} outside the measured range, left out of the mismatch: "
+                + ", ".join(comp.outside)
             )
     if e.lattice_predicted:
         out.append(f"lattice: {e.lattice_predicted} active frequencies predicted")

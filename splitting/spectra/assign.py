@@ -30,7 +30,8 @@ solid-state shift of an internal mode from its free value that is considered):
 ``overtone`` / ``combination``
     ``2 nu_i`` or ``nu_i + nu_j`` of the unit's fundamentals
     (:mod:`splitting.spectra.combinations`), allowed in the technique in the crystal's
-    factor group, within ``tol`` of the harmonic sum.
+    factor group, within ``tol`` below the harmonic sum and at most
+    ``ABOVE_HARMONIC_FRACTION * tol`` above it (anharmonicity lowers them).
 ``isotopologue``
     a weaker line below a stronger line ``y`` that is a component of a band, at
     ``y + shift`` within ``max(1 cm-1, |shift| / 2)``, for an isotopomer that makes up at
@@ -86,6 +87,7 @@ from .explanation import BandCount, Candidate, Explanation, LineExplanation, Pha
 from .measured import PeakList, normalise_technique
 from .scoring import (
     _KIND_ORDER,
+    ABOVE_HARMONIC_FRACTION,
     DEFAULT_TOLERANCE_CM1,
     LATTICE_MAX_CM1,
     LO_TO_WINDOW_CM1,
@@ -168,7 +170,10 @@ def _combination_candidates(
     out = []
     for c in combos:
         d = abs(x - c.wavenumber_cm1)
-        if d > tol or not c.active(tech):
+        # anharmonicity puts overtones and combinations below the harmonic sum: above it only
+        # a small allowance (shifts of the fundamentals in the solid, reading error)
+        above = x - c.wavenumber_cm1 > tol * ABOVE_HARMONIC_FRACTION
+        if d > tol or above or not c.active(tech):
             continue
         rep = c.crystal_species if c.crystal_species is not None else c.species
         why = (
@@ -614,11 +619,13 @@ def explain(
         )
         for ub in units
     }
+    xs = [p.position_cm1 for p in peak_list.peaks]
+    measured = (min(xs), max(xs)) if xs else None
     for ub in units:
-        comparisons.append(_comparison(prediction, ub, observed_by_unit[ub.orbit.formula]))
+        comparisons.append(_comparison(prediction, ub, observed_by_unit[ub.orbit.formula], measured, tol))
     for alt, _ in alt_bands:
         for ub in _resolve(alt, modes, unit, tech)[0]:
-            comparisons.append(_comparison(alt, ub, observed_by_unit.get(ub.orbit.formula, {})))
+            comparisons.append(_comparison(alt, ub, observed_by_unit.get(ub.orbit.formula, {}), measured, tol))
 
     return Explanation(
         phase=phase,

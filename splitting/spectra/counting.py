@@ -112,7 +112,18 @@ def observed_counts(
     return tuple(out)
 
 
-def _comparison(prediction: Any, ub: _UnitBands, observed: Mapping[str, int]) -> PhaseComparison:
+def _comparison(
+    prediction: Any,
+    ub: _UnitBands,
+    observed: Mapping[str, int],
+    measured: tuple[float, float] | None = None,
+    window_cm1: float = DEFAULT_TOLERANCE_CM1,
+) -> PhaseComparison:
+    """Band counts of one unit; a band whose window misses ``measured`` (lowest, highest line) is marked."""
+
+    def inside(x: float) -> bool:
+        return measured is None or measured[0] - window_cm1 <= x <= measured[1] + window_cm1
+
     bands = tuple(
         BandCount(
             b.mode.name,
@@ -121,6 +132,7 @@ def _comparison(prediction: Any, ub: _UnitBands, observed: Mapping[str, int]) ->
             int(observed.get(b.mode.name, 0)),
             b.factor_count,
             b.site_count,
+            inside(b.mode.wavenumber_cm1),
         )
         for b in ub.bands
     )

@@ -133,6 +133,9 @@ class BandCount:
     predicted_site : int
         Site-group components active under the site group's rules (what a phase with
         orientational disorder would show).
+    measured : bool
+        False when the band's window lies wholly outside the measured lines (below the
+        lowest or above the highest): such a band says nothing and is left out of the misfit.
     """
 
     band: str
@@ -141,6 +144,7 @@ class BandCount:
     observed: int
     predicted: int
     predicted_site: int
+    measured: bool = True
 
     def to_dict(self) -> dict[str, Any]:
         """Plain, JSON-ready dictionary of the fields."""
@@ -151,6 +155,7 @@ class BandCount:
             "observed": self.observed,
             "predicted": self.predicted,
             "predicted_site": self.predicted_site,
+            "in_measured_range": self.measured,
         }
 
 
@@ -177,13 +182,18 @@ class PhaseComparison:
 
     @property
     def mismatch(self) -> int:
-        """Sum over bands of ``|observed - predicted|`` (0 is a perfect count)."""
-        return sum(abs(b.observed - b.predicted) for b in self.bands)
+        """Sum over the measured bands of ``|observed - predicted|`` (0 is a perfect count)."""
+        return sum(abs(b.observed - b.predicted) for b in self.bands if b.measured)
 
     @property
     def site_mismatch(self) -> int:
         """As :attr:`mismatch`, against the site-group counts (disordered reading)."""
-        return sum(abs(b.observed - b.predicted_site) for b in self.bands)
+        return sum(abs(b.observed - b.predicted_site) for b in self.bands if b.measured)
+
+    @property
+    def outside(self) -> tuple[str, ...]:
+        """Names of the bands outside the measured range (left out of the misfit)."""
+        return tuple(b.band for b in self.bands if not b.measured)
 
     def to_dict(self) -> dict[str, Any]:
         """Plain, JSON-ready dictionary of the fields."""

@@ -8,6 +8,7 @@ the scorer.
 from __future__ import annotations
 
 __all__ = [
+    "ABOVE_HARMONIC_FRACTION",
     "DEFAULT_TOLERANCE_CM1",
     "LATTICE_MAX_CM1",
     "LO_TO_WINDOW_CM1",
@@ -22,6 +23,10 @@ __all__ = [
 #: still read as belonging to it: solid-state shifts of internal modes from gas or
 #: solution values reach a few tens of cm-1 (common practice).
 DEFAULT_TOLERANCE_CM1 = 40.0
+#: An overtone or a combination lies below its harmonic sum (negative anharmonicity); a
+#: line is read as one at most this fraction of the window *above* the sum (shifts of the
+#: fundamentals in the solid and reading error; common practice).
+ABOVE_HARMONIC_FRACTION = 0.25
 #: Lines below this (cm-1) may be lattice modes (translations, librations) (common practice).
 LATTICE_MAX_CM1 = 250.0
 #: Largest distance (cm-1) above a strong line of a polar (IR-active) band at which a weaker
