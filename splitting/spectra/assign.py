@@ -85,6 +85,7 @@ from .catalogue import ModeTable
 from .counting import _comparison, compare_counts, count_components, observed_counts
 from .explanation import BandCount, Candidate, Explanation, LineExplanation, PhaseComparison
 from .measured import PeakList, normalise_technique
+from .satellites import isotopologue_candidates
 from .scoring import (
     _KIND_ORDER,
     ABOVE_HARMONIC_FRACTION,
@@ -92,7 +93,6 @@ from .scoring import (
     LATTICE_MAX_CM1,
     LO_TO_WINDOW_CM1,
     MAX_CANDIDATES,
-    MIN_ISOTOPE_SHIFT_CM1,
     MIN_ISOTOPOMER_SHARE,
     PRIORS,
     SURPLUS_FACTOR,
@@ -511,43 +511,9 @@ def explain(
             top = max(own, key=lambda c: (c.score, -_KIND_ORDER[c.kind]))
             members.setdefault((top.unit, top.band), []).append(i)
 
-    for ub in units:
-        by_name = {b.mode.name: b for b in ub.bands}
-        for (formula, name), idx in members.items():
-            if formula != ub.orbit.formula:
-                continue
-            b = by_name[name]
-            for y_i in idx:
-                y = lines[y_i]
-                for iso_class in iso.get(formula, ()):
-                    given = b.mode.isotope_shifts.get(iso_class.substitution)
-                    if given is not None:
-                        shift, how = given, "shift from the mode table"
-                    else:
-                        shift = iso_class.shift_cm1(b.mode.species, y.position_cm1)
-                        how = "estimated shift (symmetry only, crude)"
-                    if abs(shift) < MIN_ISOTOPE_SHIFT_CM1:
-                        continue
-                    expected = y.position_cm1 + shift
-                    window = max(1.0, 0.5 * abs(shift))
-                    for i, p in enumerate(lines):
-                        d = abs(p.position_cm1 - expected)
-                        if i == y_i or d > window or not p.intensity < y.intensity:
-                            continue
-                        found[i].append(
-                            Candidate(
-                                "isotopologue",
-                                formula,
-                                name,
-                                (),
-                                round(expected, 3),
-                                round(PRIORS["isotopologue"] * _closeness(d, window), 4),
-                                f"{iso_class.substitution} isotopomer ({100 * iso_class.abundance:.2g} % of units, "
-                                f"{iso_class.point_group}) of the {name} line at {y.position_cm1:.1f} cm-1: "
-                                f"{how} {shift:+.1f} cm-1",
-                                phase,
-                            )
-                        )
+    # satellites of band members: sorted positions, best candidate per line and band (linear in lines)
+    for i, cands in isotopologue_candidates(lines, units, members, iso, phase).items():
+        found[i] += cands
 
     _lo_to_candidates(prediction, units, members, lines, found, tech, phase)
 
