@@ -85,7 +85,7 @@ def test_rows_follow_the_pipeline(folder: Path, tmp_path: Path, cluster: str) ->
 
 
 def test_screening_queries(folder: Path, tmp_path: Path, cluster: str) -> None:
-    """The queries of docs/batch.md."""
+    """The queries of docs/screening.md."""
     screen(folder, tmp_path / "out", scheduler=cluster)
     run = read_screening(tmp_path / "out")
     bands = run.bands

@@ -9,7 +9,7 @@
     runner    the Dask client loop: a local cluster or a scheduler's address, one code path
     api       screen() and read_screening(): pandas DataFrames
 
-See ``docs/batch.md`` for the tables, screening queries and multi-machine clusters.
+See ``docs/screening.md`` for the tables, screening queries and multi-machine clusters.
 """
 
 from .api import Screening, read_screening, screen

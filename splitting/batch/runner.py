@@ -111,6 +111,15 @@ def _parts(todo: Sequence[tuple[str, str]], size: int) -> Iterator[_Part]:
         yield _Part(items)
 
 
+def _reason(answer: Any) -> str:
+    """Text of what a failed task gave back (an exception, or Dask's ``(type, exception, traceback)``)."""
+    if isinstance(answer, tuple) and len(answer) == 3 and isinstance(answer[1], BaseException):
+        answer = answer[1]
+    if isinstance(answer, BaseException):
+        return f"{type(answer).__name__}: {answer}" if str(answer) else type(answer).__name__
+    return repr(answer)
+
+
 def _connect(scheduler: str | None, workers: int | None):
     """A client and, without an address, the local cluster it talks to."""
     from distributed import Client, LocalCluster
@@ -156,7 +165,9 @@ def run_parts(
         size = max(1, min(part_size, -(-len(todo) // (4 * nworkers))))
         window = 4 * nworkers
         pending = _parts(todo, size)
-        queue = as_completed()
+        # results are fetched into the client as each task finishes: a worker killed after
+        # finishing a task cannot take the answer with it (Dask would otherwise recompute it)
+        queue = as_completed(loop=client.loop, with_results=True, raise_errors=False)
         inflight: dict[Any, _Part] = {}
         retry: list[_Part] = []
         mine = package_version()
@@ -177,10 +188,9 @@ def run_parts(
         done = failed = parts = 0
         work = 0.0
         fill()
-        for fut in queue:
+        for fut, answer in queue:
             part = inflight.pop(fut)
-            if fut.status == "finished":
-                answer = fut.result()
+            if isinstance(answer, dict):
                 if answer["version"] != mine:
                     from ..errors import InputError
 
@@ -196,11 +206,10 @@ def run_parts(
                 continue
             else:
                 path, key, _ = part.items[0]
-                try:
-                    exc = fut.exception()
-                except Exception as err:  # pragma: no cover - cancelled futures
-                    exc = err
-                rows, bands = [failure_row(path, key, LOST, f"{path}: the task failed on every try ({exc})")], []
+                rows, bands = (
+                    [failure_row(path, key, LOST, f"{path}: the task failed on every try ({_reason(answer)})")],
+                    [],
+                )
             fut.release()
             store.commit(part.name, rows, bands)
             parts += 1
