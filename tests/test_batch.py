@@ -96,6 +96,15 @@ def test_screening_queries(folder: Path, tmp_path: Path, cluster: str) -> None:
     # a T2 band of a Td ion on a C1 site in P1: three A components, all IR-active (common practice)
     assert {"nh4cl_distorted.extxyz"} <= set(many_ir["name"])
     assert not many_ir["name"].isin(["calcite.cif", "diamond.cif"]).any()
+    s = run.structures
+    ok = s[s["ok"]]
+    c1 = ok[ok["lowest_molecular_site_order"] == 1].sort_values("atoms_primitive", ascending=False)
+    assert list(c1["name"]) == ["nh4cl_distorted.extxyz"]  # P1 after the random moves
+    acentric = ok[~ok["centrosymmetric"] & ok["unit_names"].apply(lambda names: "NH4+" in list(names))]
+    # P-43m has no centre of symmetry (International Tables Vol. A, space group 215), nor has P1
+    assert set(acentric["name"]) == {"nh4cl_ordered_P-43m.cif", "nh4cl_distorted.extxyz"}
+    failed = s.loc[~s["ok"], ["name", "error_kind", "error"]]
+    assert set(failed["name"]) == {"garbage.cif", "empty.xyz", "cut.cif"}
 
 
 def test_metadata(folder: Path, tmp_path: Path, cluster: str) -> None:
