@@ -12,8 +12,8 @@ Each test has its own two-worker local cluster, so killing a worker touches no o
 from __future__ import annotations
 
 import os
-import signal
 import shutil
+import signal
 from collections.abc import Iterator
 from pathlib import Path
 
