@@ -260,7 +260,9 @@ def match_unit(name: str, formulas: Iterable[str], *, what: str = "unit", where:
         raise InputError(f"{what} {name!r}: {exc}; units in {where}: {listing}") from None
     hill = _hill(counts)
     if hill not in present:
-        raise InputError(f"{what} {name!r} matches no unit of {where}; units there: {listing}")
+        written = unit_name(hill)
+        shown = f"{name!r} ({written})" if written not in (name.strip(), hill) else repr(name)
+        raise InputError(f"{what} {shown} matches no unit of {where}; units there: {listing}")
     listed = unit_charge(hill)
     if charge is not None and listed is not None and charge != listed:
         raise InputError(f"{what} {name!r}: the unit {hill} is {unit_name(hill)}, charge {listed:+d}")
