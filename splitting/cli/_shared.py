@@ -111,6 +111,12 @@ def crystal_options(p: argparse.ArgumentParser) -> None:
         help=f"refuse cells of more atoms than this, before the symmetry search (default {DEFAULT_MAX_ATOMS})",
     )
     input_limit_option(p)
+    p.add_argument(
+        "--standard-axes",
+        action="store_true",
+        help="label species, IR components and Raman tensors in the axes of the standard setting "
+        "(International Tables) instead of the file's own axes",
+    )
 
 
 def options(args: argparse.Namespace):
@@ -143,6 +149,7 @@ def options(args: argparse.Namespace):
         bond_scale=args.bond_scale,
         ionic_metals=not args.bond_metals,
         max_atoms=args.max_atoms,
+        standard_axes=getattr(args, "standard_axes", False),
     )
 
 

@@ -54,6 +54,9 @@ class Options:
         Keep alkali, alkaline-earth and lanthanide atoms as separate ions.
     max_atoms : int
         Refuse a cell of more atoms than this (as given), before the symmetry search.
+    standard_axes : bool
+        Label species, components and tensors in the axes of the standard setting instead
+        of those of the file (see docs/conventions.md).
     """
 
     tolerance: float = DEFAULT_CELL_TOLERANCE
@@ -64,6 +67,7 @@ class Options:
     bond_scale: float = DEFAULT_BOND_SCALE
     ionic_metals: bool = True
     max_atoms: int = DEFAULT_MAX_ATOMS
+    standard_axes: bool = False
 
     def __post_init__(self) -> None:
         # units may be named as written (SO4^2-, NH4+) or by Hill formula; keep Hill formulas
@@ -109,7 +113,7 @@ def predict_atoms(
     opts = options or Options()
     check_atom_count(len(atoms), opts.max_atoms)
     lattice, frac, numbers = atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers
-    cell = analyse_cell(lattice, frac, numbers, tolerance=opts.tolerance, scan=scan)
+    cell = analyse_cell(lattice, frac, numbers, tolerance=opts.tolerance, scan=scan, standard_axes=opts.standard_axes)
     try:
         pred = _predict(cell, units_of(cell, opts), opts, source, free_cache)
     except BookkeepingError as exc:
@@ -129,7 +133,7 @@ def _tolerances_that_pass(atoms, opts: Options) -> str:
         if abs(t - opts.tolerance) < 1e-12:
             continue
         try:
-            cell = analyse_cell(lattice, frac, numbers, tolerance=t)
+            cell = analyse_cell(lattice, frac, numbers, tolerance=t, standard_axes=opts.standard_axes)
             trial = replace(opts, tolerance=t)
             _predict(cell, units_of(cell, trial), trial, "trial")
         except SymmetryError:
@@ -385,7 +389,17 @@ def _predict(
         acoustic=acoustic,
         warnings=tuple(_warnings(cell, units)),
         cell_volume=float(abs(np.linalg.det(cell.lattice))),
+        setting=_setting(cell),
     )
+
+
+def _setting(cell: CellSymmetry):
+    """The file's setting and the transformation to the standard one (None for a cell from operations)."""
+    if cell.transformation is None or cell.origin_shift is None:
+        return None
+    from .setting import setting_of
+
+    return setting_of(cell.info.hall_number, cell.transformation, cell.origin_shift, standard_axes=cell.standard_axes)
 
 
 def _gamma_3n(cell: CellSymmetry, factor: FactorGroup) -> Representation:

@@ -6,6 +6,7 @@ from dataclasses import dataclass
 
 from .._display import Summarised
 from ..groups import Representation
+from .setting import Setting
 from .spacegroup import SpaceGroupInfo
 
 __all__ = ["Correlation", "CrystalPrediction", "FactorSpecies", "UnitOrbit"]
@@ -255,7 +256,8 @@ class CrystalPrediction(Summarised):
     factor_group : str
         Schoenflies symbol of the factor group (crystal class).
     factor_axes : dict
-        Crystal directions carrying the factor group's x, y, z (labels and polarisations refer to them).
+        Crystal directions carrying the factor group's x, y, z (labels and polarisations refer
+        to them), as axes of the file's cell (of the standard setting's with ``--standard-axes``).
     centrosymmetric : bool
     atoms_primitive, atoms_input : int
     units : tuple of UnitOrbit
@@ -268,6 +270,9 @@ class CrystalPrediction(Summarised):
     cell_parameters : tuple of float
         a, b, c (angstrom) and alpha, beta, gamma (degrees) of the cell as given in the file;
         empty when the prediction was not made from a file's cell (a candidate phase).
+    setting : Setting or None
+        The setting of the file's cell, the standard setting, the transformation between
+        them, and which of the two the labels use (None for a cell built from operations).
     """
 
     source: str
@@ -285,6 +290,7 @@ class CrystalPrediction(Summarised):
     warnings: tuple[str, ...]
     cell_volume: float = float("nan")
     cell_parameters: tuple[float, ...] = ()
+    setting: Setting | None = None
 
     def species_by_label(self, label: str) -> FactorSpecies:
         """The factor-group species with this label."""
@@ -360,6 +366,7 @@ class CrystalPrediction(Summarised):
             "atoms_input": self.atoms_input,
             "cell_volume_angstrom3": round(self.cell_volume, 4),
             "cell_parameters": [round(v, 5) for v in self.cell_parameters],
+            "setting": self.setting.to_dict() if self.setting is not None else None,
             "units": [u.to_dict() for u in self.units],
             "species": [s.to_dict() for s in self.species],
             "gamma_3n": str(self.gamma_3n),

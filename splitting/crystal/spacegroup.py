@@ -169,6 +169,8 @@ class CellSymmetry:
         are the standard (ITA) setting's basis.
     origin_shift : numpy.ndarray, shape (3,) or None
         spglib's origin shift p: x_s = P x + p.
+    standard_axes : bool
+        Label in the axes of the standard setting instead of the file's (see :attr:`label_basis`).
     """
 
     info: SpaceGroupInfo
@@ -187,6 +189,7 @@ class CellSymmetry:
     given_lattice: np.ndarray | None = field(default=None, repr=False)
     transformation: np.ndarray | None = field(default=None, repr=False)
     origin_shift: np.ndarray | None = field(default=None, repr=False)
+    standard_axes: bool = False
 
     @property
     def cartesian(self) -> np.ndarray:
@@ -194,31 +197,77 @@ class CellSymmetry:
         return self.frac @ self.lattice
 
     @property
+    def label_basis(self) -> np.ndarray:
+        """Rows a, b, c of the cell the labels refer to: the file's cell, or the standard setting's.
+
+        The file's cell is used unless ``standard_axes`` is set or the cell was built from
+        operations alone.
+        """
+        if self.standard_axes or self.given_lattice is None:
+            return self.conventional
+        return self.given_lattice
+
+    @property
     def reference_axes(self) -> np.ndarray:
         """Columns x_ref, y_ref, z_ref: the crystal axes the group frames should follow.
 
-        z along c (along the unique axis b for monoclinic crystals), x along a
-        (along c for monoclinic), y completing a right-handed set; common practice.
+        Mulliken's conventions (R. S. Mulliken, J. Chem. Phys. 23, 1997 (1955)) applied to the
+        axes of :attr:`label_basis`: z along the unique or principal axis (the four-, three- or
+        six-fold axis; the two-fold axis or mirror normal of a monoclinic crystal; the two-fold
+        axis of an mm2 crystal), x along the next axis of the cell in the cyclic order a, b, c,
+        y completing a right-handed set; orthorhombic 222 and mmm crystals, cubic and
+        triclinic ones have x, y, z along a, b, c.  Where the cell has no axis along the
+        principal axis (rhombohedral axes, a primitive cell of a centred lattice), z is the
+        principal axis and x the standard setting's a (c for monoclinic); where an
+        orthorhombic or cubic cell's axes are not the two-fold axes, the standard setting's
+        axes are used.
         """
-        a, b, c = (v / np.linalg.norm(v) for v in self.conventional)
-        if self.info.crystal_system == "monoclinic":
-            z, x = b, c
+        basis = np.array([v / np.linalg.norm(v) for v in self.label_basis])
+        std = np.array([v / np.linalg.norm(v) for v in self.conventional])
+        system = self.info.crystal_system
+        unique = None
+        if system in ("tetragonal", "trigonal", "hexagonal"):
+            unique, std_x = std[2], std[0]
+        elif system == "monoclinic":
+            unique, std_x = std[1], std[2]
+        elif self.info.point_group == "mm2":
+            unique, std_x = self._two_fold_axis(), None
+        if unique is not None:
+            along = [k for k in range(3) if abs(abs(float(basis[k] @ unique)) - 1) < 1e-6]
+            if along:
+                k = along[0]
+                z, x = basis[k], basis[(k + 1) % 3]
+            else:
+                z = unique
+                x = std_x if std_x is not None else std[(int(np.argmax(np.abs(std @ unique))) + 1) % 3]
         else:
-            z, x = c, a
+            parallel = all(np.max(np.abs(std @ v)) > 1 - 1e-6 for v in basis)
+            use = basis if (parallel or system == "triclinic") else std
+            z, x = use[2], use[0]
         x = x - np.dot(x, z) * z
         x /= np.linalg.norm(x)
         return np.column_stack([x, np.cross(z, x), z])
 
+    def _two_fold_axis(self) -> np.ndarray:
+        """Direction of the proper two-fold axis (point group mm2)."""
+        for r in self.rotations:
+            if np.linalg.det(r) > 0 and abs(np.trace(r) + 1) < 1e-6:
+                w = r + np.eye(3)
+                col = w[:, int(np.argmax(np.linalg.norm(w, axis=0)))]
+                return col / np.linalg.norm(col)
+        raise SymmetryError("an mm2 crystal without a two-fold axis")  # pragma: no cover
+
     def direction_text(self, v: np.ndarray) -> str:
-        """A Cartesian direction as crystal-axis text: ``"a"``, ``"c"``, ``"[1,1,0]"`` (conventional cell)."""
+        """A Cartesian direction as crystal-axis text: ``"a"``, ``"c"``, ``"[1,1,0]"`` (of :attr:`label_basis`)."""
         v = np.asarray(v, dtype=float)
-        recip = np.linalg.inv(self.conventional).T  # rows: a*, b*, c* (without 2 pi)
+        cell = self.label_basis
+        recip = np.linalg.inv(cell).T  # rows: a*, b*, c* (without 2 pi)
         for k, r in enumerate(recip):
             cosang = float(v @ r) / (np.linalg.norm(v) * np.linalg.norm(r))
-            axis = self.conventional[k] / np.linalg.norm(self.conventional[k])
+            axis = cell[k] / np.linalg.norm(cell[k])
             if abs(abs(cosang) - 1) < 1e-6 and abs(abs(float(axis @ r) / np.linalg.norm(r)) - 1) > 1e-6:
                 return ("-" if cosang < 0 else "") + "abc"[k] + "*"
-        uvw = v @ np.linalg.inv(self.conventional)
+        uvw = v @ np.linalg.inv(cell)
         m = np.max(np.abs(uvw))
         for scale in (1, 2, 3, 4, 6):
             w = uvw / m * scale
@@ -323,11 +372,15 @@ def cell_from_operations(
     rotations: np.ndarray,
     translations: np.ndarray,
     conventional: np.ndarray,
+    *,
+    given_lattice: np.ndarray | None = None,
+    standard_axes: bool = False,
 ) -> CellSymmetry:
     """A cell whose space group is given as operations (fractional, in this lattice's basis).
 
     Used for candidate phases whose atoms alone do not show the lower symmetry; the type is
-    named from the operations (spglib), Wyckoff letters are left unknown.
+    named from the operations (spglib), Wyckoff letters are left unknown.  ``given_lattice``
+    (the parent's file cell) keeps the labels in the axes of the parent's file.
     """
     import spglib
 
@@ -354,11 +407,19 @@ def cell_from_operations(
         site_symbols=("?",) * n,
         input_atoms=n,
         sites_named=False,
+        given_lattice=None if given_lattice is None else np.asarray(given_lattice, dtype=float),
+        standard_axes=standard_axes,
     )
 
 
 def analyse_cell(
-    lattice, frac, numbers, *, tolerance: float = DEFAULT_CELL_TOLERANCE, scan: bool = False
+    lattice,
+    frac,
+    numbers,
+    *,
+    tolerance: float = DEFAULT_CELL_TOLERANCE,
+    scan: bool = False,
+    standard_axes: bool = False,
 ) -> CellSymmetry:
     """Space group of a periodic structure and its idealised primitive cell with operations.
 
@@ -381,6 +442,8 @@ def analyse_cell(
     scan : bool
         Also search at tolerance / 10 and tolerance * 10 and report their space groups
         (two more searches; off by default).
+    standard_axes : bool
+        Label in the standard setting's axes instead of the file's.
     """
     if not tolerance > 0:
         raise InputError("the symmetry tolerance must be positive")
@@ -396,10 +459,10 @@ def analyse_cell(
                 others.append((t, int(o.number), str(o.international)))
             except SymmetryError:
                 others.append((t, 0, "none"))
-    return _cell_of_dataset(ds, lattice, frac, numbers, tolerance, others)
+    return _cell_of_dataset(ds, lattice, frac, numbers, tolerance, others, standard_axes)
 
 
-def _cell_of_dataset(ds, lattice, frac, numbers, tolerance: float, others) -> CellSymmetry:
+def _cell_of_dataset(ds, lattice, frac, numbers, tolerance: float, others, standard_axes: bool) -> CellSymmetry:
     """The idealised primitive cell and factor-group operations of one spglib dataset."""
     import spglib
 
@@ -471,4 +534,5 @@ def _cell_of_dataset(ds, lattice, frac, numbers, tolerance: float, others) -> Ce
         given_lattice=given,
         transformation=p_mat.copy(),
         origin_shift=shift.copy(),
+        standard_axes=standard_axes,
     )

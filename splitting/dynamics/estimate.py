@@ -120,7 +120,13 @@ def estimate_atoms(
     if not mo.cutoff > 0:
         raise InputError("the lattice-sum cut-off must be positive")
     params = PARAMETER_SETS[mo.potential]
-    cell = analyse_cell(atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=opts.tolerance)
+    cell = analyse_cell(
+        atoms.cell[:],
+        atoms.get_scaled_positions(wrap=True),
+        atoms.numbers,
+        tolerance=opts.tolerance,
+        standard_axes=opts.standard_axes,
+    )
     units = units_of(cell, opts)
     prediction = _predict(cell, units, opts, source)
     orbits = _orbits(cell, units)

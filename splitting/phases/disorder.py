@@ -394,7 +394,12 @@ def predict_disordered(
     occ_all = occupancies(atoms)
     codes = _type_codes(atoms.numbers, occ_all)
     cell = analyse_cell(
-        atoms.cell[:], atoms.get_scaled_positions(wrap=True), codes, tolerance=opts.tolerance, scan=False
+        atoms.cell[:],
+        atoms.get_scaled_positions(wrap=True),
+        codes,
+        tolerance=opts.tolerance,
+        scan=False,
+        standard_axes=opts.standard_axes,
     )
     prim_numbers = cell.numbers // 1000
     prim_occ = (cell.numbers % 1000) / 100.0

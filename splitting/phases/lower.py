@@ -496,7 +496,12 @@ def lower(
     cache = FreeUnitCache(opts.unit_tolerance, dict(opts.free_groups))
     parent = predict_atoms(atoms, opts, source=source, free_cache=cache)
     cell = analyse_cell(
-        atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=opts.tolerance, scan=False
+        atoms.cell[:],
+        atoms.get_scaled_positions(wrap=True),
+        atoms.numbers,
+        tolerance=opts.tolerance,
+        scan=False,
+        standard_axes=opts.standard_axes,
     )
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     g = factor.oriented.group
@@ -509,6 +514,7 @@ def lower(
         cutoffs=opts.cutoffs,
         bond_scale=opts.bond_scale,
         ionic_metals=opts.ionic_metals,
+        standard_axes=opts.standard_axes,
     )
     found: dict[tuple, Candidate] = {}
     parent_ops = [
@@ -652,7 +658,16 @@ def _predict_from_operations(
     to_super = np.linalg.inv(m.T)  # primitive fractional -> supercell fractional (column vectors)
     rots = np.array([to_super @ w @ m.T for w, _ in ops])
     trans = np.array([to_super @ t for _, t in ops])
-    sub = cell_from_operations(lat, frac, np.tile(cell.numbers, len(cosets)), rots, trans, cell.conventional)
+    sub = cell_from_operations(
+        lat,
+        frac,
+        np.tile(cell.numbers, len(cosets)),
+        rots,
+        trans,
+        cell.conventional,
+        given_lattice=cell.given_lattice,
+        standard_axes=cell.standard_axes,
+    )
     return _predict(sub, units_of(sub, opts), opts, f"{source} (candidate, from its operations)", cache)
 
 

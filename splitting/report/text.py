@@ -163,6 +163,25 @@ def _name(formula: str) -> str:
     return unit_name(formula)
 
 
+def setting_line(st) -> str:
+    """One line: the file's setting, the standard one, the transformation, whose axes label."""
+
+    def num(v: float) -> str:
+        from fractions import Fraction
+
+        f = Fraction(v).limit_denominator(12)
+        return str(f) if abs(float(f) - v) < 1e-6 else f"{v:.4f}"
+
+    matrix = "[" + "; ".join(" ".join(num(v) for v in row) for row in st.transformation) + "]"
+    shift = "(" + ", ".join(num(v) for v in st.origin_shift) + ")"
+    where = "the file's cell" if st.labels == "file" else "the standard setting"
+    found = st.file_symbol if st.file_symbol is not None else "not a tabulated setting (primitive or reduced cell)"
+    return (
+        f"  setting of the file {found}; standard {st.standard_symbol} (P = {matrix}, origin shift {shift});"
+        f" labels in the axes of {where}; Wyckoff letters of the standard setting"
+    )
+
+
 def prediction_text(pred, estimate=None) -> str:
     """Readable report of a :class:`~splitting.crystal.results.CrystalPrediction`.
 
@@ -180,6 +199,8 @@ def prediction_text(pred, estimate=None) -> str:
         f"  factor group {pred.factor_group} ({'centrosymmetric' if pred.centrosymmetric else 'non-centrosymmetric'});"
         f" labels use x = {ax['x']}, y = {ax['y']}, z = {ax['z']}",
     ]
+    if getattr(pred, "setting", None) is not None:
+        lines.append(setting_line(pred.setting))
     if "one-orientation model" not in pred.source:
         lines.append(f"  {_ORDERED}")
     for w in pred.warnings:

@@ -1,0 +1,170 @@
+"""The setting of the file's cell: which Hermann-Mauguin symbol it is written in, and the
+transformation to the standard setting (International Tables for Crystallography, Vol. A,
+Table 4.3.2.1 for the settings; spglib's tables of Hall symbols for the operations).
+
+The file's setting is found without a new symmetry search: the standard setting's operations
+(spglib's tables) are carried into the file's basis by spglib's transformation matrix P and
+compared, up to a shift of origin, with the operations of every tabulated setting of the
+same space-group type.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import cache
+
+import numpy as np
+
+__all__ = ["Setting", "file_settings", "setting_of"]
+
+#: origins tried when comparing a setting's operations (multiples of 1/8 of the axes)
+_ORIGINS = np.array(np.meshgrid(*[np.arange(8) / 8] * 3, indexing="ij")).reshape(3, -1).T
+
+
+@dataclass(frozen=True)
+class Setting:
+    """The file's setting, the standard setting and the transformation between them.
+
+    Attributes
+    ----------
+    file_symbol : str or None
+        Full Hermann-Mauguin symbol of the setting the file's cell is written in (e.g.
+        ``"P b n m"``, ``"P 1 2_1/n 1"``), or None when the file's cell is not the
+        conventional cell of any tabulated setting (a primitive or reduced cell).
+    file_choice : str or None
+        spglib's name of that setting (``"cab"``, ``"b2"``, ``"R"`` ...).
+    standard_symbol : str
+        Full Hermann-Mauguin symbol of the standard setting.
+    standard_choice : str
+    transformation : tuple of tuple of float
+        spglib's matrix P: (a_s, b_s, c_s) = (a, b, c) P^-1.
+    origin_shift : tuple of float
+        spglib's origin shift p: x_s = P x + p.
+    labels : str
+        ``"file"`` when labels use the file's axes, ``"standard"`` when the standard setting's.
+    """
+
+    file_symbol: str | None
+    file_choice: str | None
+    standard_symbol: str
+    standard_choice: str
+    transformation: tuple[tuple[float, ...], ...]
+    origin_shift: tuple[float, ...]
+    labels: str
+
+    @property
+    def is_standard(self) -> bool:
+        """True when the file is written in the standard setting."""
+        return self.file_symbol == self.standard_symbol
+
+    def to_dict(self) -> dict[str, object]:
+        """JSON-ready form."""
+        return {
+            "file_symbol": self.file_symbol,
+            "file_choice": self.file_choice,
+            "standard_symbol": self.standard_symbol,
+            "standard_choice": self.standard_choice,
+            "transformation_matrix": [list(r) for r in self.transformation],
+            "origin_shift": list(self.origin_shift),
+            "labels": self.labels,
+            "wyckoff_letters": "standard setting",
+        }
+
+
+def _setting_symbol(international: str) -> str:
+    """The symbol of a setting from spglib's ``international`` text (``"P 2_1/c = P 1 2_1/n 1"``)."""
+    parts = [p.strip() for p in international.split("=")]
+    return parts[1] if len(parts) > 1 else parts[0]
+
+
+@cache
+def _type(hall: int):
+    import spglib
+
+    from .spacegroup import _quiet_spglib
+
+    with _quiet_spglib():
+        return spglib.get_spacegroup_type(hall)
+
+
+@cache
+def _halls_of(number: int) -> tuple[int, ...]:
+    return tuple(h for h in range(1, 531) if int(_type(h).number) == number)
+
+
+@cache
+def _operations(hall: int) -> tuple[np.ndarray, np.ndarray]:
+    import spglib
+
+    from .spacegroup import _quiet_spglib
+
+    with _quiet_spglib():
+        db = spglib.get_symmetry_from_database(hall)
+    return np.rint(db["rotations"]).astype(int), np.asarray(db["translations"], dtype=float)
+
+
+def _keys(w: np.ndarray, t: np.ndarray) -> np.ndarray:
+    """Sorted integer keys of operations (rotation entries and translations in 1/48)."""
+    tt = np.rint(np.mod(t, 1.0) * 48).astype(int) % 48
+    rr = (w.reshape(len(w), 9) + 1) @ (3 ** np.arange(9))
+    return np.sort(rr * 48**3 + tt @ np.array([48 * 48, 48, 1]))
+
+
+@cache
+def _matching(hall: int, p_key: bytes) -> tuple[int, ...]:
+    p_mat = np.frombuffer(p_key).reshape(3, 3)
+    w_s, t_s = _operations(hall)
+    p_inv = np.linalg.inv(p_mat)
+    w_f = np.einsum("ij,njk,kl->nil", p_inv, w_s, p_mat)
+    if np.abs(w_f - np.rint(w_f)).max() > 1e-6:
+        return ()  # the file's cell is not a conventional cell of any setting
+    w_f = np.rint(w_f).astype(int)
+    t_f = t_s @ p_inv.T
+    if np.abs(t_f * 48 - np.rint(t_f * 48)).max() > 1e-6:
+        return ()
+    number = int(_type(hall).number)
+    found = []
+    for h in _halls_of(number):
+        w_h, t_h = _operations(h)
+        if len(w_h) != len(w_f):
+            continue
+        target = _keys(w_h, t_h)
+        if not np.array_equal(np.unique(target // 48**3), np.unique(_keys(w_f, t_f) // 48**3)):
+            continue
+        for o in _ORIGINS:
+            if np.array_equal(_keys(w_f, t_f + (w_f - np.eye(3)) @ o), target):
+                found.append(h)
+                break
+    return tuple(found)
+
+
+def file_settings(hall: int, transformation: np.ndarray) -> tuple[int, ...]:
+    """Hall numbers of the tabulated settings the file's cell is written in (empty if none)."""
+    p = np.ascontiguousarray(np.asarray(transformation, dtype=float))
+    p = np.where(np.abs(p - np.rint(p * 6) / 6) < 1e-6, np.rint(p * 6) / 6, p)
+    return _matching(int(hall), p.tobytes())
+
+
+def setting_of(hall: int, transformation: np.ndarray, origin_shift: np.ndarray, *, standard_axes: bool) -> Setting:
+    """The :class:`Setting` of a cell whose standard setting has this Hall number."""
+    std = _type(int(hall))
+    found = file_settings(hall, transformation)
+    if found:
+        t = _type(found[0])
+        symbols = {_setting_symbol(_type(h).international) for h in found}
+        file_symbol = _setting_symbol(t.international) if len(symbols) == 1 else None
+        file_choice = str(t.choice) if len(found) == 1 else None
+        if int(hall) in found:  # the file's basis is the standard's (origin choices look alike)
+            file_symbol = _setting_symbol(std.international)
+            file_choice = str(std.choice) if len(found) == 1 else None
+    else:
+        file_symbol, file_choice = None, None
+    return Setting(
+        file_symbol=file_symbol,
+        file_choice=file_choice,
+        standard_symbol=_setting_symbol(std.international),
+        standard_choice=str(std.choice),
+        transformation=tuple(tuple(round(float(v), 6) + 0.0 for v in row) for row in np.asarray(transformation)),
+        origin_shift=tuple(round(float(v), 6) + 0.0 for v in np.asarray(origin_shift)),
+        labels="standard" if standard_axes else "file",
+    )
