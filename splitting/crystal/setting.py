@@ -104,10 +104,10 @@ def _operations(hall: int) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _keys(w: np.ndarray, t: np.ndarray) -> np.ndarray:
-    """Sorted integer keys of operations (rotation entries and translations in 1/48)."""
-    tt = np.rint(np.mod(t, 1.0) * 48).astype(int) % 48
-    rr = (w.reshape(len(w), 9) + 1) @ (3 ** np.arange(9))
-    return np.sort(rr * 48**3 + tt @ np.array([48 * 48, 48, 1]))
+    """Distinct integer keys of operations modulo the lattice (rotation entries, translations in 1/48)."""
+    tt = np.rint(np.mod(t, 1.0) * 48).astype(np.int64) % 48
+    rr = (w.reshape(len(w), 9).astype(np.int64) + 1) @ (3 ** np.arange(9, dtype=np.int64))
+    return np.unique(rr * 48**3 + tt @ np.array([48 * 48, 48, 1], dtype=np.int64))
 
 
 @cache
@@ -124,12 +124,11 @@ def _matching(hall: int, p_key: bytes) -> tuple[int, ...]:
         return ()
     number = int(_type(hall).number)
     found = []
+    own = _keys(w_f, t_f)
     for h in _halls_of(number):
         w_h, t_h = _operations(h)
-        if len(w_h) != len(w_f):
-            continue
         target = _keys(w_h, t_h)
-        if not np.array_equal(np.unique(target // 48**3), np.unique(_keys(w_f, t_f) // 48**3)):
+        if len(target) != len(own) or not np.array_equal(np.unique(target // 48**3), np.unique(own // 48**3)):
             continue
         for o in _ORIGINS:
             if np.array_equal(_keys(w_f, t_f + (w_f - np.eye(3)) @ o), target):
