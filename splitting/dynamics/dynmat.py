@@ -191,11 +191,11 @@ def build_cell_model(
             intra[np.ix_(cols, cols)] += du
             charges[idx] = fh.charges
             placed = []
+            carry = proj @ rot  # once per unit: onto the unit as it sits, rigid motions removed
             for mode in fm:
                 v = np.zeros((3 * n, mode.dimension))
-                v[cols] = proj @ rot @ mode.vectors
-                q, _ = np.linalg.qr(v)
-                placed.append((mode, q))
+                v[cols], _ = np.linalg.qr(carry @ mode.vectors)  # nonzero on the unit's columns only
+                placed.append((mode, v))
             unit_modes[k] = placed
     return CellModel(
         np.asarray(cell.lattice, dtype=float),

@@ -13,6 +13,7 @@ count Gamma_3N.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
 
@@ -132,6 +133,40 @@ def split_by_species(dmat: np.ndarray, cell, factor, perms: np.ndarray, gamma_3n
     return blocks
 
 
+@lru_cache(maxsize=4)
+def _unit_context(model) -> tuple:
+    """Per unit, what :func:`origin_weights` projects on (computed once per cell model).
+
+    For every unit: its orbit, its columns in the 3n space, the normalised translations and
+    the rigid-body basis (None for one atom) on those columns, and the stacked free-mode
+    vectors on those columns with the slice of each mode.  Plus the uniform translation
+    of the whole cell.
+    """
+    n = len(model.masses)
+    units = []
+    for u in range(int(model.unit_of.max()) + 1):
+        idx = np.flatnonzero(model.unit_of == u)
+        cols = (3 * idx[:, None] + np.arange(3)[None, :]).ravel()
+        sq = np.sqrt(model.masses[idx])
+        t = np.zeros((len(cols), 3))
+        for k in range(3):
+            t[k::3, k] = sq
+        t /= np.linalg.norm(t, axis=0)
+        rb = rigid_basis(model.positions[idx], model.masses[idx]) if len(idx) > 1 else None
+        placed = model.unit_modes.get(u, []) if len(idx) > 1 else []
+        stacked = np.hstack([vec[cols] for _, vec in placed]) if placed else np.zeros((len(cols), 0))
+        slices, start = [], 0
+        for mode, vec in placed:
+            slices.append((mode, start, start + vec.shape[1]))
+            start += vec.shape[1]
+        units.append((model.orbit_of_unit[u], cols, t, rb, stacked, tuple(slices)))
+    uniform = np.zeros((3 * n, 3))
+    for k in range(3):
+        uniform[k::3, k] = np.sqrt(model.masses)
+    uniform /= np.linalg.norm(uniform, axis=0)
+    return tuple(units), uniform
+
+
 def origin_weights(model, vectors: np.ndarray) -> dict[str, object]:
     """Share of a line's (mass-weighted) eigenvectors in translations, librations and internal modes.
 
@@ -141,38 +176,26 @@ def origin_weights(model, vectors: np.ndarray) -> dict[str, object]:
     fundamental carrying most of the internal part, or None).
     """
     d = vectors.shape[1]
-    n = len(model.masses)
     trans = lib = 0.0
     per_orbit: dict[int, float] = {}
     bands: dict[tuple[int, str], list] = {}
-    for u in range(int(model.unit_of.max()) + 1):
-        idx = np.flatnonzero(model.unit_of == u)
-        cols = (3 * idx[:, None] + np.arange(3)[None, :]).ravel()
+    units, uniform = _unit_context(model)
+    for o, cols, t, rb, stacked, slices in units:
         part = vectors[cols]
         total = float(np.sum(part**2)) / d
-        o = model.orbit_of_unit[u]
         per_orbit[o] = per_orbit.get(o, 0.0) + total
-        sq = np.sqrt(model.masses[idx])
-        t = np.zeros((len(cols), 3))
-        for k in range(3):
-            t[k::3, k] = sq
-        t /= np.linalg.norm(t, axis=0)
         wt = float(np.sum((t.T @ part) ** 2)) / d
         trans += wt
-        if len(idx) > 1:
-            rb = rigid_basis(model.positions[idx], model.masses[idx])
+        if rb is not None:
             wr = float(np.sum((rb.T @ part) ** 2)) / d - wt
             lib += max(wr, 0.0)
-            for mode, vec in model.unit_modes.get(u, []):
-                w = float(np.sum((vec.T @ vectors) ** 2)) / d
-                key = (o, mode.name)
-                if key not in bands:
-                    bands[key] = [o, mode, 0.0]
-                bands[key][2] += w
-    uniform = np.zeros((3 * n, 3))
-    for k in range(3):
-        uniform[k::3, k] = np.sqrt(model.masses)
-    uniform /= np.linalg.norm(uniform, axis=0)
+            if slices:
+                over = np.sum((stacked.T @ part) ** 2, axis=1) / d
+                for mode, a, b in slices:
+                    key = (o, mode.name)
+                    if key not in bands:
+                        bands[key] = [o, mode, 0.0]
+                    bands[key][2] += float(np.sum(over[a:b]))
     acoustic = float(np.sum((uniform.T @ vectors) ** 2)) / d
     best = max(bands.values(), key=lambda b: b[2]) if bands else None
     return {
