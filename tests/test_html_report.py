@@ -222,3 +222,17 @@ def test_state_of_each_phase(c60, c60_fcc):
     assert "rotor / plastic phase" in text and "factor-group (Davydov) components" in text
     with pytest.raises(InputError, match="one per phase"):
         html_report([("fcc", c60_fcc)], states=["dynamic", "ordered"])
+
+
+def test_one_orientation_model_shows_the_files_cell():
+    """A disordered file's model is predicted in its primitive cell; the page gives the file's cell."""
+    from pathlib import Path
+
+    from splitting.phases.disorder import predict_disordered
+
+    cif = Path(__file__).resolve().parents[1] / "structures" / "c60_fcc_Fm-3m_disordered.cif"
+    model = predict_disordered(cif, states={"*": "dynamic"}).ordered_model
+    a, b, c, al, be, ga = model.cell_parameters
+    assert a == b == c and al == be == ga == 90.0  # cubic Fm-3m, as the CIF states
+    page = html_report([("300 K", model)], states=["dynamic"])
+    assert "&alpha; = 90.000&deg;" in page and "T<sub>1u</sub>(1)" in page

@@ -487,6 +487,8 @@ def predict_disordered(
     model = Atoms(numbers=kept_num, positions=np.array(kept), cell=cell.lattice, pbc=True)
     model.wrap()
     ordered = predict_atoms(model, opts, source=f"{source} (one-orientation model)", free_cache=cache, scan=False)
+    # the model sits in the primitive cell; the cell a reader checks is the file's
+    ordered = replace(ordered, cell_parameters=tuple(float(v) for v in atoms.cell.cellpar()))
     for f, d in list(done.items()):
         orbit = next((o for o in ordered.units if o.formula == f and o.correlation), None)
         if orbit is not None:

@@ -147,9 +147,19 @@ def _free_activity(table_: ModeTable, mode) -> str:
 
 
 def _mode_name(name: str) -> str:
-    """``nu3`` -> &nu;<sub>3</sub>; other names escaped."""
+    """``nu3`` -> &nu;<sub>3</sub>, ``T1u(2)`` -> T<sub>1u</sub>(2); other names escaped."""
+    import re
+
     if name.startswith("nu") and name[2:].isdigit():
         return f"&nu;<sub>{name[2:]}</sub>"
+    m = re.fullmatch(r"([ABETGH]\d*[gu]?'{0,2})\((\d+)\)", name)
+    if m:
+        from ..errors import InputError
+
+        try:
+            return f"{species_html(m[1])}({m[2]})"
+        except InputError:
+            pass
     return escape(name)
 
 
