@@ -160,6 +160,8 @@ def test_report_contents(calcite):
     page = html_report([("calcite", far)])
     text = "".join(_check(page).text)
     assert "calcite.cif" in text and "/home" not in page and "secret" not in page
+    # the setting of the file and the standard one (R-3c on hexagonal axes is the standard setting)
+    assert "setting of the file R -3 c; standard R -3 c" in text
     # cell parameters of the file (calcite, hexagonal axes: a = b, gamma = 120 degrees)
     a, _b, _c, _al, _be, ga = calcite.cell_parameters
     assert f"a = {a:.4f} Å" in text and f"γ = {ga:.3f}°" in text and abs(ga - 120) < 1e-6

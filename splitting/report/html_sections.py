@@ -86,9 +86,18 @@ def cell_items(pred: CrystalPrediction, state: str | None = None) -> list[tuple[
                 "</span>",
             )
         )
+    setting = getattr(pred, "setting", None)
+    if setting is not None and hasattr(setting, "standard_symbol"):
+        from .text import setting_line
+
+        items.append(("setting", escape(setting_line(setting).strip())))
     for owner in (pred, pred.space_group):
         for name in _SETTING_FIELDS:
+            if owner is pred and name == "setting" and hasattr(setting, "standard_symbol"):
+                continue
             value = getattr(owner, name, None)
+            if hasattr(value, "shape"):  # arrays of the symmetry search are not for the page
+                continue
             if value not in (None, "", (), [], {}):
                 items.append((name.replace("_", " "), _value_html(value)))
     state = state or getattr(pred, "state", None)
