@@ -224,3 +224,25 @@ def test_rhombohedral_versus_hexagonal_axes() -> None:
 
 def test_all_permutations_are_covered() -> None:
     assert {tuple(k for k, _ in rows) for rows in SETTINGS.values()} == set(itertools.permutations(range(3)))
+
+
+# ------------------------------------------------------------------ command line
+def test_cli_prints_setting_and_takes_standard_axes(run_cli, tmp_path: Path) -> None:
+    import json
+
+    path = tmp_path / "aragonite_pbnm.cif"
+    ase.io.write(path, rewritten(aragonite_pmcn(), SETTINGS["-cba"]))  # Pmcn -> its -cba setting
+    rc, out, err = run_cli(["predict", str(path)])
+    assert rc == 0 and err == ""
+    line = next(x for x in out.splitlines() if "setting of the file" in x)
+    assert "standard P n m a" in line and "labels in the axes of the file's cell" in line
+    assert "Wyckoff letters of the standard setting" in line
+    rc, out, _ = run_cli(["predict", str(path), "--json"])
+    st = json.loads(out)["setting"]
+    assert st["labels"] == "file" and st["standard_symbol"] == "P n m a" and st["file_symbol"] is not None
+    assert len(st["transformation_matrix"]) == 3 and len(st["origin_shift"]) == 3
+    rc, out, _ = run_cli(["predict", str(path), "--json", "--standard-axes"])
+    assert json.loads(out)["setting"]["labels"] == "standard"
+    for command in ("lower", "compare", "report", "explain"):
+        rc, out, _ = run_cli([command, "--help"])
+        assert rc == 0 and "--standard-axes" in out, command

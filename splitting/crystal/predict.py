@@ -29,7 +29,7 @@ from .results import Correlation, CrystalPrediction, FactorSpecies, UnitOrbit
 from .spacegroup import DEFAULT_CELL_TOLERANCE, CellSymmetry, analyse_cell
 from .units import DEFAULT_BOND_SCALE, Unit, find_units
 
-__all__ = ["RETRY_TOLERANCES", "Options", "predict", "predict_atoms"]
+__all__ = ["RETRY_TOLERANCES", "Options", "predict", "predict_atoms", "predict_with_cell"]
 
 
 @dataclass(frozen=True)
@@ -110,6 +110,19 @@ def predict_atoms(
     that fails its own cross-checks raises :class:`~splitting.errors.BookkeepingError`
     naming the tolerances (of :data:`RETRY_TOLERANCES`) at which the checks pass.
     """
+    return predict_with_cell(atoms, options, source=source, free_cache=free_cache, scan=scan)[0]
+
+
+def predict_with_cell(
+    atoms,
+    options: Options | None = None,
+    *,
+    source: str = "structure",
+    free_cache: FreeUnitCache | None = None,
+    scan: bool = False,
+) -> tuple[CrystalPrediction, CellSymmetry]:
+    """As :func:`predict_atoms`, also returning the cell of the one symmetry search (for callers
+    that go on from it, such as the search for lower-symmetry candidates)."""
     opts = options or Options()
     check_atom_count(len(atoms), opts.max_atoms)
     lattice, frac, numbers = atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers
@@ -118,7 +131,7 @@ def predict_atoms(
         pred = _predict(cell, units_of(cell, opts), opts, source, free_cache)
     except BookkeepingError as exc:
         raise BookkeepingError(f"{exc}; {_tolerances_that_pass(atoms, opts)}") from None
-    return replace(pred, cell_parameters=tuple(float(v) for v in atoms.cell.cellpar()))
+    return replace(pred, cell_parameters=tuple(float(v) for v in atoms.cell.cellpar())), cell
 
 
 #: tolerances (angstrom) tried when a prediction fails its own cross-checks

@@ -24,10 +24,10 @@ import numpy as np
 from .._display import Summarised
 from ..correlation import FactorGroup
 from ..crystal.freeunits import FreeUnitCache
-from ..crystal.predict import Options, predict_atoms
+from ..crystal.predict import Options, predict_atoms, predict_with_cell
 from ..crystal.read import load_structure
 from ..crystal.results import CrystalPrediction
-from ..crystal.spacegroup import CellSymmetry, analyse_cell
+from ..crystal.spacegroup import CellSymmetry
 from ..defaults import DEFAULT_MAX_INDEX
 from ..errors import InputError
 from ..groups.pointgroup import point_group
@@ -494,15 +494,7 @@ def lower(
         atoms = load_structure(path)
     source = os.fspath(path) if path is not None else "structure"
     cache = FreeUnitCache(opts.unit_tolerance, dict(opts.free_groups))
-    parent = predict_atoms(atoms, opts, source=source, free_cache=cache)
-    cell = analyse_cell(
-        atoms.cell[:],
-        atoms.get_scaled_positions(wrap=True),
-        atoms.numbers,
-        tolerance=opts.tolerance,
-        scan=False,
-        standard_axes=opts.standard_axes,
-    )
+    parent, cell = predict_with_cell(atoms, opts, source=source, free_cache=cache)  # one symmetry search
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     g = factor.oriented.group
     by_std = {int(s): k for k, s in enumerate(factor.index)}
