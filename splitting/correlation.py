@@ -16,6 +16,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 
@@ -23,6 +24,9 @@ from .errors import BookkeepingError
 from .groups import OrientedGroup, Representation
 
 __all__ = ["FactorGroup", "induce", "site_characters"]
+
+# factor groups by (rotations, reference axes): the same space group and setting repeat in a batch
+_FACTOR_CACHE: dict[tuple[bytes, bytes], FactorGroup] = {}
 
 
 @dataclass(frozen=True, eq=False)
@@ -48,13 +52,34 @@ class FactorGroup:
     @classmethod
     def from_rotations(cls, rotations: np.ndarray, reference: np.ndarray) -> FactorGroup:
         """Identify the group of the Cartesian rotation parts, preferring frames near ``reference``."""
-        from .groups.identify import crystal_preference, identify
+        from .groups.identify import _key_bytes, identify_in_crystal
 
-        og = identify(rotations, prefer=crystal_preference(reference), reference=reference, tol=1e-3)
+        key = (_key_bytes(rotations), _key_bytes(reference))
+        cached = _FACTOR_CACHE.get(key)
+        if cached is not None:
+            return cached
+        og = identify_in_crystal(rotations, reference, tol=1e-3)
         idx = np.array([og.locate(r, tol=1e-3) for r in rotations])
         if len(set(idx.tolist())) != len(idx):
             raise BookkeepingError("two cell operations map onto one factor-group element")
-        return cls(og, idx)
+        idx.setflags(write=False)
+        factor = cls(og, idx)
+        if len(_FACTOR_CACHE) >= 256:
+            _FACTOR_CACHE.pop(next(iter(_FACTOR_CACHE)))
+        _FACTOR_CACHE[key] = factor
+        return factor
+
+    @cached_property
+    def conjugates(self) -> np.ndarray:
+        """``conjugates[x, h]``: position of ``h^-1 x h`` in ``oriented.group.operations``."""
+        table = self.oriented.group.table
+        n = len(table)
+        inverse = np.argmax(table == 0, axis=1)
+        h = np.arange(n)
+        left = table[inverse[None, :], h[:, None]]  # [x, h] -> h^-1 x
+        out = table[left, h[None, :]]  # (h^-1 x) h
+        out.setflags(write=False)
+        return out
 
     def reduce_cell(self, chars_by_cell_op: np.ndarray, *, what: str) -> Representation:
         """Reduce characters given per cell operation."""
@@ -80,15 +105,7 @@ def induce(factor: FactorGroup, site_cell_ops: list[int], site_chars: np.ndarray
         Character at each of those operations (same order).
     """
     g = factor.oriented.group
-    table = g.table
-    inverse = np.argmax(table == 0, axis=1)
-    in_site = {int(factor.index[k]): float(c) for k, c in zip(site_cell_ops, site_chars, strict=True)}
-    out = np.zeros(g.order)
-    for x in range(g.order):
-        total = 0.0
-        for h in range(g.order):
-            y = int(table[table[inverse[h], x], h])  # h^-1 x h
-            if y in in_site:
-                total += in_site[y]
-        out[x] = total / len(in_site)
+    site = np.zeros(g.order)
+    site[factor.index[np.asarray(site_cell_ops, dtype=int)]] = np.asarray(site_chars, dtype=float)
+    out = site[factor.conjugates].sum(axis=1) / len(set(factor.index[list(site_cell_ops)].tolist()))
     return g.reduce_operations(out, what=what)

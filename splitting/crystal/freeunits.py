@@ -55,7 +55,7 @@ class FreeUnitCache:
     def get(self, unit: Unit) -> FreeUnit:
         """The free-unit analysis of ``unit`` in its own orientation."""
         centred = unit.positions - unit.centre
-        key = tuple(sorted(int(z) for z in unit.numbers))
+        key = _fingerprint(unit.numbers, centred, self.tolerance)
         for ref, ref_numbers, free in self._store.get(key, []):
             moved = _carry(ref, ref_numbers, centred, unit.numbers, free, self.tolerance)
             if moved is not None:
@@ -76,6 +76,27 @@ class FreeUnitCache:
         )
         self._store.setdefault(key, []).append((centred, np.array(unit.numbers), free))
         return free
+
+
+def _fingerprint(numbers, centred: np.ndarray, tolerance: float) -> tuple:
+    """Shape key of a unit: its elements and, per element, the sorted distances from the centre.
+
+    The distances are rounded on a grid of twice the tolerance, so units that can carry
+    onto each other almost always share a key (a unit that falls just across a grid line
+    is analysed afresh: slower, never wrong), while different shapes fall into different
+    buckets.  A new unit is then compared with the few stored shapes of its bucket instead
+    of with every stored shape.
+
+    >>> import numpy as np
+    >>> square = np.array([[1.0, 0, 0], [0, 1, 0], [-1, 0, 0], [0, -1, 0]])
+    >>> _fingerprint([6, 6, 6, 6], square, 0.1) == _fingerprint([6, 6, 6, 6], square[::-1] * 1.01, 0.1)
+    True
+    """
+    z = np.asarray(numbers, dtype=int)
+    r = np.linalg.norm(centred, axis=1)
+    grid = 2.0 * max(float(tolerance), 1e-3)
+    order = np.lexsort((r, z))
+    return (tuple(z[order].tolist()), tuple(np.round(r[order] / grid).astype(int).tolist()))
 
 
 def _carry(

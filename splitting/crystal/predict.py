@@ -19,7 +19,7 @@ from ..activity import activity_table
 from ..correlation import FactorGroup, induce
 from ..errors import BookkeepingError, SymmetryError
 from ..groups import OrientedGroup, Representation
-from ..groups.identify import crystal_preference, identify
+from ..groups.identify import identify_in_crystal
 from ..molecule.analysis import hill_formula
 from ..molecule.symmetry import DEFAULT_TOLERANCE
 from .freeunits import FreeUnitCache
@@ -276,7 +276,7 @@ def _predict(
         u0 = units[orbit[0][0]]
         centre = u0.centre
         site_idx = _site_ops(cell, centre)
-        site = identify(cell.rotations[site_idx], prefer=crystal_preference(reference), reference=reference, tol=1e-3)
+        site = identify_in_crystal(cell.rotations[site_idx], reference, tol=1e-3)
         # site-group element order -> cell operations
         site_cell = [
             site_idx[int(np.argmin([np.abs(cell.rotations[k] - op).max() for k in site_idx]))] for op in site.operations

@@ -24,7 +24,15 @@ from .operations import describe, multiplication_table
 from .pointgroup import PointGroup, point_group
 from .representation import Representation
 
-__all__ = ["OrientedGroup", "crystal_preference", "identify", "molecular_preference", "name_of", "oriented"]
+__all__ = [
+    "OrientedGroup",
+    "crystal_preference",
+    "identify",
+    "identify_in_crystal",
+    "molecular_preference",
+    "name_of",
+    "oriented",
+]
 
 Preference = Callable[[np.ndarray], tuple]
 
@@ -119,8 +127,25 @@ class OrientedGroup:
         """
         if isinstance(rep, str):
             rep = self.group.representation({rep: 1})
-        chars = [self.rep_character(rep, op) for op in subgroup.operations]
-        return subgroup.reduce_at(np.array(chars), what=f"restriction of {rep} to {subgroup.name}")
+        if isinstance(self.group, LinearGroup):
+            chars = np.array([self.rep_character(rep, op) for op in subgroup.operations])
+        else:
+            classes = self.group.class_of[self.locate_all(subgroup.operations)]
+            chars = np.zeros(len(classes))
+            for lab, n in rep:
+                chars += n * np.asarray(self.group.get_species(lab).characters, dtype=float)[classes]
+        return subgroup.reduce_at(chars, what=f"restriction of {rep} to {subgroup.name}")
+
+    def locate_all(self, ops: np.ndarray, *, tol: float = 0.5) -> np.ndarray:
+        """:meth:`locate` for an array of operations at once (finite groups only)."""
+        if isinstance(self.group, LinearGroup):
+            raise SymmetryError(f"{self.name} operations are not enumerable")
+        ops = np.asarray(ops, dtype=float)
+        standard = np.einsum("ji,njk,kl->nil", self.frame, ops, self.frame)
+        d, j = self._tree.query(standard.reshape(-1, 9))
+        if len(d) and np.max(d) > tol:
+            raise SymmetryError(f"operation is not an element of {self.name} in this orientation")
+        return np.asarray(j, dtype=int)
 
     def axes(self) -> dict[str, np.ndarray]:
         """The standard x, y, z axes in the given frame."""
@@ -426,3 +451,37 @@ def identify(
     if best is None:
         raise SymmetryError(f"operations look like {name} but no standard frame matches them")
     return OrientedGroup(group, best)
+
+
+# ------------------------------------------------------------- crystal groups, cached
+_CRYSTAL_CACHE: dict[tuple[bytes, bytes, float], OrientedGroup] = {}
+_CRYSTAL_CACHE_SIZE = 512
+
+
+def _key_bytes(a: np.ndarray) -> bytes:
+    # rounded far below any symmetry tolerance; + 0.0 makes -0.0 and 0.0 the same key
+    return (np.round(np.asarray(a, dtype=float), 8) + 0.0).tobytes()
+
+
+def identify_in_crystal(ops: np.ndarray, reference: np.ndarray, *, tol: float = 1e-3) -> OrientedGroup:
+    """:func:`identify` with :func:`crystal_preference` for ``reference``, cached.
+
+    Factor groups and site groups repeat from structure to structure (the same space group
+    in the same setting gives the same Cartesian operations), so the identification is done
+    once per set of operations, reference axes and tolerance in a process.  The operations
+    are taken in the order given (the chosen frame can depend on it).
+
+    Examples
+    --------
+    >>> ops = point_group("D2h").operations
+    >>> identify_in_crystal(ops, np.eye(3)) is identify_in_crystal(ops.copy(), np.eye(3))
+    True
+    """
+    key = (_key_bytes(ops), _key_bytes(reference), float(tol))
+    found = _CRYSTAL_CACHE.get(key)
+    if found is None:
+        found = identify(ops, prefer=crystal_preference(reference), reference=reference, tol=tol)
+        if len(_CRYSTAL_CACHE) >= _CRYSTAL_CACHE_SIZE:
+            _CRYSTAL_CACHE.pop(next(iter(_CRYSTAL_CACHE)))
+        _CRYSTAL_CACHE[key] = found
+    return found
