@@ -22,10 +22,13 @@ GOOD = ["calcite.cif", "co2_Pa-3.cif", "nh4cl_ordered_P-43m.cif", "naphthalene_P
 @pytest.fixture(scope="module")
 def cluster() -> Iterator[str]:
     """Address of a local cluster with two single-threaded worker processes."""
+    import dask
     from distributed import LocalCluster
 
-    with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None) as c:
-        yield c.scheduler_address
+    # a busy machine (the test suite runs in parallel with other work) may start workers slowly
+    with dask.config.set({"distributed.comm.timeouts.connect": "120s"}):
+        with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None) as c:
+            yield c.scheduler_address
 
 
 @pytest.fixture

@@ -27,10 +27,13 @@ COPIES = 3  # variants per file: the same crystal with a different comment line 
 
 @pytest.fixture
 def cluster() -> Iterator[str]:
+    import dask
     from distributed import LocalCluster
 
-    with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None) as c:
-        yield c.scheduler_address
+    # a busy machine (the test suite runs in parallel with other work) may start workers slowly
+    with dask.config.set({"distributed.comm.timeouts.connect": "120s"}):
+        with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None) as c:
+            yield c.scheduler_address
 
 
 @pytest.fixture

@@ -1,0 +1,129 @@
+"""How predict's time and memory grow with the number of atoms, against the floor.
+
+The floor is what any tool of this kind must pay: reading the file (``load_structure``)
+plus one spglib symmetry search of the cell as read.  Cases (all written as P1 CIF files,
+so the reader and the search see every atom):
+
+* ``c60``: the ordered C60 cell (Pa-3, 240 atoms) repeated to 240, 1,920, 6,480, 14,400 atoms;
+* ``naph``: the naphthalene cell (P2_1/a, 36 atoms) repeated to 288, 2,304, 6,480, 14,112 atoms;
+* ``naph-jitter``: the same naphthalene supercells with every atom moved at random by
+  ~0.03 A (invented displacements), so the cell stays P1 and every molecule is distinct.
+
+Each measurement runs in a fresh Python process (imports done before the clock starts),
+so the peak resident memory of each is its own.  Run with::
+
+    .venv/bin/python -m pytest benchmarks/bench_scaling.py --benchmark-enable -q -p no:doctest -s
+
+or, without pytest, ``.venv/bin/python benchmarks/bench_scaling.py [max_atoms]``.
+The goal is predict <= 1.5 x the floor at every size.
+
+Measured (see benchmarks/README.md for the table and the machine):
+see the table there; this file holds the sizes and the method only.
+"""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parent.parent
+C60 = ROOT / "structures" / "c60_ordered_Pa-3.cif"
+NAPH = ROOT / "structures" / "naphthalene_P21a.cif"
+TOLERANCE = 0.01  # angstrom, the default of `splitting predict`
+
+#: (case, repeats) giving about 240, 2,000, 6,500 and 14,000 atoms
+SIZES = {
+    "c60": [(1, 1, 1), (2, 2, 2), (3, 3, 3), (3, 4, 5)],
+    "naph": [(2, 2, 2), (4, 4, 4), (6, 6, 5), (7, 7, 8)],
+    "naph-jitter": [(2, 2, 2), (4, 4, 4), (6, 6, 5), (7, 7, 8)],
+}
+
+_CHILD = r"""
+import json, resource, sys, time
+what, path, tol = sys.argv[1], sys.argv[2], float(sys.argv[3])
+import numpy as np, spglib
+from splitting.crystal.read import load_structure
+from splitting.crystal.predict import predict
+spglib.error.OLD_ERROR_HANDLING = False
+start = time.perf_counter()
+if what == "floor":
+    atoms = load_structure(path)
+    spglib.get_symmetry_dataset((atoms.cell[:], atoms.get_scaled_positions(), atoms.numbers), symprec=tol)
+else:
+    predict(path)
+seconds = time.perf_counter() - start
+print(json.dumps({"seconds": seconds, "rss_mib": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024}))
+"""
+
+
+def write_case(case: str, reps: tuple[int, int, int], folder: Path) -> tuple[Path, int]:
+    """Write one supercell as a P1 CIF; returns the path and the number of atoms."""
+    import ase.io
+    import numpy as np
+
+    atoms = ase.io.read(C60 if case == "c60" else NAPH).repeat(reps)
+    if case == "naph-jitter":  # invented: Gaussian displacements of 0.03 A per coordinate
+        atoms.positions += np.random.default_rng(3).normal(0.0, 0.03, atoms.positions.shape)
+    path = folder / f"{case}_{'x'.join(map(str, reps))}.cif"
+    ase.io.write(path, atoms, format="cif")
+    return path, len(atoms)
+
+
+def measure(what: str, path: Path) -> dict[str, float]:
+    """Seconds and peak memory (MiB) of ``floor`` or ``predict`` on ``path`` in a new process."""
+    done = subprocess.run(
+        [sys.executable, "-c", _CHILD, what, str(path), str(TOLERANCE)],
+        capture_output=True,
+        text=True,
+        check=False,
+        cwd=ROOT,
+    )
+    assert done.returncode == 0, done.stderr
+    return json.loads(done.stdout.strip().splitlines()[-1])
+
+
+def table(max_atoms: int, folder: Path, cases: list[str] | None = None) -> list[dict[str, float | str | int]]:
+    """Floor and predict for every case (or those named) up to ``max_atoms`` atoms."""
+    rows: list[dict[str, float | str | int]] = []
+    for case in cases or list(SIZES):
+        for reps in SIZES[case]:
+            path, n = write_case(case, reps, folder)
+            if n > max_atoms:
+                continue
+            floor, pred = measure("floor", path), measure("predict", path)
+            rows.append(
+                {
+                    "case": case,
+                    "atoms": n,
+                    "floor_s": round(floor["seconds"], 3),
+                    "predict_s": round(pred["seconds"], 3),
+                    "ratio": round(pred["seconds"] / floor["seconds"], 2),
+                    "floor_mib": round(floor["rss_mib"]),
+                    "predict_mib": round(pred["rss_mib"]),
+                }
+            )
+            print(json.dumps(rows[-1]), flush=True)
+    return rows
+
+
+@pytest.mark.parametrize("case", list(SIZES))
+def test_scaling(case: str, tmp_path: Path, benchmark) -> None:
+    """One pass over the sizes of ``case`` (timed once as a whole; the ratios are printed)."""
+
+    def run() -> list:
+        return table(20_000, tmp_path, [case])
+
+    rows = benchmark.pedantic(run, rounds=1, iterations=1)
+    assert rows
+
+
+if __name__ == "__main__":  # pragma: no cover - a manual run
+    import tempfile
+
+    limit = int(sys.argv[1]) if len(sys.argv) > 1 else 20_000
+    with tempfile.TemporaryDirectory() as tmp:
+        table(limit, Path(tmp))
