@@ -94,7 +94,7 @@ def run(count: int, folder: Path) -> dict[str, float]:
     start = time.perf_counter()
     cold = screen(folder / "in", folder / "cold", workers=WORKERS)
     cold_wall = time.perf_counter() - start
-    with LocalCluster(n_workers=WORKERS, threads_per_worker=1, processes=True, dashboard_address=None) as cluster:
+    with LocalCluster(n_workers=WORKERS, threads_per_worker=1, processes=True, dashboard_address=":0") as cluster:
         screen(
             folder / "in" / BUNDLED[0].replace(".cif", "_0.cif"),
             folder / "warm-up",

@@ -27,7 +27,7 @@ def cluster() -> Iterator[str]:
 
     # a busy machine (the test suite runs in parallel with other work) may start workers slowly
     with dask.config.set({"distributed.comm.timeouts.connect": "120s"}):
-        with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None) as c:
+        with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=":0") as c:
             yield c.scheduler_address
 
 

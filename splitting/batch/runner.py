@@ -132,7 +132,8 @@ def _connect(scheduler: str | None, workers: int | None):
 
             raise InputError(f"cannot reach the Dask scheduler at {scheduler} ({exc})") from None
     n = workers or os.cpu_count() or 1
-    cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True, dashboard_address=None)
+    # the dashboard on a free port: a fixed one fails when another cluster holds it
+    cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True, dashboard_address=":0")
     try:
         return Client(cluster), cluster
     except BaseException:
