@@ -160,13 +160,14 @@ def explanation_figure(
 
     if spectrum is not None:
         x, y = spectrum.wavenumber_cm1, spectrum.signal
+        y, scaled = _drawable(y)
         artists["spectrum"] += ax.plot(x, y, color=COLOURS["line"], lw=0.8)
         heights = np.interp(positions, x, y) if positions.size else positions
         top = float(np.max(y)) if y.size else 1.0
         bottom = float(np.min(y)) if y.size else 0.0
         lo, hi = float(x[0]), float(x[-1])
     else:
-        heights = np.array([line.peak.intensity for line in lines], dtype=float)
+        heights, scaled = _drawable(np.array([line.peak.intensity for line in lines], dtype=float))
         if positions.size:
             artists["spectrum"].append(ax.vlines(positions, 0.0, heights, color=COLOURS["line"], lw=1.0))
         top = float(heights.max()) if heights.size else 1.0
@@ -240,7 +241,7 @@ def explanation_figure(
         artists["labels"].append(label)
 
     ax.set_xlabel("wavenumber / cm$^{-1}$")
-    ax.set_ylabel("signal" if spectrum is not None else "intensity (as given)")
+    ax.set_ylabel(("signal" if spectrum is not None else "intensity (as given)") + scaled)
     _nonnegative_ticks(ax, bottom, top)
     ax.spines[["top", "right"]].set_visible(False)
     tech = {"ir": "IR", "raman": "Raman"}.get(explanation.technique or "", "measured")
@@ -399,3 +400,16 @@ def explain_files(
     if figure is not None:
         save_explanation_figure(result, figure, spectrum=spec)
     return result
+
+
+def _drawable(values: np.ndarray) -> tuple[np.ndarray, str]:
+    """Values whose span a figure can hold: divided by a power of ten when near the float limits.
+
+    Intensities of 1e308 are valid numbers, but the axis span of such lines overflows to inf.
+    Returns the values to draw and a note for the axis label ("" when unscaled).
+    """
+    peak = float(np.max(np.abs(values))) if values.size else 0.0
+    if peak == 0.0 or 1e-100 < peak < 1e100:
+        return values, ""
+    power = int(np.floor(np.log10(peak)))
+    return values / 10.0**power, f" (x 1e{power})"

@@ -22,6 +22,7 @@ diagrams (filled circle: IR active, open square: Raman active).
 from __future__ import annotations
 
 import io
+import logging
 import os
 import re
 from collections.abc import Sequence
@@ -62,10 +63,18 @@ def _save(fig: Figure, fmt: str, *, dpi: float = 300) -> bytes:
         "pdf": {"CreationDate": None, "ModDate": None},
         "png": {"Software": None},
     }[fmt]
-    with matplotlib.rc_context({"svg.hashsalt": "splitting", "svg.fonttype": "path", "pdf.fonttype": 42}):
-        fig.savefig(
-            buf, format=fmt, dpi=dpi, metadata=metadata, facecolor="white", bbox_inches="tight", pad_inches=0.08
-        )
+    # embedding fonts in a PDF makes the font library log warnings about font timestamps (not
+    # about the figure); they are kept off the user's standard error while the figure is written
+    fonts = logging.getLogger("fontTools")
+    level = fonts.level
+    fonts.setLevel(logging.ERROR)
+    try:
+        with matplotlib.rc_context({"svg.hashsalt": "splitting", "svg.fonttype": "path", "pdf.fonttype": 42}):
+            fig.savefig(
+                buf, format=fmt, dpi=dpi, metadata=metadata, facecolor="white", bbox_inches="tight", pad_inches=0.08
+            )
+    finally:
+        fonts.setLevel(level)
     return buf.getvalue()
 
 

@@ -487,6 +487,11 @@ def _load_text(text: str, where: str) -> ModeTable:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError(f"{where}: not valid TOML ({exc})") from None
+    except RecursionError:
+        raise InputError(
+            f"{where}: not a mode table: its arrays or tables are nested hundreds of levels deep "
+            "(a mode table needs three)"
+        ) from None
     return parse_mode_table(data, where=where)
 
 

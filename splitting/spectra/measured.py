@@ -36,6 +36,7 @@ import contextlib
 import io
 import math
 import re
+import warnings
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -693,25 +694,56 @@ _JCAMP_UNITS = {
 }
 
 
+#: most points a spectrum may hold (a JCAMP-DX ##NPOINTS above it is refused before reading)
+MAX_SPECTRUM_POINTS = 5_000_000
+
+_NPOINTS = re.compile(rb"^\s*##\s*NPOINTS\s*=\s*(\S*)", re.I | re.M)
+_UNKNOWN_CHAR = re.compile(r"Unknown character \((.*)\)")
+
+
+def _check_jcamp_header(path: Path, data: bytes) -> None:
+    """Refuse a ##NPOINTS that is not a count or would need gigabytes, before the reader allocates it."""
+    for m in _NPOINTS.finditer(data):
+        text = m.group(1).decode("ascii", "replace")
+        try:
+            n = float(text)
+        except ValueError:
+            raise InputError(f"{path}: ##NPOINTS={text} is not a number of points") from None
+        if not (np.isfinite(n) and n == int(n) and n >= 1):
+            raise InputError(f"{path}: ##NPOINTS={text} is not a whole, positive number of points")
+        if n > MAX_SPECTRUM_POINTS:
+            raise InputError(
+                f"{path}: ##NPOINTS={text} is more than the {MAX_SPECTRUM_POINTS} points a spectrum may hold "
+                "(a file of this size cannot hold them; check the header)"
+            )
+
+
 def _read_jcamp(path: Path, *, technique: str | None, units: str) -> Spectrum:
     import jcamp
 
-    if not path.exists():
-        raise InputError(f"{path}: no such file")
-    if path.is_dir():
-        raise InputError(f"{path}: is a folder, not a file")
-    try:
-        if path.stat().st_size == 0 or not path.read_bytes().strip():
-            raise InputError(f"{path}: file is empty")
-    except OSError as exc:
-        raise InputError(f"{path}: cannot be read ({exc.strerror})") from None
+    from .._io import read_input_bytes
+
+    raw = read_input_bytes(path)
+    if not raw.strip():
+        raise InputError(f"{path}: file is empty")
+    _check_jcamp_header(path, raw)
     reader = getattr(jcamp, "jcamp_readfile", None) or jcamp.readfile
     chatter = io.StringIO()
     try:
-        with contextlib.redirect_stdout(chatter):
+        with contextlib.redirect_stdout(chatter), warnings.catch_warnings():
+            warnings.simplefilter("ignore")
             data = reader(str(path))
     except (KeyError, ValueError, IndexError, TypeError, ZeroDivisionError) as exc:
         raise InputError(f"{path}: not a readable JCAMP-DX file ({type(exc).__name__}: {exc})") from None
+    except MemoryError:
+        raise InputError(f"{path}: the JCAMP-DX header asks for more points than memory holds") from None
+    except Exception as exc:  # the jcamp reader raises a bare Exception on undecodable data lines
+        m = _UNKNOWN_CHAR.search(str(exc))
+        if m:
+            raise InputError(
+                f"{path}: a data line holds {m.group(1)!r}, which is not part of a JCAMP-DX number"
+            ) from None
+        raise InputError(f"{path}: not a readable JCAMP-DX file (the reader stopped: {exc})") from None
     said = chatter.getvalue().strip()
     if said:
         raise InputError(f"{path}: JCAMP-DX data fail their checks: {said.splitlines()[0]}")

@@ -215,10 +215,26 @@ def estimate_noise(signal_values: np.ndarray | Sequence[float]) -> float:
     return float(1.482602 / math.sqrt(6.0) * np.median(np.abs(d)))
 
 
+#: most points per BASELINE_SCALE_CM1 the ALS fit works on; a finer spectrum is averaged in bins
+#: first (the stiffness grows as the fourth power of this number, and beyond ~1e8 the banded
+#: system is too ill-conditioned to solve in double precision)
+BASELINE_POINTS_PER_SCALE = 500
+
+
 def _baseline(x: np.ndarray, y: np.ndarray, mode: str) -> np.ndarray:
     if mode == "none":
         return np.zeros_like(y)
-    z = als_baseline(y, lam=_auto_lambda(x))
+    step = abs(float(np.median(np.diff(x))))
+    k = math.ceil(min(BASELINE_SCALE_CM1 / max(step, 1e-12) / BASELINE_POINTS_PER_SCALE, 1e9))
+    if k > 1 and y.size // k >= 3:
+        # a baseline is smooth over BASELINE_SCALE_CM1: fit it on bin means, interpolate back
+        m = y.size // k
+        xb = x[: m * k].reshape(m, k).mean(axis=1)
+        yb = y[: m * k].reshape(m, k).mean(axis=1)
+        centres = np.arange(m) * k + (k - 1) / 2.0
+        z = np.interp(np.arange(y.size), centres, als_baseline(yb, lam=_auto_lambda(xb)))
+    else:
+        z = als_baseline(y, lam=_auto_lambda(x))
     r = y - z
     # ALS rides under the noise: shift it so that points near the baseline have a
     # residual median of zero (points within 3 sigma of the lower part of r).
