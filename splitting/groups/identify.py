@@ -20,7 +20,7 @@ import numpy as np
 from ..errors import SymmetryError
 from .catalogue import family
 from .linear import LinearGroup, linear_group
-from .operations import describe, multiplication_table
+from .operations import describe, multiplication_table, nearest_matrices
 from .pointgroup import PointGroup, point_group
 from .representation import Representation
 
@@ -68,10 +68,8 @@ class OrientedGroup:
         return ops
 
     @cached_property
-    def _tree(self):
-        from scipy.spatial import cKDTree
-
-        return cKDTree(self.group.operations.reshape(-1, 9))
+    def _flat(self) -> np.ndarray:
+        return self.group.operations.reshape(-1, 9)
 
     def to_standard(self, op: np.ndarray) -> np.ndarray:
         """An operation of the given frame written in the standard frame."""
@@ -81,7 +79,8 @@ class OrientedGroup:
         """Index (into ``group.operations``) of an operation given in this frame."""
         if isinstance(self.group, LinearGroup):
             raise SymmetryError(f"{self.name} operations are not enumerable")
-        d, j = self._tree.query(self.to_standard(op).reshape(9))
+        dd, jj = nearest_matrices(self._flat, self.to_standard(op).reshape(1, 9))
+        d, j = float(dd[0]), int(jj[0])
         if d > tol:
             raise SymmetryError(f"operation is not an element of {self.name} in this orientation")
         return int(j)
@@ -432,15 +431,13 @@ def identify(
     ref = np.eye(3) if reference is None else np.asarray(reference, dtype=float)
     score = prefer or crystal_preference(ref)
     kinds = [describe(o) for o in ops]
-    from scipy.spatial import cKDTree
-
-    tree = cKDTree(ops.reshape(-1, 9))
+    flat_ops = ops.reshape(-1, 9)
     best, best_score = None, None
     fam, _ = family(name)
     unique_frame = fam in ("T", "Th", "Td", "O", "Oh", "I", "Ih", "C1", "Ci")
     for frame in _candidate_frames(name, ops, kinds, ref):
         mapped = np.einsum("ij,njk,lk->nil", frame, group.operations, frame).reshape(-1, 9)
-        d, _ = tree.query(mapped)
+        d, _ = nearest_matrices(flat_ops, mapped)
         if np.max(d) > tol * 3:
             continue
         s = score(frame)

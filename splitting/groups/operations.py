@@ -22,6 +22,7 @@ __all__ = [
     "find_operation",
     "improper_rotation",
     "multiplication_table",
+    "nearest_matrices",
     "reflection",
     "rotation",
 ]
@@ -218,10 +219,34 @@ def multiplication_table(ops: np.ndarray, *, tol: float = 1e-5) -> np.ndarray:
     prods = np.einsum("aij,bjk->abik", ops, ops).reshape(n * n, 9)
     flat = ops.reshape(n, 9)
     # match by nearest neighbour on the flattened matrices
-    from scipy.spatial import cKDTree
-
-    tree = cKDTree(flat)
-    dist, idx = tree.query(prods)
+    dist, idx = nearest_matrices(flat, prods)
     if np.max(dist) > tol * 10:
         raise SymmetryError("the operations are not closed under multiplication")
     return idx.reshape(n, n)
+
+
+def nearest_matrices(reference: np.ndarray, queries: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """For each query, the distance to and index of the nearest reference (flattened 3x3 matrices).
+
+    A brute-force search in blocks: point groups hold at most 120 operations, where this is
+    faster than building a k-d tree and keeps scipy off the start-up path of ``group``.
+
+    Examples
+    --------
+    >>> d, i = nearest_matrices(np.eye(3).reshape(1, 9), -np.eye(3).reshape(1, 9))
+    >>> int(i[0]), round(float(d[0]) ** 2, 6)
+    (0, 12.0)
+    """
+    ref = np.asarray(reference, dtype=float).reshape(len(reference), -1)
+    q = np.asarray(queries, dtype=float).reshape(-1, ref.shape[1])
+    dist = np.empty(len(q))
+    idx = np.empty(len(q), dtype=np.intp)
+    block = max(1, 200_000 // max(len(ref), 1))
+    ref_sq = np.einsum("ij,ij->i", ref, ref)
+    for start in range(0, len(q), block):
+        part = q[start : start + block]
+        d2 = np.einsum("ij,ij->i", part, part)[:, None] + ref_sq[None, :] - 2.0 * part @ ref.T
+        j = np.argmin(d2, axis=1)
+        idx[start : start + block] = j
+        dist[start : start + block] = np.sqrt(np.maximum(d2[np.arange(len(part)), j], 0.0))
+    return dist, idx

@@ -1,0 +1,95 @@
+"""A bounded slice of the generated bad-input corpus (tests/fuzz_corpus.py), plus hypothesis mutations.
+
+The whole corpus runs in benchmarks/bench_fuzz_corpus.py. Contract checked on each case: no
+traceback, an exit status of EXIT_CODES other than 70 (internal error), at most one line on
+standard error, no partial output file, bounded time.
+"""
+
+from __future__ import annotations
+
+import signal
+import time
+from pathlib import Path
+
+import pytest
+from fuzz_corpus import BAD_NUMBERS, STRUCTURES, Case, corpus, mutate_text
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+from splitting.errors import EXIT_CODES
+
+#: cases of the corpus run in CI (a few tens of seconds on the development machine)
+SLICE = 36
+#: seconds one case may take
+LIMIT_S = 30
+
+
+def check_case(case: Case, folder: Path, run_cli) -> int:
+    """Run one case in-process and check the contract; returns the exit status."""
+    argv = case.materialise(folder)
+
+    def too_long(signum, frame):
+        raise TimeoutError(f"{case.name} ran for more than {LIMIT_S} s")
+
+    old = signal.signal(signal.SIGALRM, too_long)
+    signal.alarm(LIMIT_S)
+    start = time.monotonic()
+    try:
+        code, out, err = run_cli(argv)
+    finally:
+        signal.alarm(0)
+        signal.signal(signal.SIGALRM, old)
+    assert time.monotonic() - start < LIMIT_S
+    assert "Traceback" not in err, (case.name, err)
+    assert code in EXIT_CODES and code != 70, (case.name, argv, err)
+    if code != 0:
+        assert err.startswith("error: ") and err.count("\n") == 1, (case.name, err)
+        assert out == "", (case.name, out)
+    if case.output:
+        target = folder / case.output
+        assert (code == 0) == target.exists(), (case.name, code, err)
+    leftovers = [p.name for p in folder.iterdir() if p.name.endswith(".part")]
+    assert not leftovers, (case.name, leftovers)
+    return code
+
+
+@pytest.mark.parametrize("case", list(corpus(SLICE)), ids=lambda c: c.name)
+def test_corpus_slice(case: Case, tmp_path: Path, run_cli) -> None:
+    check_case(case, tmp_path, run_cli)
+
+
+@settings(max_examples=15, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(
+    source=st.sampled_from([p for p in STRUCTURES if p.suffix == ".cif"]),
+    bad=st.sampled_from(BAD_NUMBERS),
+    which=st.integers(min_value=0, max_value=10_000),
+)
+def test_a_number_of_a_cif_replaced(source: Path, bad: str, which: int, tmp_path_factory, run_cli) -> None:
+    """Any one number of a bundled CIF replaced by a bad one: a clean answer or a clean error."""
+    import re
+
+    text = source.read_text(encoding="utf-8")
+    numbers = list(re.finditer(r"(?<![A-Za-z_])-?\d+\.\d+", text))
+    m = numbers[which % len(numbers)]
+    folder = tmp_path_factory.mktemp("cif")
+    case = Case(
+        "hypothesis-cif", ("predict", "{dir}/x.cif"), {"x.cif": (text[: m.start()] + bad + text[m.end() :]).encode()}
+    )
+    check_case(case, folder, run_cli)
+
+
+@settings(max_examples=10, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(seed=st.integers(min_value=0, max_value=2**31))
+def test_mutated_peak_lists(seed: int, tmp_path_factory, run_cli) -> None:
+    import random
+
+    from fuzz_corpus import PEAKS, ROOT
+
+    src = PEAKS[seed % len(PEAKS)]
+    data = mutate_text(src.read_text(encoding="utf-8"), random.Random(seed)).encode()
+    case = Case(
+        "hypothesis-peaks",
+        ("explain", str(ROOT / "structures" / "calcite.cif"), "--peaks", f"{{dir}}/p{src.suffix}"),
+        {f"p{src.suffix}": data},
+    )
+    check_case(case, tmp_path_factory.mktemp("peaks"), run_cli)
