@@ -141,7 +141,7 @@ class OrientedGroup:
             raise SymmetryError(f"{self.name} operations are not enumerable")
         ops = np.asarray(ops, dtype=float)
         standard = np.einsum("ji,njk,kl->nil", self.frame, ops, self.frame)
-        d, j = self._tree.query(standard.reshape(-1, 9))
+        d, j = nearest_matrices(self._flat, standard.reshape(-1, 9))
         if len(d) and np.max(d) > tol:
             raise SymmetryError(f"operation is not an element of {self.name} in this orientation")
         return np.asarray(j, dtype=int)
