@@ -20,8 +20,9 @@ Run with::
 
     .venv/bin/python -m pytest benchmarks/bench_batch.py --benchmark-enable -q -p no:doctest -s
 
-or ``.venv/bin/python benchmarks/bench_batch.py [count]`` without pytest.  Measured figures
-are in benchmarks/README.md.
+or ``.venv/bin/python benchmarks/bench_batch.py [count]`` without pytest.  Measured (340
+structures of at most 36 atoms, load average about 3): 1,938 per minute cold, 1,551 warm,
+engine share 2.7 %, 64.5 ms per structure in a worker (benchmarks/README.md).
 """
 
 from __future__ import annotations
