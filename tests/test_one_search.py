@@ -167,3 +167,23 @@ def test_failed_check_with_no_passing_tolerance(monkeypatch: pytest.MonkeyPatch)
     monkeypatch.setattr(predict_module, "_predict", always_fails)
     with pytest.raises(BookkeepingError, match=r"no tolerance of .* passes either"):
         predict(STRUCTURES / "calcite.cif")
+
+
+def test_distinct_molecules_in_p1_one_search(monkeypatch: pytest.MonkeyPatch) -> None:
+    """A P1 cell of displaced molecules (no symmetry left): one search, general-position letters."""
+    from ase.build import make_supercell
+
+    calls = []
+    real = spglib.get_symmetry_dataset
+
+    def counting(*args, **kwargs):
+        calls.append(len(args[0][2]))
+        return real(*args, **kwargs)
+
+    atoms = make_supercell(ase.io.read(STRUCTURES / "naphthalene_P21a.cif"), np.diag([2, 1, 1]))
+    atoms.positions += np.random.default_rng(0).normal(scale=0.03, size=atoms.positions.shape)
+    monkeypatch.setattr(spglib, "get_symmetry_dataset", counting)
+    p = predict_atoms(atoms)
+    assert p.space_group.number == 1
+    assert calls == [len(atoms)]
+    assert {u.wyckoff for u in p.units} == {"1a"}

@@ -306,6 +306,8 @@ class CellSymmetry:
         frac, numbers, slot, sizes = [self.frac], [self.numbers], [], []
         count = len(self.numbers)
         kind = int(np.max(self.numbers)) + 1000
+        # an atom on the general position names every point on it (no look-up needed)
+        general = next((k for k, sym in enumerate(self.site_symbols) if sym.replace(".", "") == "1"), None)
         for n, p in enumerate(points):
             orbit = self.orbit_of(p)
             sizes.append(len(orbit))
@@ -314,6 +316,9 @@ class CellSymmetry:
             dist = np.linalg.norm(d @ self.lattice, axis=1)
             if dist.min() < 0.05:
                 slot.append(int(np.argmin(dist)))
+                continue
+            if general is not None and len(orbit) == len(self.rotations):
+                slot.append(general)
                 continue
             slot.append(count)
             f = orbit @ inv
