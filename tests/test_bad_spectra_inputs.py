@@ -161,3 +161,10 @@ def test_R28_a_pdf_figure_prints_nothing_on_stderr(tmp_path: Path) -> None:
     assert proc.returncode == 0, proc.stderr
     assert proc.stderr == ""
     assert out.read_bytes()[:5] == b"%PDF-"
+
+
+def test_a_bad_jcamp_header_value_is_said_in_plain_words(tmp_path: Path, run_cli) -> None:
+    f = tmp_path / "header.jdx"
+    f.write_text(JCAMP_HEAD.format(npoints=21).replace("##FIRSTX=700", "##FIRSTX=abc") + JCAMP_DATA)
+    err = _one_error_line(*_explain(run_cli, "--spectrum", f))
+    assert "operand" not in err and "str'" not in err and "JCAMP-DX" in err

@@ -734,7 +734,15 @@ def _read_jcamp(path: Path, *, technique: str | None, units: str) -> Spectrum:
             warnings.simplefilter("ignore")
             data = reader(str(path))
     except (KeyError, ValueError, IndexError, TypeError, ZeroDivisionError) as exc:
-        raise InputError(f"{path}: not a readable JCAMP-DX file ({type(exc).__name__}: {exc})") from None
+        from ..readers import _plain
+
+        reason = (
+            _plain(exc)
+            if isinstance(exc, ValueError)
+            else "a header value such as ##FIRSTX, ##LASTX, ##XFACTOR or ##NPOINTS, or a data line, is not as the "
+            "format asks"
+        )
+        raise InputError(f"{path}: not a readable JCAMP-DX file ({reason})") from None
     except MemoryError:
         raise InputError(f"{path}: the JCAMP-DX header asks for more points than memory holds") from None
     except Exception as exc:  # the jcamp reader raises a bare Exception on undecodable data lines
