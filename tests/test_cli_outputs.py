@@ -116,3 +116,24 @@ def test_demo_leaves_the_files_it_announces(tmp_path, capsys):
     # (Pa-3: W. I. F. David et al., Nature 353, 147 (1991))
     ranking = json.loads((out / "candidates.json").read_text())
     assert ranking["candidates"][0]["space_group"]["number"] == 205
+
+
+def test_every_command_takes_json() -> None:
+    """README: every command takes --json (common practice for scripting a command line)."""
+    import argparse
+
+    from splitting.cli import build_parser
+
+    sub = next(a for a in build_parser()._actions if isinstance(a, argparse._SubParsersAction))
+    missing = [name for name, p in sub.choices.items() if not any("--json" in a.option_strings for a in p._actions)]
+    assert missing == []
+
+
+def test_draw_json_says_what_was_written(run_cli, structures_dir, tmp_path) -> None:
+    import json
+
+    out = tmp_path / "calcite.svg"
+    code, stdout, _ = run_cli(["draw", str(structures_dir / "calcite.cif"), "-o", str(out), "--json"])
+    assert code == 0 and out.exists()
+    data = json.loads(stdout)
+    assert data["figure"] == str(out) and data["phases"][0]["state"] == "ordered"

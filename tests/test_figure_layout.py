@@ -117,12 +117,7 @@ def preds(c60, c60_fcc, calcite):
         "correlation",
         "band",
         "phases",
-        pytest.param(
-            "lines",
-            marks=pytest.mark.xfail(
-                strict=True, reason="known: the line pattern's note on positions runs past the figure's edges"
-            ),
-        ),
+        "lines",
         "explain",
     ],
 )

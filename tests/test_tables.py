@@ -114,3 +114,27 @@ def test_bad_format(calcite):
         species_table(calcite, "html")
     with pytest.raises(InputError):
         correlation_table(calcite, "CO3", "rst")
+
+
+def test_character_table_formats(run_cli) -> None:
+    """group --format: the C2v character table (Cotton, Chemical Applications of Group Theory, 3rd ed., App. IIA)."""
+    code, out, _ = run_cli(["group", "C2v", "--format", "csv"])
+    assert code == 0
+    rows = list(csv.reader(io.StringIO(out)))
+    assert rows[0][:5] == ["species", "E", "C2", "σv(xz)", "σv'(yz)"]
+    assert [r[:5] for r in rows[1:]] == [
+        ["A1", "1", "1", "1", "1"],
+        ["A2", "1", "1", "-1", "-1"],
+        ["B1", "1", "-1", "1", "-1"],
+        ["B2", "1", "-1", "-1", "1"],
+    ]
+    code, out, _ = run_cli(["group", "D3h", "--format", "tex"])
+    assert code == 0 and r"\toprule" in out and "$A_{1}'$" in out and "σ" not in out
+    code, out, _ = run_cli(["group", "C3v", "--format", "md"])
+    assert code == 0 and out.splitlines()[1].startswith("| ---")
+
+
+@pytest.mark.parametrize("extra", [["--json"], ["--to", "C3"]])
+def test_character_table_format_refuses_other_outputs(run_cli, extra) -> None:
+    code, out, err = run_cli(["group", "C3v", "--format", "md", *extra])
+    assert code == 2 and out == "" and err.startswith("error: --format md") and err.count("\n") == 1

@@ -21,6 +21,16 @@ def run_group(args: argparse.Namespace) -> int:
         name = canonical_name(args.symbol)
     except SplittingError as exc:
         raise InputError(str(exc)) from None
+    if args.format != "text":
+        from ..report.tables import CLI_FORMATS, character_table
+
+        if args.json or args.to or "∞" in name:
+            raise InputError(
+                f"--format {args.format} writes the character table of a finite group; leave out --json and --to"
+            )
+        out = character_table(name, CLI_FORMATS[args.format])
+        print(out, end="" if out.endswith("\n") else "\n")
+        return 0
     if args.to:
         from ..groups.subgroups import embeddings
 
@@ -99,6 +109,12 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
         help="every inequivalent way SUBGROUP sits in the group, with the correlation of every species",
     )
     json_option(g)
+    g.add_argument(
+        "--format",
+        choices=["text", "csv", "md", "tex"],
+        default="text",
+        help="text (default), or the character table as CSV, Markdown or LaTeX (booktabs)",
+    )
     g.set_defaults(run=run_group)
 
     m = sub.add_parser("molecule", help="point group and vibrational species of a free molecule or ion")

@@ -47,10 +47,7 @@ def run_draw(args: argparse.Namespace) -> int:
     else:
         art = correlation_diagram(phases[0][1], unit, band=args.band)
     write_figure(art.figure, args.output)
-    print(f"figure written to {args.output}")
-    for line in state_notes(loaded):
-        print(f"  {line}")
-    return 0
+    return _written(args, "figure", loaded)
 
 
 def run_report(args: argparse.Namespace) -> int:
@@ -70,7 +67,22 @@ def run_report(args: argparse.Namespace) -> int:
         estimates=estimates,
         states=[ph.state for ph in loaded],
     )
-    print(f"report written to {args.output}")
+    return _written(args, "report", loaded)
+
+
+def _written(args: argparse.Namespace, what: str, loaded) -> int:
+    """Say what was written (and each phase's state), as text or with --json as JSON."""
+    notes = list(state_notes(loaded))
+    if args.json:
+        phases = [
+            {"file": os.path.basename(f), "label": phase_label(ph), "state": ph.state}
+            for f, ph in zip(args.files, loaded, strict=True)
+        ]
+        print(json.dumps({what: args.output, "phases": phases, "notes": notes}, indent=2, ensure_ascii=False))
+        return 0
+    print(f"{what} written to {args.output}")
+    for line in notes:
+        print(f"  {line}")
     return 0
 
 
@@ -111,6 +123,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     estimate_options(dr, "draw the line pattern at the estimated positions (--kind lines)")
     disorder_options(dr)
     crystal_options(dr)
+    json_option(dr, "say what was written as JSON")
     dr.set_defaults(run=run_draw)
 
     rp = sub.add_parser("report", help="one self-contained HTML page with the whole prediction, tables and figures")
@@ -122,6 +135,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     disorder_options(rp)
     estimate_options(rp, "add a section with the model's positions")
     crystal_options(rp)
+    json_option(rp, "say what was written as JSON")
     rp.set_defaults(run=run_report)
 
     de = sub.add_parser("demo", help="run the bundled scenario (a made-up lab's low-temperature run) end to end")

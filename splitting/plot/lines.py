@@ -21,6 +21,8 @@ diagrams (filled circle: IR active, open square: Raman active).
 
 from __future__ import annotations
 
+import textwrap
+
 import io
 import logging
 import os
@@ -564,15 +566,20 @@ def _draw_pattern(phases, units, columns, bands, content, ys, lanes, top, scale,
         frameon=False,
         fontsize=small * 0.95,
         bbox_to_anchor=(0.5, 0.34 / H),
-        handlelength=1.6,
-        columnspacing=1.4,
+        handlelength=1.2,
+        columnspacing=0.9,
     )
     where = "at the free-unit wavenumber of the mode table" if scale else "in the row of its free-unit band"
+    note_text = (
+        f"positions are not predicted: every bar sits {where}; the number before a species counts its "
+        "components (distinct frequencies); a model estimate (estimate command) places them"
+    )
+    # wrap to the figure's width (a character of this font is about half its size wide)
+    per_line = max(30, int(0.92 * fig.get_figwidth() * 72 / (0.5 * small * 0.85)))
     note = fig.text(
         0.5,
         0.04 / H,
-        f"positions are not predicted: every bar sits {where}; the number before a species counts its\n"
-        "components (distinct frequencies); a model estimate (estimate command) places them",
+        "\n".join(textwrap.wrap(note_text, per_line)),
         ha="center",
         va="bottom",
         fontsize=small * 0.85,

@@ -30,7 +30,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from ..crystal.results import CrystalPrediction, UnitOrbit
     from ..groups import Representation
 
-__all__ = ["TABLE_FORMATS", "correlation_table", "escape_latex", "render_table", "species_table"]
+__all__ = ["TABLE_FORMATS", "character_table", "correlation_table", "escape_latex", "render_table", "species_table"]
 
 #: formats understood by the table functions
 TABLE_FORMATS = ("markdown", "latex", "csv")
@@ -47,6 +47,8 @@ _LATEX_SPECIAL = {
     "~": r"\textasciitilde{}",
     "^": r"\textasciicircum{}",
     "²": r"\textsuperscript{2}",
+    "σ": r"$\sigma$",
+    "∞": r"$\infty$",
 }
 
 
@@ -242,6 +244,22 @@ def correlation_table(prediction: CrystalPrediction, unit: str | UnitOrbit | Non
 
 
 #: Names of the table formats on the command line, and the writer's name for each.
+def character_table(name: str, fmt: str = "markdown") -> str:
+    """The character table of a finite point group, with its IR and Raman columns.
+
+    Examples
+    --------
+    >>> print(character_table("C2v", "csv").splitlines()[0])
+    species,E,C2,σv(xz),σv'(yz),IR,Raman
+    """
+    from .text import character_rows
+
+    _check(fmt)
+    headers, rows = character_rows(name)
+    rows = [[_species(r[0], fmt), *r[1:]] for r in rows]
+    return render_table(headers, rows, fmt, caption=f"character table of {name}")
+
+
 CLI_FORMATS = {"csv": "csv", "md": "markdown", "tex": "latex"}
 
 

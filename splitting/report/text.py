@@ -65,16 +65,27 @@ def group_text(name: str) -> str:
         hm = f" ({g.hermann_mauguin})" if g.hermann_mauguin else ""
         lines.append(f"Point group {g.name}{hm}, order {g.order}, {len(g.classes)} classes")
         lines.append(_axes_note(g.name))
-        headers = ["species", *[c.name for c in g.classes], "IR", "Raman"]
-        rows = []
-        for s in g.species:
-            a = act[s.label]
-            rows.append([s.label, *[_num(x) for x in s.characters], ",".join(a.ir) or "-", ", ".join(a.raman) or "-"])
+        headers, rows = character_rows(g.name)
         lines.append(table(headers, rows))
         if any(s.separably_degenerate for s in g.species):
             lines.append("  E species made of a complex-conjugate pair are shown merged (their characters added).")
     lines.append(f"  translations: {g.vector}    rotations: {g.axial}")
     return "\n".join(lines)
+
+
+def character_rows(name: str) -> tuple[list[str], list[list[str]]]:
+    """Headers and rows of the character table of a finite point group, with IR and Raman columns."""
+    from ..activity import activity_table
+    from ..groups.pointgroup import point_group
+
+    g = point_group(name)
+    act = {a.label: a for a in activity_table(g.name)}
+    headers = ["species", *[c.name for c in g.classes], "IR", "Raman"]
+    rows = []
+    for s in g.species:
+        a = act[s.label]
+        rows.append([s.label, *[_num(x) for x in s.characters], ",".join(a.ir) or "-", ", ".join(a.raman) or "-"])
+    return headers, rows
 
 
 def _axes_note(name: str) -> str:
