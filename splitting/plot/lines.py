@@ -21,12 +21,11 @@ diagrams (filled circle: IR active, open square: Raman active).
 
 from __future__ import annotations
 
-import textwrap
-
 import io
 import logging
 import os
 import re
+import textwrap
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
