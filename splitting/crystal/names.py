@@ -23,10 +23,20 @@ from __future__ import annotations
 
 import re
 from collections.abc import Iterable
+from typing import Any
 
 from ..errors import InputError
 
-__all__ = ["COMMON_UNITS", "charge_text", "hill_of", "match_unit", "name_counts", "unit_charge", "unit_name"]
+__all__ = [
+    "COMMON_UNITS",
+    "charge_text",
+    "find_unit",
+    "hill_of",
+    "match_unit",
+    "name_counts",
+    "unit_charge",
+    "unit_name",
+]
 
 #: Written name and charge of common molecular ions and molecules, by Hill formula.
 #: Formulas and charges of the ions: IUPAC Red Book 2005 (ch. IR-5, Table IX); the order of
@@ -267,3 +277,22 @@ def match_unit(name: str, formulas: Iterable[str], *, what: str = "unit", where:
     if charge is not None and listed is not None and charge != listed:
         raise InputError(f"{what} {name!r}: the unit {hill} is {unit_name(hill)}, charge {listed:+d}")
     return hill
+
+
+def find_unit(units: Iterable[Any], name: str) -> Any:
+    """The first of ``units`` (objects with a ``formula``) named ``name``: Hill formula or written name.
+
+    Raises ``KeyError`` when none matches.
+    """
+    units = list(units)
+    for u in units:
+        if u.formula == name:
+            return u
+    try:
+        hill = hill_of(name)
+    except InputError:
+        raise KeyError(name) from None
+    for u in units:
+        if u.formula == hill:
+            return u
+    raise KeyError(name)

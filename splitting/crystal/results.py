@@ -301,20 +301,9 @@ class CrystalPrediction(Summarised):
 
     def unit(self, formula: str) -> UnitOrbit:
         """The first orbit with this formula (Hill formula or written name, ``SO4^2-``)."""
-        for u in self.units:
-            if u.formula == formula:
-                return u
-        from ..errors import InputError
-        from .names import hill_of
+        from .names import find_unit
 
-        try:
-            hill = hill_of(formula)
-        except InputError:
-            raise KeyError(formula) from None
-        for u in self.units:
-            if u.formula == hill:
-                return u
-        raise KeyError(formula)
+        return find_unit(self.units, formula)
 
     def seen_in(self, geometry: str) -> list[tuple[str, int]]:
         """Raman species (with their optical counts) allowed in a scattering geometry.

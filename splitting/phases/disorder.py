@@ -225,19 +225,9 @@ class DisorderedPrediction:
 
     def unit(self, formula: str) -> DisorderedUnit:
         """The disordered unit with this formula (Hill formula or written name)."""
-        from ..crystal.names import hill_of
+        from ..crystal.names import find_unit
 
-        for u in self.units:
-            if u.formula == formula:
-                return u
-        try:
-            hill = hill_of(formula)
-        except InputError:
-            raise KeyError(formula) from None
-        for u in self.units:
-            if u.formula == hill:
-                return u
-        raise KeyError(formula)
+        return find_unit(self.units, formula)
 
     @property
     def state(self) -> str:

@@ -41,6 +41,7 @@ __all__ = [
     "Connector",
     "DiagramArtists",
     "PhaseDiagramArtists",
+    "activity_mark",
     "correlation_diagram",
     "fit_width",
     "legend_handles",
@@ -60,6 +61,23 @@ ACTIVITY_STYLE = {
     "ir": {"marker": "o", "face": "#b2182b", "edge": "#b2182b", "label": "IR active"},
     "raman": {"marker": "s", "face": "white", "edge": "#2166ac", "label": "Raman active"},
 }
+
+
+def activity_mark(ax: Axes, x: float, y: float, kind: str, *, size: float, edge_width: float = 1.0) -> Line2D:
+    """Draw one activity mark (``kind`` ``"ir"`` or ``"raman"``) at ``(x, y)`` in data units."""
+    st = ACTIVITY_STYLE[kind]
+    (m,) = ax.plot(
+        [x],
+        [y],
+        linestyle="none",
+        marker=st["marker"],
+        markersize=size,
+        markerfacecolor=st["face"],
+        markeredgecolor=st["edge"],
+        markeredgewidth=edge_width,
+        zorder=4,
+    )
+    return m
 
 
 def fit_width(text: Text, max_width: float, renderer) -> None:
@@ -505,18 +523,7 @@ def _draw_once(plan: _Plan, ax: Axes, *, font: float, legend: bool, give_up: boo
             ir, raman = act.get(lab, (False, False))
             kinds = [kind for kind, on in (("ir", ir), ("raman", raman)) if on]
             for kind in kinds if sign > 0 else kinds[::-1]:
-                st = ACTIVITY_STYLE[kind]
-                (m,) = ax.plot(
-                    [x],
-                    [y],
-                    linestyle="none",
-                    marker=st["marker"],
-                    markersize=font * 0.55,
-                    markerfacecolor=st["face"],
-                    markeredgecolor=st["edge"],
-                    markeredgewidth=1.2,
-                    zorder=4,
-                )
+                m = activity_mark(ax, x, y, kind, size=font * 0.55, edge_width=1.2)
                 if k == 2:
                     marks.append((lab, kind, m))
                 else:

@@ -12,7 +12,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from ..errors import InputError
-from .correlation import ACTIVITY_STYLE, COLOURS
+from .correlation import ACTIVITY_STYLE, COLOURS, activity_mark
 from .lines import (
     _FONT,
     LinePatternArtists,
@@ -193,18 +193,7 @@ def estimated_pattern(phases, units, estimates, *, band: str | None, free_act) -
                 for kind, on in (("ir", ir), ("raman", raman)):
                     if not on:
                         continue
-                    st = ACTIVITY_STYLE[kind]
-                    (m,) = ax.plot(
-                        [mx],
-                        [ly],
-                        linestyle="none",
-                        marker=st["marker"],
-                        markersize=4.0,
-                        markerfacecolor=st["face"],
-                        markeredgecolor=st["edge"],
-                        markeredgewidth=0.9,
-                        zorder=4,
-                    )
+                    m = activity_mark(ax, mx, ly, kind, size=4.0, edge_width=0.9)
                     marks.append((column, band_key, kind, m))
                     mx += 0.09
         if r == 0:

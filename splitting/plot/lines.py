@@ -33,7 +33,7 @@ from typing import TYPE_CHECKING, Any
 
 from .._io import atomic_write_bytes
 from ..errors import InputError
-from .correlation import ACTIVITY_STYLE, COLOURS, fit_width, select_unit
+from .correlation import ACTIVITY_STYLE, COLOURS, activity_mark, fit_width, select_unit
 from .mulliken import formula_mathtext, mathtext
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -516,18 +516,7 @@ def _draw_pattern(phases, units, columns, bands, content, ys, lanes, top, scale,
                 for kind, on in (("ir", ir), ("raman", raman)):
                     if not on:
                         continue
-                    st = ACTIVITY_STYLE[kind]
-                    (m,) = ax.plot(
-                        [mx],
-                        [y],
-                        linestyle="none",
-                        marker=st["marker"],
-                        markersize=4.6,
-                        markerfacecolor=st["face"],
-                        markeredgecolor=st["edge"],
-                        markeredgewidth=1.0,
-                        zorder=4,
-                    )
+                    m = activity_mark(ax, mx, y, kind, size=4.6, edge_width=1.0)
                     marks.append((name, b.species, kind, m))
                     mx += _MARK_IN
                 x = mx - _MARK_IN / 2 + 0.1 + (0 if (ir or raman) else _MARK_IN / 2)
