@@ -63,6 +63,16 @@ def input_limit_option(p: argparse.ArgumentParser) -> None:
     )
 
 
+def format_option(p: argparse.ArgumentParser, what: str) -> None:
+    """``--format text|csv|md|tex``: the readable text (default) or ``what`` as a table for a document."""
+    p.add_argument(
+        "--format",
+        choices=["text", "csv", "md", "tex"],
+        default="text",
+        help=f"text (default), or {what} as CSV, Markdown or LaTeX (booktabs)",
+    )
+
+
 def crystal_options(p: argparse.ArgumentParser) -> None:
     """Options of every command that reads a crystal: tolerances, units, bonds, size limit."""
     p.add_argument(

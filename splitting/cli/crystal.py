@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 
 from ..errors import InputError
-from ._shared import crystal_options, disorder_options, emit, json_option, options, states, warn
+from ._shared import crystal_options, disorder_options, emit, format_option, json_option, options, states, warn
 from .estimate import estimate_options, estimates_for
 
 
@@ -76,10 +76,5 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     disorder_options(pr)
     estimate_options(pr, "add a column of model wavenumbers to the tables")
     json_option(pr)
-    pr.add_argument(
-        "--format",
-        choices=["text", "csv", "md", "tex"],
-        default="text",
-        help="text (default), or the species and correlation tables as CSV, Markdown or LaTeX (booktabs)",
-    )
+    format_option(pr, "the species and correlation tables")
     pr.set_defaults(run=run_predict)

@@ -7,7 +7,7 @@ import argparse
 from ..defaults import DEFAULT_TOLERANCE, MAX_UNIT_TOLERANCE
 from ..errors import BookkeepingError, InputError, SplittingError, SymmetryError
 from ._parser import number
-from ._shared import emit, input_limit_option, json_option
+from ._shared import emit, format_option, input_limit_option, json_option
 
 
 def run_group(args: argparse.Namespace) -> int:
@@ -109,12 +109,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
         help="every inequivalent way SUBGROUP sits in the group, with the correlation of every species",
     )
     json_option(g)
-    g.add_argument(
-        "--format",
-        choices=["text", "csv", "md", "tex"],
-        default="text",
-        help="text (default), or the character table as CSV, Markdown or LaTeX (booktabs)",
-    )
+    format_option(g, "the character table")
     g.set_defaults(run=run_group)
 
     m = sub.add_parser("molecule", help="point group and vibrational species of a free molecule or ion")

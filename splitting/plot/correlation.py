@@ -41,6 +41,7 @@ __all__ = [
     "Connector",
     "DiagramArtists",
     "PhaseDiagramArtists",
+    "activity_handles",
     "activity_mark",
     "correlation_diagram",
     "fit_width",
@@ -78,6 +79,26 @@ def activity_mark(ax: Axes, x: float, y: float, kind: str, *, size: float, edge_
         zorder=4,
     )
     return m
+
+
+def activity_handles(size: float, *, edge_width: float = 1.0) -> list[Line2D]:
+    """Legend handles of the two activity marks (IR, Raman)."""
+    from matplotlib.lines import Line2D
+
+    return [
+        Line2D(
+            [],
+            [],
+            linestyle="none",
+            marker=st["marker"],
+            markersize=size,
+            markerfacecolor=st["face"],
+            markeredgecolor=st["edge"],
+            markeredgewidth=edge_width,
+            label=st["label"],
+        )
+        for st in (ACTIVITY_STYLE["ir"], ACTIVITY_STYLE["raman"])
+    ]
 
 
 def fit_width(text: Text, max_width: float, renderer) -> None:
@@ -596,20 +617,7 @@ def legend_handles(font: float = _FONT) -> list[Line2D]:
     """Legend entries of the correlation diagrams: the two activity marks, degeneracy, lines."""
     from matplotlib.lines import Line2D
 
-    handles = [
-        Line2D(
-            [],
-            [],
-            linestyle="none",
-            marker=st["marker"],
-            markersize=font * 0.55,
-            markerfacecolor=st["face"],
-            markeredgecolor=st["edge"],
-            markeredgewidth=1.2,
-            label=st["label"],
-        )
-        for st in (ACTIVITY_STYLE["ir"], ACTIVITY_STYLE["raman"])
-    ]
+    handles = activity_handles(font * 0.55, edge_width=1.2)
     handles.append(
         Line2D(
             [], [], linestyle="none", marker="$3$", markersize=font * 0.5, color=COLOURS["muted"], label="degeneracy"

@@ -12,7 +12,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from ..errors import InputError
-from .correlation import ACTIVITY_STYLE, COLOURS, activity_mark
+from .correlation import COLOURS, activity_handles, activity_mark
 from .lines import (
     _FONT,
     LinePatternArtists,
@@ -198,20 +198,7 @@ def estimated_pattern(phases, units, estimates, *, band: str | None, free_act) -
                     mx += 0.09
         if r == 0:
             headers = _headings(fig, ax, phases, units, columns, lefts, widths, hi, small)
-    handles = [
-        Line2D(
-            [],
-            [],
-            linestyle="none",
-            marker=ACTIVITY_STYLE[k]["marker"],
-            markersize=5,
-            markerfacecolor=ACTIVITY_STYLE[k]["face"],
-            markeredgecolor=ACTIVITY_STYLE[k]["edge"],
-            markeredgewidth=1.0,
-            label=ACTIVITY_STYLE[k]["label"],
-        )
-        for k in ("ir", "raman")
-    ]
+    handles = activity_handles(5)
     handles.append(
         Line2D([], [], color=COLOURS["ink"], linewidth=1.6, label="one line at its estimate (length: degeneracy)")
     )

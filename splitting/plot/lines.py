@@ -33,7 +33,7 @@ from typing import TYPE_CHECKING, Any
 
 from .._io import atomic_write_bytes
 from ..errors import InputError
-from .correlation import ACTIVITY_STYLE, COLOURS, activity_mark, fit_width, select_unit
+from .correlation import COLOURS, activity_handles, activity_mark, fit_width, select_unit
 from .mulliken import formula_mathtext, mathtext
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -532,20 +532,7 @@ def _draw_pattern(phases, units, columns, bands, content, ys, lanes, top, scale,
                     zorder=1,
                 )
 
-    handles = [
-        Line2D(
-            [],
-            [],
-            linestyle="none",
-            marker=ACTIVITY_STYLE[k]["marker"],
-            markersize=5,
-            markerfacecolor=ACTIVITY_STYLE[k]["face"],
-            markeredgecolor=ACTIVITY_STYLE[k]["edge"],
-            markeredgewidth=1.0,
-            label=ACTIVITY_STYLE[k]["label"],
-        )
-        for k in ("ir", "raman")
-    ]
+    handles = activity_handles(5)
     handles.append(Line2D([], [], color=COLOURS["ink"], linewidth=1.6, label="one species (length: degeneracy)"))
     fig.legend(
         handles=handles,
