@@ -55,4 +55,4 @@ def test_page_examples_run(page: str, workdir: Path) -> None:
     namespace: dict = {}
     for block in blocks:
         code = "\n".join(line for line in block.splitlines() if not NEEDS_ESTIMATE.search(line))
-        exec(compile(code, f"docs/{page}", "exec"), namespace)  # noqa: S102 - our own docs
+        exec(compile(code, f"docs/{page}", "exec"), namespace)  # our own docs
