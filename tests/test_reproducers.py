@@ -1,6 +1,6 @@
 """Structure files that once crashed, hung or silently changed the crystal.
 
-Each folder of tests/data/reproducers/ (R01 ... R27) holds the input of one reported case;
+Each folder of tests/data/bad-inputs/ (R01 ... R27) holds the input of one reported case;
 the case's number names it. What each did before it was fixed: R01 a segmentation fault in
 the symmetry library (NaN/inf coordinates); R02 a hang in the neighbour search (flat cells);
 R03 an endless read (a count line of 10^12 atoms); R11/R12/R27 internal errors or a cell
@@ -21,7 +21,7 @@ from pathlib import Path
 
 import pytest
 
-DATA = Path(__file__).parent / "data" / "reproducers"
+DATA = Path(__file__).parent / "data" / "bad-inputs"
 #: cases read with --disordered (the occupancies were the trouble there)
 DISORDERED = {"R14", "R15", "R16"}
 CASES = sorted(
