@@ -138,3 +138,16 @@ def test_character_table_formats(run_cli) -> None:
 def test_character_table_format_refuses_other_outputs(run_cli, extra) -> None:
     code, out, err = run_cli(["group", "C3v", "--format", "md", *extra])
     assert code == 2 and out == "" and err.startswith("error: --format md") and err.count("\n") == 1
+
+
+def test_lower_table_formats(run_cli, structures_dir) -> None:
+    """lower --format: the candidate subgroups of index 2 of R-3c are R3c, R32 and R-3
+    (International Tables for Crystallography Vol. A1, maximal subgroups of No. 167)."""
+    calcite = str(structures_dir / "calcite.cif")
+    code, out, _ = run_cli(["lower", calcite, "--max-index", "2", "--format", "csv"])
+    assert code == 0
+    rows = list(csv.reader(io.StringIO(out)))
+    assert rows[0] == ["#", "space group", "type", "index", "factor", "sites", "bands IR/Raman", "misfit"]
+    assert sorted(r[1] for r in rows[1:]) == ["R-3 (148)", "R32 (155)", "R3c (161)"]
+    code, out, err = run_cli(["lower", calcite, "--max-index", "2", "--format", "md", "--json"])
+    assert code == 2 and out == "" and err.startswith("error: --format md")

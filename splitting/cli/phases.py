@@ -11,6 +11,7 @@ from ._shared import (
     crystal_options,
     disorder_options,
     emit,
+    format_option,
     json_option,
     line_options,
     options,
@@ -75,6 +76,15 @@ def run_lower(args: argparse.Namespace) -> int:
         window_cm1=args.window,
         state=chosen.get(ALL_UNITS, "ordered"),
     )
+    if args.format != "text":
+        from ..report.tables import CLI_FORMATS, lowering_table
+
+        if args.json:
+            raise InputError(f"--format {args.format} writes the table of candidates; leave out --json")
+
+        out = lowering_table(result, CLI_FORMATS[args.format])
+        print(out, end="" if out.endswith("\n") else "\n")
+        return 0
     return emit(args, result.to_dict(), lambda: lowering_text(result))
 
 
@@ -108,4 +118,5 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     disorder_options(lo)
     crystal_options(lo)
     json_option(lo)
+    format_option(lo, "the table of candidate phases")
     lo.set_defaults(run=run_lower)

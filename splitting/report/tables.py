@@ -30,7 +30,15 @@ if TYPE_CHECKING:  # pragma: no cover
     from ..crystal.results import CrystalPrediction, UnitOrbit
     from ..groups import Representation
 
-__all__ = ["TABLE_FORMATS", "character_table", "correlation_table", "escape_latex", "render_table", "species_table"]
+__all__ = [
+    "TABLE_FORMATS",
+    "character_table",
+    "correlation_table",
+    "escape_latex",
+    "lowering_table",
+    "render_table",
+    "species_table",
+]
 
 #: formats understood by the table functions
 TABLE_FORMATS = ("markdown", "latex", "csv")
@@ -258,6 +266,14 @@ def character_table(name: str, fmt: str = "markdown") -> str:
     headers, rows = character_rows(name)
     rows = [[_species(r[0], fmt), *r[1:]] for r in rows]
     return render_table(headers, rows, fmt, caption=f"character table of {name}")
+
+
+def lowering_table(result, fmt: str = "markdown", *, limit: int = 40) -> str:
+    """The candidate phases of :func:`splitting.phases.lower.lower` as a table, best first."""
+    from .text import LOWERING_HEADERS, lowering_rows
+
+    _check(fmt)
+    return render_table(list(LOWERING_HEADERS), lowering_rows(result, limit=limit), fmt, caption="candidate phases")
 
 
 CLI_FORMATS = {"csv": "csv", "md": "markdown", "tex": "latex"}

@@ -392,6 +392,30 @@ def _wrap_items(items: list[str], sep: str, width: int) -> list[str]:
     return out or [""]
 
 
+#: columns of the candidate table of ``lower``
+LOWERING_HEADERS = ("#", "space group", "type", "index", "factor", "sites", "bands IR/Raman", "misfit")
+
+
+def lowering_rows(result, *, limit: int = 40) -> list[list[object]]:
+    """One row per candidate phase (columns :data:`LOWERING_HEADERS`), sites and bands unwrapped."""
+    wanted = {name.rpartition("/")[2] for name, _, _ in result.observed}
+    rows = []
+    for k, c in enumerate(result.candidates[:limit], 1):
+        sites = "; ".join(f"{u.name} {u.wyckoff} {u.site_group} x{u.count}" for u in c.prediction.units)
+        shown = [b for b in c.bands() if b.band in wanted] or c.bands()[:6]
+        bands = ", ".join(f"{b.band} {b.ir}/{b.raman}" for b in shown)
+        if "lattice" in wanted:
+            lat = c.lattice()
+            bands += (
+                f", lattice {lat['translational_ir'] + lat['librational_ir']}/"
+                f"{lat['translational_raman'] + lat['librational_raman']}"
+            )
+        score = "-" if c.score is None else f"{c.score:g}"
+        group = f"{c.space_group[1]} ({c.space_group[0]})"
+        rows.append([k, group, c.kind, c.index, c.point_group, sites, bands, score])
+    return rows
+
+
 def lowering_text(result, *, limit: int = 40) -> str:
     """Readable list of candidate lower-symmetry phases."""
     p = result.parent
@@ -413,35 +437,21 @@ def lowering_text(result, *, limit: int = 40) -> str:
         lines.append("Observed: " + ", ".join(f"{b} {t} = {n}" for b, t, n in result.observed))
     lines += [f"note: {n}" for n in result.notes]
     rows = []
-    for k, c in enumerate(result.candidates[:limit], 1):
-        sites = "; ".join(f"{u.name} {u.wyckoff} {u.site_group} x{u.count}" for u in c.prediction.units)
-        wanted = {name.rpartition("/")[2] for name, _, _ in result.observed}
-        shown = [b for b in c.bands() if b.band in wanted] or c.bands()[:6]
-        bands = ", ".join(f"{b.band} {b.ir}/{b.raman}" for b in shown)
-        if "lattice" in wanted:
-            lat = c.lattice()
-            bands += (
-                f", lattice {lat['translational_ir'] + lat['librational_ir']}/"
-                f"{lat['translational_raman'] + lat['librational_raman']}"
-            )
-        score = "-" if c.score is None else f"{c.score:g}"
+    for row in lowering_rows(result, limit=limit):
+        k, group, kind, index, factor, sites, bands, score = row
         site_lines = _wrap_items(sites.split("; "), ";", _LOWER_SITES_WIDTH)
         band_lines = _wrap_items(bands.split(", "), ",", _LOWER_BANDS_WIDTH)
         for j in range(max(len(site_lines), len(band_lines))):
             first = j == 0
             rows.append(
                 [
-                    k if first else "",
-                    f"{c.space_group[1]} ({c.space_group[0]})" if first else "",
-                    c.kind if first else "",
-                    c.index if first else "",
-                    c.point_group if first else "",
+                    *((k, group, kind, index, factor) if first else ("",) * 5),
                     site_lines[j] if j < len(site_lines) else "",
                     band_lines[j] if j < len(band_lines) else "",
                     score if first else "",
                 ]
             )
-    lines.append(table(["#", "space group", "type", "index", "factor", "sites", "bands IR/Raman", "misfit"], rows))
+    lines.append(table(list(LOWERING_HEADERS), rows))
     if result.observed:
         lines.append("")
         for k, c in enumerate(result.candidates[:limit], 1):
