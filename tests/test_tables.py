@@ -151,3 +151,17 @@ def test_lower_table_formats(run_cli, structures_dir) -> None:
     assert sorted(r[1] for r in rows[1:]) == ["R-3 (148)", "R32 (155)", "R3c (161)"]
     code, out, err = run_cli(["lower", calcite, "--max-index", "2", "--format", "md", "--json"])
     assert code == 2 and out == "" and err.startswith("error: --format md")
+
+
+def test_compare_table_formats(run_cli, structures_dir) -> None:
+    """compare --format: in Pa-3 C60 (4 molecules on S6 sites) the free Ag band gives Ag + Tg
+    (correlation Ih -> S6 -> Th; from memory, as in Dresselhaus, Dresselhaus and Eklund 1996)."""
+    files = [str(structures_dir / "c60_fcc_Fm-3.cif"), str(structures_dir / "c60_ordered_Pa-3.cif")]
+    code, out, _ = run_cli(["compare", *files, "--labels", "300 K", "90 K", "--format", "csv"])
+    assert code == 0
+    rows = list(csv.reader(io.StringIO(out)))
+    assert rows[0] == ["unit", "band", "300 K", "90 K"]
+    ag = next(r for r in rows if r[1] == "Ag")
+    assert ag[3].startswith("Ag + Tg")
+    code, out, err = run_cli(["compare", *files, "--format", "tex", "--json"])
+    assert code == 2 and out == "" and err.startswith("error: --format tex")

@@ -28,6 +28,8 @@ def run_compare(args: argparse.Namespace) -> int:
     from ..phases.compare import compare_phases
     from ..report.text import sequence_text
 
+    if args.format != "text" and (args.json or args.estimate):
+        raise InputError(f"--format {args.format} writes the band table; leave out --json and --estimate")
     labels = args.labels or [os.path.basename(f) for f in args.files]
     if len(labels) != len(args.files):
         raise InputError(f"{len(labels)} labels for {len(args.files)} files")
@@ -40,6 +42,12 @@ def run_compare(args: argparse.Namespace) -> int:
     payload = seq.to_dict()
     if estimates is not None:
         payload["estimates"] = [e.to_dict() for e in estimates]
+    if args.format != "text":
+        from ..report.tables import CLI_FORMATS, sequence_table
+
+        out = sequence_table(seq, CLI_FORMATS[args.format])
+        print(out, end="" if out.endswith("\n") else "\n")
+        return 0
     return emit(args, payload, lambda: sequence_text(seq, estimates))
 
 
@@ -96,6 +104,7 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     estimate_options(c, "add columns of model wavenumbers, one per phase")
     crystal_options(c)
     json_option(c)
+    format_option(c, "the band table (components of each band, phase by phase)")
     c.set_defaults(run=run_compare)
 
     lo = sub.add_parser("lower", help="candidate lower-symmetry phases, ranked by observed line counts")

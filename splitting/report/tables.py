@@ -37,6 +37,7 @@ __all__ = [
     "escape_latex",
     "lowering_table",
     "render_table",
+    "sequence_table",
     "species_table",
 ]
 
@@ -266,6 +267,15 @@ def character_table(name: str, fmt: str = "markdown") -> str:
     headers, rows = character_rows(name)
     rows = [[_species(r[0], fmt), *r[1:]] for r in rows]
     return render_table(headers, rows, fmt, caption=f"character table of {name}")
+
+
+def sequence_table(seq, fmt: str = "markdown") -> str:
+    """The band table of :func:`splitting.phases.compare.compare_phases`: each band's components per phase."""
+    from .text import band_sequence_rows
+
+    _check(fmt)
+    headers, rows = band_sequence_rows(seq)
+    return render_table(headers, rows, fmt, caption="components of each band, phase by phase")
 
 
 def lowering_table(result, fmt: str = "markdown", *, limit: int = 40) -> str:

@@ -349,14 +349,11 @@ def sequence_text(seq, estimates=None) -> str:
     )
     lines.append("")
     lines.append("Bands (components per fundamental; IR / Raman counts)")
-    headers = ["unit", "band", *[ph.label for ph in seq.phases]]
+    headers, rows = band_sequence_rows(seq)
     if estimates is not None:
         headers += [f"model cm-1, {ph.label}" for ph in seq.phases]
-    rows = []
-    for b in seq.bands:
-        rows.append([_name(b.unit), b.band, *[f"{s.text()}  [IR {s.ir}, R {s.raman}]" for s in b.states]])
-        if estimates is not None:
-            rows[-1] += [band_cell(e, b.unit, b.band) for e in estimates]
+        for row, b in zip(rows, seq.bands, strict=True):
+            row += [band_cell(e, b.unit, b.band) for e in estimates]
     lines.append(table(headers, rows))
     remarks = [f"  {_name(b.unit)} {b.band}: {r}" for b in seq.bands for r in b.remarks]
     lines.append("")
@@ -372,6 +369,13 @@ def sequence_text(seq, estimates=None) -> str:
             lines.append(f"  {ph.label}, model estimate (cm-1): {lattice_cell(e)}")
         lines.append(f"  model columns: {estimates[0].model.removeprefix('model: ')}")
     return "\n".join(lines)
+
+
+def band_sequence_rows(seq) -> tuple[list[str], list[list[str]]]:
+    """Headers and rows of the band table of a phase sequence: components per phase, IR / Raman counts."""
+    headers = ["unit", "band", *[ph.label for ph in seq.phases]]
+    rows = [[_name(b.unit), b.band, *[f"{s.text()}  [IR {s.ir}, R {s.raman}]" for s in b.states]] for b in seq.bands]
+    return headers, rows
 
 
 #: Widths (characters) of the wrapped columns of the candidate table, so it stays within 100 columns.
