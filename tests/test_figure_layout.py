@@ -154,3 +154,20 @@ def test_explain_figure_words(preds):
     assert any("components" in w for w in words)
     labels = [a.get_text() for a in art["labels"] if hasattr(a, "get_text")]
     assert any(t.startswith("H$_{g}$(1)") for t in labels)
+
+
+def test_explain_figure_says_bands_left_out(preds):
+    """Lines only near 1086 cm-1: the other carbonate bands are outside the range and the legend says so."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from splitting.plot.explain import explanation_axes, explanation_figure
+    from splitting.spectra.assign import explain
+    from splitting.spectra.measured import Peak, PeakList
+
+    # invented lines: one band region only
+    e = explain(preds["calcite"], PeakList((Peak(1086.0, 1.0), Peak(1088.0, 0.2)), technique="raman"))
+    ax = explanation_axes()
+    art = explanation_figure(e, ax=ax)
+    words = [t.get_text() for t in art["legend"][0].get_texts()]
+    assert any("outside the measured range" in w for w in words), words

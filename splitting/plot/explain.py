@@ -256,6 +256,13 @@ def explanation_figure(
     ]
     if any(not b.predicted for b in shown if b.predicted_site):
         handles.append(Line2D([], [], color=COLOURS["inactive"], lw=1.0, label="band inactive in the crystal"))
+    left_out = len(bands) - len(shown)
+    if left_out:
+        # said in the legend, so the reader knows the figure does not show every band
+        word = "band lies" if left_out == 1 else "bands lie"
+        handles.append(
+            Line2D([], [], linestyle="none", label=f"{left_out} {word} outside the measured range (not drawn)")
+        )
     artists["legend"].append(
         ax.legend(
             handles=handles,
