@@ -12,7 +12,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from ..errors import InputError
-from .correlation import COLOURS, activity_handles, activity_mark
+from .correlation import COLOURS, activity_mark
 from .lines import (
     _FONT,
     LinePatternArtists,
@@ -20,6 +20,7 @@ from .lines import (
     _bar_in,
     _headings,
     _mode_mathtext,
+    legend_and_note,
 )
 from .mulliken import mathtext
 
@@ -95,7 +96,6 @@ def estimated_pattern(phases, units, estimates, *, band: str | None, free_act) -
     """Draw the line pattern at estimated positions (see the module docstring)."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
-    from matplotlib.lines import Line2D
     from matplotlib.ticker import MaxNLocator
 
     _check(phases, estimates)
@@ -198,31 +198,15 @@ def estimated_pattern(phases, units, estimates, *, band: str | None, free_act) -
                     mx += 0.09
         if r == 0:
             headers = _headings(fig, ax, phases, units, columns, lefts, widths, hi, small)
-    handles = activity_handles(5)
-    handles.append(
-        Line2D([], [], color=COLOURS["ink"], linewidth=1.6, label="one line at its estimate (length: degeneracy)")
-    )
-    fig.legend(
-        handles=handles,
-        loc="lower center",
-        ncol=3,
-        frameon=False,
-        fontsize=small * 0.95,
-        bbox_to_anchor=(0.5, 0.42 / total_h),
-        handlelength=1.6,
-        columnspacing=1.4,
-    )
     model = estimates[0].model.removeprefix("model: ")
-    note = fig.text(
-        0.5,
-        0.05 / total_h,
-        "positions are model estimates, not measurements (each panel has its own wavenumber axis):\n" + model,
-        ha="center",
-        va="bottom",
-        fontsize=small * 0.75,
-        color=COLOURS["muted"],
-        linespacing=1.15,
-        wrap=True,
+    note = legend_and_note(
+        fig,
+        small=small,
+        bar="one line at its estimate (length: degeneracy)",
+        legend_y=0.42 / total_h,
+        note="positions are model estimates, not measurements (each panel has its own wavenumber axis):\n" + model,
+        note_y=0.05 / total_h,
+        note_size=small * 0.75,
     )
     headers.append(note)
     return LinePatternArtists(

@@ -439,7 +439,6 @@ def _column_widths(phases, bands, content, lanes, free_act) -> tuple[list[float]
 def _draw_pattern(phases, units, columns, bands, content, ys, lanes, top, scale, free_act) -> LinePatternArtists:
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
-    from matplotlib.lines import Line2D
     from matplotlib.ticker import MaxNLocator
 
     widths, offsets = _column_widths(phases, bands, content, lanes, free_act)
@@ -532,34 +531,16 @@ def _draw_pattern(phases, units, columns, bands, content, ys, lanes, top, scale,
                     zorder=1,
                 )
 
-    handles = activity_handles(5)
-    handles.append(Line2D([], [], color=COLOURS["ink"], linewidth=1.6, label="one species (length: degeneracy)"))
-    fig.legend(
-        handles=handles,
-        loc="lower center",
-        ncol=3,
-        frameon=False,
-        fontsize=small * 0.95,
-        bbox_to_anchor=(0.5, 0.34 / H),
-        handlelength=1.2,
-        columnspacing=0.9,
-    )
     where = "at the free-unit wavenumber of the mode table" if scale else "in the row of its free-unit band"
-    note_text = (
-        f"positions are not predicted: every bar sits {where}; the number before a species counts its "
-        "components (distinct frequencies); a model estimate (estimate command) places them"
-    )
-    # wrap to the figure's width (a character of this font is about half its size wide)
-    per_line = max(30, int(0.92 * fig.get_figwidth() * 72 / (0.5 * small * 0.85)))
-    note = fig.text(
-        0.5,
-        0.04 / H,
-        "\n".join(textwrap.wrap(note_text, per_line)),
-        ha="center",
-        va="bottom",
-        fontsize=small * 0.85,
-        color=COLOURS["muted"],
-        linespacing=1.15,
+    note = legend_and_note(
+        fig,
+        small=small,
+        bar="one species (length: degeneracy)",
+        legend_y=0.34 / H,
+        note=f"positions are not predicted: every bar sits {where}; the number before a species counts its "
+        "components (distinct frequencies); a model estimate (estimate command) places them",
+        note_y=0.04 / H,
+        note_size=small * 0.85,
     )
     headers.append(note)
     return LinePatternArtists(
@@ -574,6 +555,39 @@ def _draw_pattern(phases, units, columns, bands, content, ys, lanes, top, scale,
         marks=tuple(marks),
         estimated=False,
         note=note,
+    )
+
+
+def legend_and_note(
+    fig, *, small: float, bar: str, legend_y: float, note: str, note_y: float, note_size: float
+) -> Text:
+    """The legend of a line pattern (activity marks and what a bar is) and its note, wrapped to the figure."""
+    from matplotlib.lines import Line2D
+
+    handles = activity_handles(5)
+    handles.append(Line2D([], [], color=COLOURS["ink"], linewidth=1.6, label=bar))
+    fig.legend(
+        handles=handles,
+        loc="lower center",
+        ncol=3,
+        frameon=False,
+        fontsize=small * 0.95,
+        bbox_to_anchor=(0.5, legend_y),
+        handlelength=1.2,
+        columnspacing=0.9,
+    )
+    # wrap to the figure's width (a character of this font is about half its size wide)
+    per_line = max(30, int(0.92 * fig.get_figwidth() * 72 / (0.5 * note_size)))
+    lines = [w for part in note.split("\n") for w in textwrap.wrap(part, per_line)]
+    return fig.text(
+        0.5,
+        note_y,
+        "\n".join(lines),
+        ha="center",
+        va="bottom",
+        fontsize=note_size,
+        color=COLOURS["muted"],
+        linespacing=1.15,
     )
 
 
