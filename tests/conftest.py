@@ -2,7 +2,8 @@
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+import contextlib
+from collections.abc import Callable, Iterator, Sequence
 from pathlib import Path
 
 import pytest
@@ -59,3 +60,15 @@ def c60_fcc(structures_dir: Path):
     from splitting.crystal.predict import predict
 
     return predict(structures_dir / "c60_fcc_Fm-3.cif")
+
+
+@contextlib.contextmanager
+def local_cluster() -> Iterator[str]:
+    """Address of a local Dask cluster with two single-threaded worker processes (closed on exit)."""
+    import dask
+    from distributed import LocalCluster
+
+    # a busy machine (the test suite runs in parallel with other work) may start workers slowly
+    with dask.config.set({"distributed.comm.timeouts.connect": "120s"}):
+        with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=":0") as c:
+            yield c.scheduler_address

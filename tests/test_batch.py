@@ -11,6 +11,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from conftest import local_cluster
 
 from splitting.batch import read_screening, screen
 from splitting.batch.store import read_metadata
@@ -22,13 +23,8 @@ GOOD = ["calcite.cif", "co2_Pa-3.cif", "nh4cl_ordered_P-43m.cif", "naphthalene_P
 @pytest.fixture(scope="module")
 def cluster() -> Iterator[str]:
     """Address of a local cluster with two single-threaded worker processes."""
-    import dask
-    from distributed import LocalCluster
-
-    # a busy machine (the test suite runs in parallel with other work) may start workers slowly
-    with dask.config.set({"distributed.comm.timeouts.connect": "120s"}):
-        with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=":0") as c:
-            yield c.scheduler_address
+    with local_cluster() as address:
+        yield address
 
 
 @pytest.fixture

@@ -18,6 +18,7 @@ from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
+from conftest import local_cluster
 
 from splitting.batch import Progress, screen
 
@@ -27,13 +28,8 @@ COPIES = 3  # variants per file: the same crystal with a different comment line 
 
 @pytest.fixture
 def cluster() -> Iterator[str]:
-    import dask
-    from distributed import LocalCluster
-
-    # a busy machine (the test suite runs in parallel with other work) may start workers slowly
-    with dask.config.set({"distributed.comm.timeouts.connect": "120s"}):
-        with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=":0") as c:
-            yield c.scheduler_address
+    with local_cluster() as address:
+        yield address
 
 
 @pytest.fixture
