@@ -73,6 +73,12 @@ def format_option(p: argparse.ArgumentParser, what: str) -> None:
     )
 
 
+def print_table(text: str) -> int:
+    """Print a table written for ``--format`` (ending in one newline); exit status 0."""
+    print(text, end="" if text.endswith("\n") else "\n")
+    return 0
+
+
 def crystal_options(p: argparse.ArgumentParser) -> None:
     """Options of every command that reads a crystal: tolerances, units, bonds, size limit."""
     p.add_argument(

@@ -5,7 +5,17 @@ from __future__ import annotations
 import argparse
 
 from ..errors import InputError
-from ._shared import crystal_options, disorder_options, emit, format_option, json_option, options, states, warn
+from ._shared import (
+    crystal_options,
+    disorder_options,
+    emit,
+    format_option,
+    json_option,
+    options,
+    print_table,
+    states,
+    warn,
+)
 from .estimate import estimate_options, estimates_for
 
 
@@ -31,8 +41,7 @@ def run_predict(args: argparse.Namespace) -> int:
     if args.format != "text":
         from ..report.tables import CLI_FORMATS, prediction_tables
 
-        print(prediction_tables(result, CLI_FORMATS[args.format]), end="")
-        return 0
+        return print_table(prediction_tables(result, CLI_FORMATS[args.format]))
     estimates = estimates_for(args, [args.file])
     est = estimates[0] if estimates else None
     payload = result.to_dict()

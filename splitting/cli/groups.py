@@ -7,7 +7,7 @@ import argparse
 from ..defaults import DEFAULT_TOLERANCE, MAX_UNIT_TOLERANCE
 from ..errors import BookkeepingError, InputError, SplittingError, SymmetryError
 from ._parser import number
-from ._shared import emit, format_option, input_limit_option, json_option
+from ._shared import emit, format_option, input_limit_option, json_option, print_table
 
 
 def run_group(args: argparse.Namespace) -> int:
@@ -28,9 +28,7 @@ def run_group(args: argparse.Namespace) -> int:
             raise InputError(
                 f"--format {args.format} writes the character table of a finite group; leave out --json and --to"
             )
-        out = character_table(name, CLI_FORMATS[args.format])
-        print(out, end="" if out.endswith("\n") else "\n")
-        return 0
+        return print_table(character_table(name, CLI_FORMATS[args.format]))
     if args.to:
         from ..groups.subgroups import embeddings
 

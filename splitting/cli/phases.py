@@ -16,6 +16,7 @@ from ._shared import (
     line_options,
     options,
     phase_states,
+    print_table,
     states,
     warn,
 )
@@ -45,9 +46,7 @@ def run_compare(args: argparse.Namespace) -> int:
     if args.format != "text":
         from ..report.tables import CLI_FORMATS, sequence_table
 
-        out = sequence_table(seq, CLI_FORMATS[args.format])
-        print(out, end="" if out.endswith("\n") else "\n")
-        return 0
+        return print_table(sequence_table(seq, CLI_FORMATS[args.format]))
     return emit(args, payload, lambda: sequence_text(seq, estimates))
 
 
@@ -90,9 +89,7 @@ def run_lower(args: argparse.Namespace) -> int:
         if args.json:
             raise InputError(f"--format {args.format} writes the table of candidates; leave out --json")
 
-        out = lowering_table(result, CLI_FORMATS[args.format])
-        print(out, end="" if out.endswith("\n") else "\n")
-        return 0
+        return print_table(lowering_table(result, CLI_FORMATS[args.format]))
     return emit(args, result.to_dict(), lambda: lowering_text(result))
 
 
