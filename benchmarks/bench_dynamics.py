@@ -12,10 +12,11 @@ Goals (on 2 cores):
   no cache: under 3 minutes;
 * ``test_naphthalene_estimate``: naphthalene P2_1/a, no cache: under 1 minute;
 * ``test_c60_cached_estimate``: C60 Pa-3 again with the Hessian cached: under 5 s;
-* ``test_intermolecular_cost_vs_atoms``: the exp-6 and the Ewald force constants of CO2
-  supercells (12 to 324 atoms); prints the exponent of time against atoms of each (goal:
-  about 1, linear; the reciprocal-space Ewald term couples every pair of charges, so its
-  k = 0 force constants fill a dense matrix, quadratic for large enough cells).
+* ``test_intermolecular_cost_vs_atoms``: the exp-6, the damped shifted-force (DSF) and
+  the Ewald terms of CO2 supercells (12 to 1,800 atoms) and NH4Cl supercells (6 to 2,058
+  atoms); prints time and peak memory and their exponents against atoms (goal: about 1,
+  linear, for exp-6 and DSF, whose force constants are sparse; the reciprocal-space Ewald
+  term couples every pair of charges, so its force constants fill a dense matrix: about 2).
 
 Timings on a shared machine depend strongly on the load: multi-threaded BLAS under
 contention costs several times the single-threaded CPU time (``OMP_NUM_THREADS=1`` helps).
@@ -80,36 +81,66 @@ def test_naphthalene_estimate(benchmark, tmp_path):
     assert len(est.lattice_lines()) == 9
 
 
-def test_intermolecular_cost_vs_atoms(benchmark):
+def _intermolecular_run(case: str, rep: tuple[int, int, int], which: str) -> tuple[int, float, float]:
+    """Atoms, seconds and peak traced memory (MiB) of one intermolecular term of one supercell."""
+    import tracemalloc
+
     from splitting.crystal.read import load_structure
-    from splitting.dynamics.ewald import coulomb_force_constants
+    from splitting.dynamics.coulomb import dsf_terms
+    from splitting.dynamics.ewald import ewald_terms
     from splitting.dynamics.potential import WILLIAMS, exp6_force_constants
 
-    base = load_structure(STRUCTURES / "co2_Pa-3.cif")
-    sizes, t_exp6, t_ewald = [], [], []
+    atoms = load_structure(STRUCTURES / _CASES[case]).repeat(rep)
+    n = len(atoms)
+    # charges of the right size and sign for timing only (not the model's tight-binding ones)
+    q = np.array([_TEST_CHARGES[z] for z in atoms.numbers])
+    unit_of = np.arange(n)  # unit labels only select pairs; exactness is not needed here
+    symbols = [s if s in "CHNO" else "C" for s in atoms.get_chemical_symbols()]
+    tracemalloc.start()
+    t0 = time.perf_counter()
+    if which == "exp-6":
+        exp6_force_constants(atoms.cell[:], atoms.positions, symbols, unit_of, WILLIAMS, cutoff=12.0, sparse=True)
+    elif which == "dsf":
+        dsf_terms(atoms.cell[:], atoms.positions, q, unit_of, cutoff=12.0)
+    else:
+        ewald_terms(atoms.cell[:], atoms.positions, q, unit_of, cutoff=12.0)
+    seconds = time.perf_counter() - t0
+    peak = tracemalloc.get_traced_memory()[1] / 2**20
+    tracemalloc.stop()
+    return n, seconds, peak
 
-    def run(atoms):
-        n = len(atoms)
-        pos = atoms.positions
-        unit_of = np.arange(n) // 3  # unit labels only select pairs; exactness is not needed here
-        q = np.tile([0.4, -0.2, -0.2], n // 3)
-        t0 = time.perf_counter()
-        exp6_force_constants(atoms.cell[:], pos, atoms.get_chemical_symbols(), unit_of, WILLIAMS, cutoff=12.0)
-        t1 = time.perf_counter()
-        coulomb_force_constants(atoms.cell[:], pos, q, unit_of, cutoff=12.0)
-        return t1 - t0, time.perf_counter() - t1
 
-    for rep in ((1, 1, 1), (2, 1, 1), (2, 2, 1), (2, 2, 2), (3, 2, 2), (3, 3, 3)):
-        atoms = base.repeat(rep)
-        sizes.append(len(atoms))
-        a, b = run(atoms)
-        t_exp6.append(a)
-        t_ewald.append(b)
-    _once(benchmark, lambda: run(base.repeat((2, 2, 2))))
-    for name, times in (("exp-6", t_exp6), ("Ewald", t_ewald)):
-        slope = np.polyfit(np.log(sizes[2:]), np.log(times[2:]), 1)[0]
+_CASES = {"co2": "co2_Pa-3.cif", "nh4cl": "nh4cl_ordered_P-43m.cif"}
+_TEST_CHARGES = {6: 0.6, 8: -0.3, 7: -0.4, 1: 0.35, 17: -1.0}
+_SUPERCELLS = {
+    "co2": ((1, 1, 1), (2, 1, 1), (2, 2, 2), (3, 3, 3), (4, 4, 4), (5, 5, 5), (5, 5, 6)),
+    "nh4cl": ((1, 1, 1), (2, 2, 2), (4, 4, 4), (6, 6, 6), (7, 7, 7)),
+}
+
+
+@pytest.mark.parametrize("case", ["co2", "nh4cl"])
+def test_intermolecular_cost_vs_atoms(benchmark, case):
+    """Time and memory of the exp-6, the DSF and the Ewald terms, 6-12 to about 2,000 atoms.
+
+    Prints the exponent of time and of memory against atoms over the cells of 90 atoms and
+    more (1 = linear), each time the faster of two runs.  Goal: about 1 for exp-6 and DSF;
+    the Ewald sum is dense, about 2.
+    """
+    kinds = ("exp-6", "dsf", "ewald") if case == "co2" else ("dsf", "ewald")
+    # the faster of two runs of each size (the machine is shared; memory is the same each time)
+    table = {
+        k: [min((_intermolecular_run(case, rep, k) for _ in range(2)), key=lambda r: r[1]) for rep in _SUPERCELLS[case]]
+        for k in kinds
+    }
+    _once(benchmark, lambda: _intermolecular_run(case, (2, 2, 2), "dsf"))
+    for kind, rows in table.items():
+        n, t, m = (np.array(x) for x in zip(*rows, strict=True))
+        big = n >= 90
+        slope_t = np.polyfit(np.log(n[big]), np.log(t[big]), 1)[0]
+        slope_m = np.polyfit(np.log(n[big]), np.log(m[big]), 1)[0]
         print(
-            f"\n{name} force constants: atoms {sizes}, seconds {[round(t, 3) for t in times]}, "
-            f"exponent {slope:.2f} (1 = linear)"
+            f"\n{case} {kind}: atoms {n.tolist()}, seconds {np.round(t, 3).tolist()}, MiB {np.round(m, 1).tolist()}; "
+            f"exponent time {slope_t:.2f}, memory {slope_m:.2f}"
         )
-        assert slope < 2.5
+        if kind != "ewald":
+            assert slope_t < 1.4 and slope_m < 1.4

@@ -72,3 +72,14 @@ def local_cluster() -> Iterator[str]:
     with dask.config.set({"distributed.comm.timeouts.connect": "120s"}):
         with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=":0") as c:
             yield c.scheduler_address
+
+
+@pytest.fixture(autouse=True)
+def _fresh_estimates() -> Iterator[None]:
+    """Every test starts without the model estimates an earlier test kept in the process."""
+    import sys
+
+    memo = sys.modules.get("splitting.dynamics.memo")
+    if memo is not None:
+        memo.clear()
+    yield

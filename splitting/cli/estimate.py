@@ -13,7 +13,8 @@ from ._shared import crystal_options, emit, json_option, options
 
 
 def run_estimate(args: argparse.Namespace) -> int:
-    from ..dynamics import EstimateOptions, estimate
+    from ..dynamics import EstimateOptions
+    from ..dynamics.memo import cached_estimate
     from ..dynamics.text import estimate_text
 
     charges = []
@@ -45,9 +46,10 @@ def run_estimate(args: argparse.Namespace) -> int:
         cache=args.cache,
         allow_imaginary=args.allow_imaginary,
         unit_charges=tuple(charges),
+        coulomb=args.coulomb,
     )
     progress = (lambda msg: print(f"... {msg}", file=sys.stderr, flush=True)) if args.progress else None
-    result = estimate(args.file, options(args), model, progress=progress)
+    result = cached_estimate(args.file, options(args), model, progress=progress)
     if spectra_kind:
         _write_spectra(result, args.spectra, spectra_kind, width)
     return emit(args, result.to_dict(), lambda: estimate_text(result, internal=not args.lattice_only))
@@ -80,22 +82,29 @@ def estimate_options(p: argparse.ArgumentParser, what: str) -> None:
         help=f"also run the model estimate of where each line lies (as the estimate command) and {what}",
     )
     p.add_argument(
-        "--cache", metavar="DIR", help="with --estimate: folder for cached free-unit Hessians (reused between runs)"
+        "--cache",
+        metavar="DIR",
+        help="with --estimate: folder for cached free-unit Hessians and estimates (reused between runs)",
     )
 
 
 def estimates_for(args: argparse.Namespace, files) -> list | None:
-    """One model estimate per structure file when ``--estimate`` was given, else None."""
+    """One model estimate per structure file when ``--estimate`` was given, else None.
+
+    A file given twice (or a copy of it) is estimated once; with ``--cache`` the result
+    is kept there for later runs (:mod:`splitting.dynamics.memo`).
+    """
     if not getattr(args, "estimate", False):
         if getattr(args, "cache", None):
             raise InputError("--cache is the folder of the model estimate; give --estimate with it")
         return None
-    from ..dynamics import EstimateOptions, estimate
+    from ..dynamics import EstimateOptions
+    from ..dynamics.memo import cached_estimate
 
     if args.cache and not os.path.isdir(args.cache):
         raise InputError(f"--cache {args.cache}: no such folder")
     opts = options(args)
-    return [estimate(f, opts, EstimateOptions(cache=args.cache)) for f in files]
+    return [cached_estimate(f, opts, EstimateOptions(cache=args.cache)) for f in files]
 
 
 def add_parsers(sub: argparse._SubParsersAction) -> None:
@@ -112,6 +121,13 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
         default="all",
         help="point charges: every atom's tight-binding charge (default), only charged units, or none",
     )
+    es.add_argument(
+        "--coulomb",
+        choices=["ewald", "dsf"],
+        default="ewald",
+        help="how the point charges are summed: ewald (the full lattice sum, default) or dsf (damped "
+        "shifted-force pairs within the cut-off: cost linear in atoms, for large cells)",
+    )
     es.add_argument("--charge", action="append", metavar="FORMULA=Q", help="total charge of a unit; repeatable")
     es.add_argument(
         "--cutoff",
@@ -124,7 +140,9 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
         action="store_true",
         help="scale every free fundamental to the gas-phase value of the bundled mode table",
     )
-    es.add_argument("--cache", metavar="DIR", help="folder for cached free-unit Hessians (reused between runs)")
+    es.add_argument(
+        "--cache", metavar="DIR", help="folder for cached free-unit Hessians and estimates (reused between runs)"
+    )
     es.add_argument(
         "--allow-imaginary", action="store_true", help="show imaginary lines instead of refusing the structure"
     )

@@ -18,7 +18,7 @@ import numpy as np
 
 from ..errors import InputError
 from .constants import WAVENUMBER
-from .ewald import coulomb_force_constants
+from .coulomb import coulomb_terms
 from .freemodes import FreeMode, free_modes, rigid_basis
 from .freeunit import FreeHessian, free_hessian
 from .potential import ParameterSet, exp6_force_constants
@@ -214,7 +214,7 @@ def build_cell_model(
 
 
 def dynamical_matrix(
-    model: CellModel, params: ParameterSet, *, cutoff: float, use_charges: bool
+    model: CellModel, params: ParameterSet, *, cutoff: float, use_charges: bool, coulomb: str = "ewald"
 ) -> tuple[np.ndarray, float]:
     """Mass-weighted k = 0 dynamical matrix (eV/(angstrom^2 amu)) and the exp-6 lattice energy per cell (eV).
 
@@ -224,23 +224,44 @@ def dynamical_matrix(
     ``K = sum_i [(F_i . r_i) 1 - (F_i r_i^T + r_i F_i^T) / 2]`` for each unit (r_i from its
     centre of mass), is added in the rotational subspace of each unit (the rigid-molecule
     treatment of lattice dynamics; common practice).
+
+    The intermolecular terms are built as sparse matrices (time and memory linear in the
+    number of atoms), except the reciprocal part of the Ewald sum (``coulomb="ewald"``),
+    which is dense; the matrix returned is dense (3n, 3n).
     """
     fc, grad, energy = exp6_force_constants(
-        model.lattice, model.positions, model.symbols, model.unit_of, params, cutoff=cutoff
+        model.lattice, model.positions, model.symbols, model.unit_of, params, cutoff=cutoff, sparse=True
     )
-    if use_charges and np.any(np.abs(model.charges) > 1e-6):
-        fq, gq = coulomb_force_constants(model.lattice, model.positions, model.charges, model.unit_of, cutoff=cutoff)
-        fc, grad = fc + fq, grad + gq
-    fc = fc + _rotation_term(model, -grad)
     w = np.repeat(1 / np.sqrt(model.masses), 3)
-    d = model.intra + fc * np.outer(w, w)
-    return (d + d.T) / 2, energy
+    d = model.intra.copy()
+    if use_charges and np.any(np.abs(model.charges) > 1e-6):
+        fq, gq, _ = coulomb_terms(
+            model.lattice, model.positions, model.charges, model.unit_of, cutoff=cutoff, method=coulomb
+        )
+        grad = grad + gq
+        if isinstance(fq, np.ndarray):
+            d += fq * np.outer(w, w)
+        else:
+            fc = fc + fq
+    _add_sparse(d, fc + _rotation_term(model, -grad), w)
+    d += d.T
+    d /= 2
+    return d, energy
 
 
-def _rotation_term(model: CellModel, forces: np.ndarray) -> np.ndarray:
-    """Force constants (3n, 3n) of the second-order rigid-rotation term of every molecular unit."""
+def _add_sparse(d: np.ndarray, fc, w: np.ndarray) -> None:
+    """Add the mass-weighted sparse force constants ``fc`` to the dense matrix ``d`` in place."""
+    coo = fc.tocoo()
+    coo.sum_duplicates()
+    d[coo.row, coo.col] += coo.data * w[coo.row] * w[coo.col]
+
+
+def _rotation_term(model: CellModel, forces: np.ndarray):
+    """Force constants (3n, 3n, sparse) of the second-order rigid-rotation term of every molecular unit."""
+    from scipy.sparse import coo_matrix
+
     n = len(model.masses)
-    out = np.zeros((3 * n, 3 * n))
+    rows, cols, data = [], [], []
     for u in range(int(model.unit_of.max()) + 1):
         idx = np.flatnonzero(model.unit_of == u)
         if len(idx) < 2:
@@ -254,6 +275,11 @@ def _rotation_term(model: CellModel, forces: np.ndarray) -> np.ndarray:
         mw = np.repeat(m, 3)
         gram = rot.T @ (mw[:, None] * rot)
         rplus = np.linalg.pinv(gram, rcond=1e-8) @ (rot.T * mw[None, :])
-        cols = (3 * idx[:, None] + np.arange(3)[None, :]).ravel()
-        out[np.ix_(cols, cols)] += rplus.T @ k @ rplus
-    return out
+        c = (3 * idx[:, None] + np.arange(3)[None, :]).ravel()
+        rr, cc = np.meshgrid(c, c, indexing="ij")
+        rows.append(rr.ravel())
+        cols.append(cc.ravel())
+        data.append((rplus.T @ k @ rplus).ravel())
+    if not rows:
+        return coo_matrix((3 * n, 3 * n))
+    return coo_matrix((np.concatenate(data), (np.concatenate(rows), np.concatenate(cols))), shape=(3 * n, 3 * n))

@@ -17,6 +17,7 @@ import numpy as np
 
 from ..errors import BookkeepingError, InputError
 from .constants import ZERO_CM1
+from .coulomb import COULOMB_METHODS
 from .dynmat import build_cell_model, dynamical_matrix
 from .freeunit import METHOD
 from .neutron import neutron_weight
@@ -37,6 +38,8 @@ LATTICE_RULE = 0.20
 INTERNAL_RULE = 0.5
 #: imaginary lines larger than this (cm-1) refuse the structure
 IMAGINARY_LIMIT = 3.0
+#: how the model text names each Coulomb sum
+_COULOMB_TEXT = {"ewald": "; point charges (Ewald)", "dsf": "; point charges (damped shifted-force sum)"}
 
 
 @dataclass(frozen=True)
@@ -61,6 +64,10 @@ class EstimateOptions:
         Return imaginary lines instead of refusing the structure.
     unit_charges : tuple of (str, int)
         Charges of units given by the user.
+    coulomb : str
+        How the point charges are summed: ``"ewald"`` (the full lattice sum, the default)
+        or ``"dsf"`` (the damped shifted-force pair sum, cost linear in atoms; see
+        :mod:`splitting.dynamics.coulomb`).
     """
 
     potential: str = "williams"
@@ -70,6 +77,7 @@ class EstimateOptions:
     cache: str | None = None
     allow_imaginary: bool = False
     unit_charges: tuple[tuple[str, int], ...] = ()
+    coulomb: str = "ewald"
 
 
 def estimate(
@@ -117,6 +125,8 @@ def estimate_atoms(
         raise InputError(f"no exp-6 parameter set {mo.potential!r}; sets: {', '.join(PARAMETER_SETS)}")
     if mo.charges not in ("auto", "all", "none"):
         raise InputError(f"charges must be auto, all or none, not {mo.charges!r}")
+    if mo.coulomb not in COULOMB_METHODS:
+        raise InputError(f"the Coulomb sum must be {' or '.join(COULOMB_METHODS)}, not {mo.coulomb!r}")
     if not mo.cutoff > 0:
         raise InputError("the lattice-sum cut-off must be positive")
     params = PARAMETER_SETS[mo.potential]
@@ -164,7 +174,7 @@ def estimate_atoms(
     def solve(ps):
         if progress:
             progress(f"dynamical matrix with the exp-6 set {ps.name!r}")
-        dmat, energy = dynamical_matrix(cm, ps, cutoff=mo.cutoff, use_charges=use_charges)
+        dmat, energy = dynamical_matrix(cm, ps, cutoff=mo.cutoff, use_charges=use_charges, coulomb=mo.coulomb)
         return split_by_species(dmat, cell, factor, perms, prediction.gamma_3n, bases), energy
 
     blocks, energy = solve(params)
@@ -204,7 +214,7 @@ def estimate_atoms(
         f"model: harmonic k = 0 lattice dynamics; free units {METHOD} (tblite)"
         + (" scaled to measured gas-phase fundamentals" if mo.scale_to_measured else "")
         + f"; exp-6 set {params.name!r}, {mo.cutoff:g} A cut-off"
-        + ("; point charges (Ewald)" if use_charges else "")
+        + (_COULOMB_TEXT[mo.coulomb] if use_charges else "")
         + "; structure as given (not relaxed)"
     )
     return Estimate(

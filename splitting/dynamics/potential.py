@@ -142,13 +142,11 @@ def neighbour_pairs(
     )
     images = (pos[None, :, :] + (grid @ lattice)[:, None, :]).reshape(-1, 3)
     tree = cKDTree(images)
-    found = cKDTree(pos).query_ball_tree(tree, cutoff)
-    ii, kk = [], []
-    for i, hits in enumerate(found):
-        ii.extend([i] * len(hits))
-        kk.extend(hits)
-    ii = np.asarray(ii, dtype=int)
-    kk = np.asarray(kk, dtype=int)
+    # all pairs at once as arrays (no Python lists), rows of each atom together
+    found = cKDTree(pos).sparse_distance_matrix(tree, cutoff, output_type="ndarray")
+    order = np.argsort(found["i"], kind="stable")
+    ii = found["i"][order].astype(int)
+    kk = found["j"][order].astype(int)
     jj = kk % len(pos)
     shift = grid[kk // len(pos)]
     keep = ~((ii == jj) & np.all(shift == 0, axis=1))
@@ -186,11 +184,13 @@ def exp6_force_constants(
     params: ParameterSet,
     *,
     cutoff: float = DEFAULT_CUTOFF,
+    sparse: bool = False,
 ) -> tuple[np.ndarray, np.ndarray, float]:
     """k = 0 force constants (eV/angstrom^2, (3n, 3n)), gradient (eV/angstrom, (n, 3)) and energy per cell (eV).
 
     Pairs inside one unit (same unit, no lattice shift) are left out: the free-unit
-    Hessian holds them.
+    Hessian holds them.  With ``sparse`` the force constants come as a ``scipy.sparse``
+    CSR matrix, built in time and memory linear in the number of atoms.
     """
     symbols = list(symbols)
     n = len(symbols)
@@ -208,6 +208,10 @@ def exp6_force_constants(
     energy = float(np.sum(-a / r**6 + ex) / 2)
     d1 = 6 * a / r**7 - c * ex
     d2 = -42 * a / r**8 + c * c * ex
+    if sparse:
+        from .pairs import pair_force_constants
+
+        return pair_force_constants(n, i, vec, d1, d2, j), pair_gradient(n, i, vec, d1), energy
     fc = np.zeros((n, 3, n, 3))
     add_pairs(fc, i, j, radial_hessian(vec, d1, d2))
     return fc.reshape(3 * n, 3 * n), pair_gradient(n, i, vec, d1), energy
