@@ -52,9 +52,10 @@ def estimate_key(path: str | os.PathLike[str], options=None, model=None, *, form
 
     opts = options or Options()
     mo = dataclasses.replace(model or EstimateOptions(), cache=None)
+    from .._io import read_input_bytes
+
     h = hashlib.sha256()
-    with open(path, "rb") as fh:
-        h.update(hashlib.sha256(fh.read()).digest())
+    h.update(hashlib.sha256(read_input_bytes(path, what="structure file")).digest())
     for part in (format or "", repr(opts), repr(mo), _code_fingerprint()):
         h.update(b"\0" + part.encode())
     return h.hexdigest()[:32]
