@@ -13,19 +13,9 @@ from ._shared import crystal_options, emit, json_option, options
 
 
 def run_estimate(args: argparse.Namespace) -> int:
-    from ..dynamics import EstimateOptions
     from ..dynamics.memo import cached_estimate
     from ..dynamics.text import estimate_text
 
-    charges = []
-    for item in args.charge or []:
-        f, sep, q = item.partition("=")
-        try:
-            charges.append((f.strip(), int(q)))
-        except ValueError:
-            raise InputError(f"--charge {item!r} is not of the form FORMULA=Q (e.g. NH4=1)") from None
-        if not sep:
-            raise InputError(f"--charge {item!r} is not of the form FORMULA=Q (e.g. NH4=1)")
     spectra_kind = None
     if args.spectra:
         spectra_kind = os.path.splitext(args.spectra)[1].lower()
@@ -36,19 +26,7 @@ def run_estimate(args: argparse.Namespace) -> int:
     width = DEFAULT_SPECTRUM_WIDTH if args.width is None else args.width
     if not (width > 0 and width < 1000):
         raise InputError(f"--width {width:g}: the line width must be above 0 and below 1000 cm-1")
-    if args.cache and not os.path.isdir(args.cache):
-        raise InputError(f"--cache {args.cache}: no such folder")
-    model = EstimateOptions(
-        potential=args.potential,
-        charges=args.charges,
-        cutoff=args.cutoff,
-        scale_to_measured=args.scale_to_measured,
-        cache=args.cache,
-        allow_imaginary=args.allow_imaginary,
-        unit_charges=tuple(charges),
-        coulomb=args.coulomb,
-    )
-    progress = (lambda msg: print(f"... {msg}", file=sys.stderr, flush=True)) if args.progress else None
+    model, progress = model_from(args)
     result = cached_estimate(args.file, options(args), model, progress=progress)
     if spectra_kind:
         _write_spectra(result, args.spectra, spectra_kind, width)
@@ -74,8 +52,96 @@ def _write_spectra(result, target: str, kind: str, width: float) -> None:
     print(f"simulated spectra written to {target}", file=sys.stderr)
 
 
+#: attributes of the model options (``model_options``) and their defaults
+_MODEL_DEFAULTS = {
+    "potential": "williams",
+    "charges": "all",
+    "charge": None,
+    "coulomb": "ewald",
+    "cutoff": DEFAULT_CUTOFF,
+    "scale_to_measured": False,
+    "allow_imaginary": False,
+    "progress": False,
+}
+
+
+def model_options(p: argparse.ArgumentParser, prefix: str = "") -> None:
+    """The choices of the model estimate, the same for ``estimate`` and every command with ``--estimate``.
+
+    Defaults are None (filled in by :func:`model_from`), so a command can tell a choice
+    given without ``--estimate`` and refuse it.
+    """
+    p.add_argument("--potential", choices=list(POTENTIAL_NAMES), help=f"{prefix}exp-6 parameter set (default williams)")
+    p.add_argument(
+        "--charges",
+        choices=["all", "auto", "none"],
+        help=f"{prefix}point charges: every atom's tight-binding charge (default), only charged units, or none",
+    )
+    p.add_argument("--charge", action="append", metavar="FORMULA=Q", help=f"{prefix}total charge of a unit; repeatable")
+    p.add_argument(
+        "--coulomb",
+        choices=["ewald", "dsf"],
+        help=f"{prefix}how the point charges are summed: ewald (the full lattice sum, default) or dsf (damped "
+        "shifted-force pairs within the cut-off: cost linear in atoms, for large cells)",
+    )
+    p.add_argument(
+        "--cutoff",
+        type=number(low=0, high=MAX_CUTOFF, unit="A (the lattice-sum cut-off)"),
+        help=f"{prefix}lattice-sum cut-off, angstrom (default {DEFAULT_CUTOFF})",
+    )
+    p.add_argument(
+        "--scale-to-measured",
+        action="store_true",
+        default=None,
+        help=f"{prefix}scale every free fundamental to the gas-phase value of the bundled mode table",
+    )
+    p.add_argument(
+        "--allow-imaginary",
+        action="store_true",
+        default=None,
+        help=f"{prefix}show imaginary lines instead of refusing the structure",
+    )
+    p.add_argument(
+        "--progress",
+        action="store_true",
+        default=None,
+        help=f"{prefix}report each step of the estimate on standard error",
+    )
+
+
+def model_from(args: argparse.Namespace):
+    """``(EstimateOptions, progress callback or None)`` from the model options and ``--cache``."""
+    from ..dynamics import EstimateOptions
+
+    got = {k: (_MODEL_DEFAULTS[k] if getattr(args, k, None) is None else getattr(args, k)) for k in _MODEL_DEFAULTS}
+    charges = []
+    for item in got["charge"] or []:
+        f, sep, q = item.partition("=")
+        try:
+            charges.append((f.strip(), int(q)))
+        except ValueError:
+            raise InputError(f"--charge {item!r} is not of the form FORMULA=Q (e.g. NH4=1)") from None
+        if not sep:
+            raise InputError(f"--charge {item!r} is not of the form FORMULA=Q (e.g. NH4=1)")
+    cache = getattr(args, "cache", None)
+    if cache and not os.path.isdir(cache):
+        raise InputError(f"--cache {cache}: no such folder")
+    model = EstimateOptions(
+        potential=got["potential"],
+        charges=got["charges"],
+        cutoff=got["cutoff"],
+        scale_to_measured=got["scale_to_measured"],
+        cache=cache,
+        allow_imaginary=got["allow_imaginary"],
+        unit_charges=tuple(charges),
+        coulomb=got["coulomb"],
+    )
+    progress = (lambda msg: print(f"... {msg}", file=sys.stderr, flush=True)) if got["progress"] else None
+    return model, progress
+
+
 def estimate_options(p: argparse.ArgumentParser, what: str) -> None:
-    """``--estimate`` (run the model estimate for every structure) and ``--cache DIR``."""
+    """``--estimate`` (run the model estimate for every structure), ``--cache DIR`` and the model's choices."""
     p.add_argument(
         "--estimate",
         action="store_true",
@@ -86,25 +152,29 @@ def estimate_options(p: argparse.ArgumentParser, what: str) -> None:
         metavar="DIR",
         help="with --estimate: folder for cached free-unit Hessians and estimates (reused between runs)",
     )
+    model_options(p, "with --estimate: ")
 
 
 def estimates_for(args: argparse.Namespace, files) -> list | None:
     """One model estimate per structure file when ``--estimate`` was given, else None.
 
     A file given twice (or a copy of it) is estimated once; with ``--cache`` the result
-    is kept there for later runs (:mod:`splitting.dynamics.memo`).
+    is kept there for later runs (:mod:`splitting.dynamics.memo`).  A model option given
+    without ``--estimate`` is refused, never ignored.
     """
     if not getattr(args, "estimate", False):
         if getattr(args, "cache", None):
             raise InputError("--cache is the folder of the model estimate; give --estimate with it")
+        for key in _MODEL_DEFAULTS:
+            if getattr(args, key, None) is not None:
+                flag = "--" + key.replace("_", "-")
+                raise InputError(f"{flag} is a choice of the model estimate; give --estimate with it")
         return None
-    from ..dynamics import EstimateOptions
     from ..dynamics.memo import cached_estimate
 
-    if args.cache and not os.path.isdir(args.cache):
-        raise InputError(f"--cache {args.cache}: no such folder")
+    model, progress = model_from(args)
     opts = options(args)
-    return [cached_estimate(f, opts, EstimateOptions(cache=args.cache)) for f in files]
+    return [cached_estimate(f, opts, model, progress=progress) for f in files]
 
 
 def add_parsers(sub: argparse._SubParsersAction) -> None:
@@ -114,37 +184,9 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
         "each with its species, activity and origin",
     )
     es.add_argument("file", help="crystal structure (CIF, POSCAR, or another format ase reads)")
-    es.add_argument("--potential", choices=list(POTENTIAL_NAMES), default="williams", help="exp-6 parameter set")
-    es.add_argument(
-        "--charges",
-        choices=["all", "auto", "none"],
-        default="all",
-        help="point charges: every atom's tight-binding charge (default), only charged units, or none",
-    )
-    es.add_argument(
-        "--coulomb",
-        choices=["ewald", "dsf"],
-        default="ewald",
-        help="how the point charges are summed: ewald (the full lattice sum, default) or dsf (damped "
-        "shifted-force pairs within the cut-off: cost linear in atoms, for large cells)",
-    )
-    es.add_argument("--charge", action="append", metavar="FORMULA=Q", help="total charge of a unit; repeatable")
-    es.add_argument(
-        "--cutoff",
-        type=number(low=0, high=MAX_CUTOFF, unit="A (the lattice-sum cut-off)"),
-        default=DEFAULT_CUTOFF,
-        help=f"lattice-sum cut-off, angstrom (default {DEFAULT_CUTOFF})",
-    )
-    es.add_argument(
-        "--scale-to-measured",
-        action="store_true",
-        help="scale every free fundamental to the gas-phase value of the bundled mode table",
-    )
+    model_options(es)
     es.add_argument(
         "--cache", metavar="DIR", help="folder for cached free-unit Hessians and estimates (reused between runs)"
-    )
-    es.add_argument(
-        "--allow-imaginary", action="store_true", help="show imaginary lines instead of refusing the structure"
     )
     es.add_argument(
         "--spectra",
@@ -159,7 +201,6 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
         f"(default {DEFAULT_SPECTRUM_WIDTH:g})",
     )
     es.add_argument("--lattice-only", action="store_true", help="text output: lattice modes only")
-    es.add_argument("--progress", action="store_true", help="report each step on standard error")
     crystal_options(es)
     json_option(es)
     es.set_defaults(run=run_estimate)

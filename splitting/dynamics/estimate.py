@@ -145,7 +145,8 @@ def estimate_atoms(
             if e not in params.like:
                 raise InputError(
                     f"unit {u.formula}: element {e} is not covered by the exp-6 set {params.name!r} "
-                    f"(it covers {', '.join(sorted(params.like))}); no estimate can be made for this crystal"
+                    f"(it covers {', '.join(sorted(params.like))}); no estimate can be made for this crystal "
+                    "(the symmetry analysis needs no potential: predict, compare or explain without --estimate)"
                 )
     if progress:
         progress(f"{source}: {prediction.space_group.symbol}, {len(cell.numbers)} atoms, {len(units)} units")
