@@ -97,3 +97,9 @@ def test_tight_binding_failure_from_the_command_line(run_cli, structures_dir, tm
     argv = [command, structures_dir / "co2_Pa-3.cif", "--cache", tmp_path]
     line = _one_error_line(*run_cli(argv if command == "estimate" else [*argv, "--estimate"]))
     assert "unit CO2" in line and "did not converge" in line and "charge" in line
+
+
+def test_charges_that_do_not_add_up_name_the_units(run_cli, structures_dir, cache):
+    argv = ["estimate", structures_dir / "co2_Pa-3.cif", "--cache", cache, "--charge", "CO2=1"]
+    line = _one_error_line(*run_cli(argv))
+    assert "CO2 +1 (x4)" in line and "--charge FORMULA=Q" in line

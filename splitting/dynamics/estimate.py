@@ -162,9 +162,14 @@ def estimate_atoms(
     )
     total_charge = float(np.sum(cm.charges))
     if abs(total_charge) > 1e-3:
+        net: dict[str, list[float]] = {}
+        for k, u in enumerate(units):
+            net.setdefault(u.formula, []).append(float(np.sum(cm.charges[cm.unit_of == k])))
+        named = ", ".join(f"{f} {round(q[0]):+d} (x{len(q)})" for f, q in net.items() if abs(q[0]) > 0.5)
         raise InputError(
-            f"the charges of the units add up to {total_charge:+.2f} e per cell, not 0; give the charge of each "
-            "ion with --charge FORMULA=Q"
+            f"the charges of the units add up to {total_charge:+.2f} e per cell, not 0"
+            + (f" (units {named})" if named else "")
+            + "; give the charge of each ion with --charge FORMULA=Q"
         )
     charged = any(abs(float(np.sum(cm.charges[cm.unit_of == k]))) > 0.5 for k in range(len(units)))
     use_charges = mo.charges == "all" or (mo.charges == "auto" and charged)
