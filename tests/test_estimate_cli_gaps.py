@@ -103,3 +103,14 @@ def test_charges_that_do_not_add_up_name_the_units(run_cli, structures_dir, cach
     argv = ["estimate", structures_dir / "co2_Pa-3.cif", "--cache", cache, "--charge", "CO2=1"]
     line = _one_error_line(*run_cli(argv))
     assert "CO2 +1 (x4)" in line and "--charge FORMULA=Q" in line
+
+
+def test_lattice_only_text_leaves_out_every_internal_line(run_cli, structures_dir, cache):
+    code, out, err = run_cli(["estimate", structures_dir / "co2_Pa-3.cif", "--cache", cache, "--lattice-only"])
+    assert code == 0, err
+    assert "librational (CO2)" in out and "nu2" not in out and "band splitting" not in out
+
+
+def test_lattice_only_with_json_is_refused(run_cli, structures_dir):
+    line = _one_error_line(*run_cli(["estimate", structures_dir / "co2_Pa-3.cif", "--lattice-only", "--json"]))
+    assert "--lattice-only" in line

@@ -26,6 +26,8 @@ def run_estimate(args: argparse.Namespace) -> int:
     width = DEFAULT_SPECTRUM_WIDTH if args.width is None else args.width
     if not (width > 0 and width < 1000):
         raise InputError(f"--width {width:g}: the line width must be above 0 and below 1000 cm-1")
+    if args.lattice_only and args.json:
+        raise InputError("--lattice-only shortens the text table; the JSON always holds every line (leave one out)")
     model, progress = model_from(args)
     result = cached_estimate(args.file, options(args), model, progress=progress)
     if spectra_kind:

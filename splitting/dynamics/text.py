@@ -30,7 +30,7 @@ def estimate_text(est: Estimate, *, internal: bool = True) -> str:
             f"{line.activity:<10} {line.label}"
         )
     out.append(f"  acoustic modes at {est.acoustic_max_cm1:.2g} cm-1 (checked: zero)")
-    if est.bands:
+    if est.bands and internal:
         out += ["", "  band splitting (model, cm-1): free value, site shift, factor-group splitting, components"]
         for b in est.bands:
             comps = ", ".join(f"{s} {w:.1f}" for s, w in b.components)
