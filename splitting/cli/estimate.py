@@ -64,6 +64,8 @@ _MODEL_DEFAULTS = {
     "scale_to_measured": False,
     "allow_imaginary": False,
     "progress": False,
+    "relax": False,
+    "relax_cell": False,
 }
 
 
@@ -109,6 +111,18 @@ def model_options(p: argparse.ArgumentParser, prefix: str = "") -> None:
         default=None,
         help=f"{prefix}report each step of the estimate on standard error",
     )
+    p.add_argument(
+        "--relax",
+        action="store_true",
+        default=None,
+        help=f"{prefix}first move the units (rigid, on their sites) to the model's minimum within the space group",
+    )
+    p.add_argument(
+        "--relax-cell",
+        action="store_true",
+        default=None,
+        help=f"{prefix}as --relax, and relax the cell parameters too (within the lattice system)",
+    )
 
 
 def model_from(args: argparse.Namespace):
@@ -137,6 +151,8 @@ def model_from(args: argparse.Namespace):
         allow_imaginary=got["allow_imaginary"],
         unit_charges=tuple(charges),
         coulomb=got["coulomb"],
+        relax=got["relax"],
+        relax_cell=got["relax_cell"],
     )
     progress = (lambda msg: print(f"... {msg}", file=sys.stderr, flush=True)) if got["progress"] else None
     return model, progress

@@ -115,8 +115,14 @@ def build_cell_model(
     cache=None,
     scale_to_measured: bool = False,
     progress: Progress | None = None,
+    turns: dict[int, tuple[np.ndarray, np.ndarray]] | None = None,
 ) -> CellModel:
-    """Free-unit Hessians of every orbit, carried onto every unit of the cell."""
+    """Free-unit Hessians of every orbit, carried onto every unit of the cell.
+
+    ``turns`` (from :func:`splitting.dynamics.relax.relax_structure`) maps an orbit to the
+    positions of its first unit as given and the rotation carrying them onto the unit as it
+    sits now: the free-unit Hessian is that of the unit as given (cached), turned.
+    """
     from ase.data import atomic_masses, chemical_symbols
 
     n = len(cell.numbers)
@@ -150,10 +156,11 @@ def build_cell_model(
             continue
         if progress:
             progress(f"{u0.formula}: free-unit Hessian ({len(u0.atoms)} atoms, charge {q_formal:+d})")
+        reference, turn = (turns or {}).get(o, (u0.positions, np.eye(3)))
         fh = free_hessian(
             u0.formula,
             u0.numbers,
-            u0.positions,
+            reference,
             charge=q_formal,
             tolerance=unit_tolerance,
             cache=cache,
@@ -180,7 +187,7 @@ def build_cell_model(
         for k, h in orbit:
             u = units[k]
             amap = _atom_map(cell, h, u0.positions, u.positions)
-            r = cell.rotations[h]
+            r = cell.rotations[h] @ turn
             rot = np.kron(np.eye(len(amap)), r)
             du = rot @ d0 @ rot.T  # in u0's atom order, rotated
             idx = np.array(u.atoms)[amap]  # cell index of every u0 atom's image

@@ -3,8 +3,9 @@
 ``estimate(path)`` runs the engine's crystal pipeline (space group, units, orbits, factor
 group and the whole-cell count), builds the harmonic k = 0 model of the primitive cell at
 the structure as given and returns every line with its factor-group species, activity and
-origin.  The lattice is not relaxed (relaxation within the space group is left for later):
-a structure far from a minimum of the model shows imaginary modes and is refused.
+origin.  By default the structure is used as given; ``relax`` (and ``relax_cell``) first move
+it to the model's minimum within its space group (:mod:`splitting.dynamics.relax`).  A
+structure far from a minimum of the model shows imaginary modes and is refused.
 """
 
 from __future__ import annotations
@@ -68,6 +69,10 @@ class EstimateOptions:
         How the point charges are summed: ``"ewald"`` (the full lattice sum, the default)
         or ``"dsf"`` (the damped shifted-force pair sum, cost linear in atoms; see
         :mod:`splitting.dynamics.coulomb`).
+    relax : bool
+        Move the units (rigid) to the model's minimum within the space group first.
+    relax_cell : bool
+        Relax the cell parameters too (within the lattice system); implies ``relax``.
     """
 
     potential: str = "williams"
@@ -78,6 +83,8 @@ class EstimateOptions:
     allow_imaginary: bool = False
     unit_charges: tuple[tuple[str, int], ...] = ()
     coulomb: str = "ewald"
+    relax: bool = False
+    relax_cell: bool = False
 
 
 def estimate(
@@ -173,6 +180,31 @@ def estimate_atoms(
         )
     charged = any(abs(float(np.sum(cm.charges[cm.unit_of == k]))) > 0.5 for k in range(len(units)))
     use_charges = mo.charges == "all" or (mo.charges == "auto" and charged)
+    relaxation = None
+    if mo.relax or mo.relax_cell:
+        from .relax import relax_structure
+
+        cell, units, turns, relaxation = relax_structure(
+            cell,
+            units,
+            orbits,
+            cm,
+            params,
+            cutoff=mo.cutoff,
+            use_charges=use_charges,
+            with_cell=mo.relax_cell,
+            progress=progress,
+        )
+        cm = build_cell_model(
+            cell,
+            units,
+            orbits,
+            unit_tolerance=opts.unit_tolerance,
+            charges_given=dict(mo.unit_charges),
+            cache=mo.cache,
+            scale_to_measured=mo.scale_to_measured,
+            turns=turns,
+        )
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     perms = atom_permutations(cell, cm.positions)
     bases = species_bases(cell, factor, perms, prediction.gamma_3n)
@@ -200,10 +232,15 @@ def estimate_atoms(
         raise InputError(
             f"unit {worst.unit}: the model has {len(bad)} imaginary line(s), down to {-worst.wavenumber_cm1:.0f}i "
             f"cm-1 ({worst.origin}, {worst.species}): the structure is far from a minimum of the exp-6 set "
-            f"{params.name!r}; check the structure or try another --potential or --charges "
-            "(lattice relaxation is not available yet; --allow-imaginary shows the lines anyway)"
+            f"{params.name!r}; check the structure or try another --potential or --charges"
+            + ("" if relaxation else ", or relax it first (--relax, --relax-cell)")
+            + " (--allow-imaginary shows the lines anyway)"
         )
     warnings = list(prediction.warnings)
+    if relaxation is not None:
+        from .relax import warnings_of
+
+        warnings += warnings_of(relaxation)
     if bad:
         warnings.append(f"{len(bad)} imaginary line(s): the structure is not at a minimum of the model")
     bands = _bands(cm, lines, units, orbits)
@@ -221,7 +258,13 @@ def estimate_atoms(
         + (" scaled to measured gas-phase fundamentals" if mo.scale_to_measured else "")
         + f"; exp-6 set {params.name!r}, {mo.cutoff:g} A cut-off"
         + (_COULOMB_TEXT[mo.coulomb] if use_charges else "")
-        + "; structure as given (not relaxed)"
+        + (
+            "; structure as given (not relaxed)"
+            if relaxation is None
+            else "; units and cell relaxed within the space group"
+            if relaxation.cell
+            else "; units relaxed within the space group (cell as given)"
+        )
     )
     return Estimate(
         source=source,
@@ -238,6 +281,7 @@ def estimate_atoms(
         uncertainty_rule=rule,
         lattice_energy_ev=energy,
         warnings=tuple(warnings),
+        relaxation=relaxation,
     )
 
 

@@ -115,7 +115,11 @@ def _read(target: Path) -> Estimate | None:
         data = json.loads(target.read_text(encoding="utf-8"))
         if data.get("format") != _FORMAT:
             return None
-        fields = {k: _plain(v) for k, v in data["estimate"].items() if k not in ("lines", "bands")}
+        fields = {k: _plain(v) for k, v in data["estimate"].items() if k not in ("lines", "bands", "relaxation")}
+        if data["estimate"].get("relaxation") is not None:
+            from .relax import Relaxation
+
+            fields["relaxation"] = Relaxation(**{k: _plain(v) for k, v in data["estimate"]["relaxation"].items()})
         lines = tuple(Line(**{k: _plain(v) for k, v in line.items()}) for line in data["estimate"]["lines"])
         bands = tuple(BandEstimate(**{k: _plain(v) for k, v in b.items()}) for b in data["estimate"]["bands"])
         return Estimate(lines=lines, bands=bands, **fields)

@@ -3,6 +3,10 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from .relax import Relaxation
 
 __all__ = ["BandEstimate", "Estimate", "Line"]
 
@@ -147,6 +151,9 @@ class Estimate:
     lattice_energy_ev : float
         exp-6 lattice energy per primitive cell (eV).
     warnings : tuple of str
+    relaxation : Relaxation or None
+        How far the structure moved when it was relaxed within its space group first
+        (None: the structure as given).
     """
 
     source: str
@@ -163,6 +170,7 @@ class Estimate:
     uncertainty_rule: str
     lattice_energy_ev: float
     warnings: tuple[str, ...] = ()
+    relaxation: Relaxation | None = None
 
     def lattice_lines(self) -> tuple[Line, ...]:
         """Translational and librational optical lines."""
@@ -204,4 +212,5 @@ class Estimate:
             "lines": [line.to_dict() for line in self.lines],
             "bands": [b.to_dict() for b in self.bands],
             "warnings": list(self.warnings),
+            "relaxation": None if self.relaxation is None else self.relaxation.to_dict(),
         }

@@ -18,6 +18,7 @@ def estimate_text(est: Estimate, *, internal: bool = True) -> str:
         f"  {est.model}",
         f"  exp-6 parameters: {est.parameter_source}",
         f"  uncertainty: {est.uncertainty_rule}",
+        *([f"  {est.relaxation.summary}"] if est.relaxation else []),
         "",
         "  cm-1 (model)    +/-   species  activity   origin",
     ]
