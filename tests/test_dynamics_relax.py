@@ -121,3 +121,13 @@ def test_estimate_command_relaxes(structures_dir, cache, capsys):
     assert "cell relaxed" in out["model"]
     est = estimate(structures_dir / "co2_Pa-3.cif", model=EstimateOptions(cache=cache))
     assert est.relaxation is None and "as given" in est.model
+
+
+def test_relaxed_estimate_read_back_from_the_cache_folder(structures_dir, cache, tmp_path):
+    from splitting.dynamics import memo
+
+    est = estimate(structures_dir / "co2_Pa-3.cif", model=EstimateOptions(cache=cache, relax_cell=True))
+    memo._write(tmp_path / "e.json", est)
+    back = memo._read(tmp_path / "e.json")
+    assert back.relaxation == est.relaxation
+    assert back.to_dict() == est.to_dict()
