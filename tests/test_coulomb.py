@@ -221,3 +221,16 @@ def test_cli_coulomb_option(run_cli, structures_dir, tmp_path):
     assert "damped shifted-force" in json.loads(out)["model"]
     code, _, err = run_cli(["estimate", structures_dir / "co2_Pa-3.cif", "--coulomb", "wolf"])
     assert code != 0 and "--coulomb" in err and "Traceback" not in err
+
+
+def test_dsf_supercell_changes_nothing_per_cell(co2_cell):
+    """A 2x2x2 supercell: energy eight times, the same forces on the same atoms."""
+    lat, pos, q, unit_of = co2_cell
+    n = len(q)
+    shifts = np.array([(a, b, c) for a in range(2) for b in range(2) for c in range(2)]) @ lat
+    big_pos = np.concatenate([pos + s for s in shifts])
+    big_units = np.concatenate([unit_of + k * (unit_of.max() + 1) for k in range(8)])
+    _, g1, e1 = dsf_terms(lat, pos, q, unit_of, cutoff=12.0)
+    _, g8, e8 = dsf_terms(2 * lat, big_pos, np.tile(q, 8), big_units, cutoff=12.0)
+    assert e8 == pytest.approx(8 * e1, rel=1e-9)
+    assert np.allclose(g8[:n], g1, atol=1e-10)
