@@ -117,5 +117,62 @@ def test_fingerprint_separates_shapes() -> None:
     square = np.array([[1.0, 0, 0], [0, 1, 0], [-1, 0, 0], [0, -1, 0]])
     turned = square @ rotation([0, 0, 1.0], 0.4).T
     assert freeunits._fingerprint([6] * 4, square, 0.1) == freeunits._fingerprint([6] * 4, turned, 0.1)
-    assert freeunits._fingerprint([6] * 4, square, 0.1) != freeunits._fingerprint([6] * 4, 2 * square, 0.1)
     assert freeunits._fingerprint([6] * 4, square, 0.1) != freeunits._fingerprint([6, 6, 6, 7], square, 0.1)
+    # the radii do not see rotations, and tell a larger square apart
+    assert np.allclose(freeunits._radii([6] * 4, square), freeunits._radii([6] * 4, turned))
+    assert np.max(np.abs(freeunits._radii([6] * 4, square) - freeunits._radii([6] * 4, 2 * square))) > 0.5
+
+
+def _displaced_naphthalene(structures_dir: Path, reps=(2, 2, 2), sigma=0.01):
+    """A naphthalene supercell with every atom moved at random (invented, seed fixed): stays P1."""
+    import ase.io
+
+    atoms = ase.io.read(structures_dir / "naphthalene_P21a.cif").repeat(reps)
+    atoms.positions += np.random.default_rng(3).normal(0.0, sigma, atoms.positions.shape)
+    return atoms
+
+
+def test_displaced_supercell_cache_gives_the_fresh_answers(structures_dir: Path) -> None:
+    """Every molecule distinct: the carried analyses equal a fresh point-group search of each molecule.
+
+    The displacements (0.01 A) are small enough that a fresh search finds D2h for every
+    molecule (at 0.02-0.03 A the fresh search itself finds D2h, C2v, C2h or Cs from molecule to
+    molecule at the default unit tolerance, so it is no reference there).
+    """
+    from splitting.crystal.predict import predict_atoms, units_of
+    from splitting.crystal.spacegroup import analyse_cell
+    from splitting.molecule.analysis import analyse_unit
+
+    atoms = _displaced_naphthalene(structures_dir)
+    cache = freeunits.FreeUnitCache(0.25)
+    p = predict_atoms(atoms, free_cache=cache)
+    assert p.space_group.number == 1
+    molecules = [u for u in p.units if u.formula == "C10H8"]
+    assert len(molecules) == 16 and all(u.count == 1 for u in molecules)
+    assert cache.analyses < len(molecules)  # the cache was used
+    cell = analyse_cell(atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers, tolerance=0.01)
+    fresh = [analyse_unit(u.numbers, u.positions, tolerance=0.25) for u in units_of(cell, _opts()) if len(u.atoms) > 1]
+    assert [u.free_group for u in molecules] == [a.point_group for a in fresh] == ["D2h"] * 16
+    assert all(str(u.free_vibrations) == str(a.vibrations) for u, a in zip(molecules, fresh, strict=True))
+    assert all(u.max_deviation <= 0.25 for u in molecules)
+    assert [s.label for s in p.species] and p.units[0].free_vibrations is not None
+    # and the species counts equal those of a prediction whose cache never carries
+    uncached = predict_atoms(atoms, free_cache=_NoCarry(0.25))
+    assert [(s.label, s.internal, s.librational, s.translational) for s in p.species] == [
+        (s.label, s.internal, s.librational, s.translational) for s in uncached.species
+    ]
+    assert [u.free_group for u in uncached.units if u.formula == "C10H8"] == [u.free_group for u in molecules]
+
+
+def _opts():
+    from splitting.crystal.predict import Options
+
+    return Options()
+
+
+class _NoCarry(freeunits.FreeUnitCache):
+    """A cache that analyses every unit afresh."""
+
+    def get(self, unit):
+        self._store.clear()
+        return super().get(unit)

@@ -45,27 +45,61 @@ class FreeUnit:
 
 
 @dataclass(eq=False)
+class _Shape:
+    """Stored shapes of one element list: symmetrised geometries, sorted radii and analyses."""
+
+    ideal: list[np.ndarray] = field(default_factory=list)
+    numbers: list[np.ndarray] = field(default_factory=list)
+    radii: list[np.ndarray] = field(default_factory=list)
+    free: list[FreeUnit] = field(default_factory=list)
+    _stack: np.ndarray | None = None
+
+    def candidates(self, radii: np.ndarray, tolerance: float) -> np.ndarray:
+        """Stored shapes whose sorted radii are all within ``tolerance`` of ``radii`` (a necessary
+        condition for a match), closest first."""
+        if self._stack is None or len(self._stack) != len(self.radii):
+            self._stack = np.array(self.radii)
+        gap = np.max(np.abs(self._stack - radii[None]), axis=1)
+        near = np.flatnonzero(gap <= tolerance + 1e-9)
+        return near[np.argsort(gap[near], kind="stable")]
+
+
+@dataclass(eq=False)
 class FreeUnitCache:
-    """Analyses keyed by unit shape; share one cache between related structures."""
+    """Analyses keyed by unit shape; share one cache between related structures.
+
+    A new unit is compared with the symmetrised geometries already analysed for its list of
+    elements: when one of them, turned (or reflected) and with the atoms matched by
+    proximity, lies within the unit tolerance of every atom of the new unit, the new unit has
+    that point group by the same criterion the point-group search applies (every atom within
+    the tolerance of a geometry of that symmetry), and the stored analysis is carried onto it.
+    Before any alignment the stored shapes are filtered, all at once, on their sorted
+    distances from the centre, which no rotation changes.
+    """
 
     tolerance: float
     given: dict[str, str] = field(default_factory=dict)
-    _store: dict[tuple, list[tuple[np.ndarray, FreeUnit]]] = field(default_factory=dict)
+    _store: dict[tuple, _Shape] = field(default_factory=dict)
+    analyses: int = 0
 
     def get(self, unit: Unit) -> FreeUnit:
         """The free-unit analysis of ``unit`` in its own orientation."""
         centred = unit.positions - unit.centre
         key = _fingerprint(unit.numbers, centred, self.tolerance)
-        for ref, ref_numbers, free in self._store.get(key, []):
-            moved = _carry(ref, ref_numbers, centred, unit.numbers, free, self.tolerance)
-            if moved is not None:
-                return moved
+        shape = self._store.get(key)
+        radii = _radii(unit.numbers, centred)
+        if shape is not None and shape.radii:
+            for k in shape.candidates(radii, self.tolerance):
+                moved = _carry(shape.ideal[k], shape.numbers[k], centred, unit.numbers, shape.free[k], self.tolerance)
+                if moved is not None:
+                    return moved
         try:
             analysis = analyse_unit(
                 unit.numbers, unit.positions, tolerance=self.tolerance, point_group=self.given.get(unit.formula)
             )
         except InputError as exc:
             raise InputError(f"unit {unit.formula}: {exc}") from None
+        self.analyses += 1
         sym = analysis.symmetry
         free = FreeUnit(
             sym.group,
@@ -74,52 +108,88 @@ class FreeUnitCache:
             sym.max_deviation,
             "given" if unit.formula in self.given else "detected",
         )
-        self._store.setdefault(key, []).append((centred, np.array(unit.numbers), free))
+        if shape is None:
+            shape = self._store.setdefault(key, _Shape())
+        ideal = np.asarray(sym.symmetric_positions, dtype=float) + (sym.centre - unit.centre)
+        shape.ideal.append(ideal)
+        shape.numbers.append(np.array(unit.numbers))
+        shape.radii.append(_radii(unit.numbers, ideal))
+        shape.free.append(free)
         return free
 
 
 def _fingerprint(numbers, centred: np.ndarray, tolerance: float) -> tuple:
-    """Shape key of a unit: its elements and, per element, the sorted distances from the centre.
+    """Bucket of a unit's shape: its elements, sorted.
 
-    The distances are rounded on a grid of twice the tolerance, so units that can carry
-    onto each other almost always share a key (a unit that falls just across a grid line
-    is analysed afresh: slower, never wrong), while different shapes fall into different
-    buckets.  A new unit is then compared with the few stored shapes of its bucket instead
-    of with every stored shape.
+    Units of one bucket are then filtered on :func:`_radii` and aligned; ``centred`` and
+    ``tolerance`` are accepted for callers that key on more.
+
+    >>> _fingerprint([6, 1, 6], None, 0.1)
+    (1, 6, 6)
+    """
+    return tuple(sorted(np.asarray(numbers, dtype=int).tolist()))
+
+
+def _radii(numbers, centred: np.ndarray) -> np.ndarray:
+    """Distances from the centre, sorted within each element (unchanged by rotations and reflections).
+
+    Two units whose atoms can be matched within a distance t have these lists within t of
+    each other entry by entry (sorting does not increase the largest difference).
 
     >>> import numpy as np
     >>> square = np.array([[1.0, 0, 0], [0, 1, 0], [-1, 0, 0], [0, -1, 0]])
-    >>> _fingerprint([6, 6, 6, 6], square, 0.1) == _fingerprint([6, 6, 6, 6], square[::-1] * 1.01, 0.1)
-    True
+    >>> _radii([6, 6, 6, 6], square).tolist()
+    [1.0, 1.0, 1.0, 1.0]
     """
     z = np.asarray(numbers, dtype=int)
     r = np.linalg.norm(centred, axis=1)
-    grid = 2.0 * max(float(tolerance), 1e-3)
-    order = np.lexsort((r, z))
-    return (tuple(z[order].tolist()), tuple(np.round(r[order] / grid).astype(int).tolist()))
+    return r[np.lexsort((r, z))]
 
 
 def _carry(
-    ref: np.ndarray, ref_numbers: np.ndarray, new: np.ndarray, new_numbers: np.ndarray, free: FreeUnit, tolerance: float
+    ideal: np.ndarray, ideal_numbers: np.ndarray, new: np.ndarray, numbers, free: FreeUnit, tolerance: float
 ) -> FreeUnit | None:
-    """The stored analysis moved onto a unit of the same shape, or None if the shapes do not match."""
-    from scipy.spatial import cKDTree
+    """The stored analysis moved onto a unit close to its symmetrised shape, or None if none is.
 
-    orders = []
-    if np.array_equal(ref_numbers, new_numbers):
-        orders.append(np.arange(len(ref)))
-    d, j = cKDTree(ref).query(new)  # same orientation, atoms listed in another order
-    if np.max(d) < tolerance and len(set(j.tolist())) == len(j) and np.array_equal(ref_numbers[j], new_numbers):
-        orders.append(j)
-    for order in orders:
-        a = ref[order]
-        u, _, vt = np.linalg.svd(new.T @ a)
-        r = u @ vt  # new ~ a @ r.T
-        if np.max(np.linalg.norm(a @ r.T - new, axis=1)) <= tolerance:
-            break
-    else:
-        return None
+    ``ideal`` holds the stored symmetrised positions (about the centre) with their atomic
+    numbers.  Atoms are matched in the order listed (when the element lists agree) or, failing
+    that, to the nearest atom of the same element; the deviation reported is the new unit's
+    largest distance from the carried symmetric geometry.
+    """
+    numbers = np.asarray(numbers)
+    r = None
+    if np.array_equal(ideal_numbers, numbers):
+        r = _align(ideal, new)
+        dev = float(np.max(np.linalg.norm(ideal @ r.T - new, axis=1)))
+        if dev > tolerance:
+            r = None
+    if r is None:
+        found = _align_by_proximity(ideal, ideal_numbers, new, numbers, tolerance)
+        if found is None:
+            return None
+        r, dev = found
     if np.linalg.det(r) < 0:
         r = -r  # the same set of operations; keeps the frame a proper rotation
     frame = r @ free.group.frame
-    return FreeUnit(OrientedGroup(free.group.group, frame), free.vibrations, free.linear, free.deviation, free.source)
+    return FreeUnit(OrientedGroup(free.group.group, frame), free.vibrations, free.linear, dev, free.source)
+
+
+def _align(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Orthogonal matrix r (rotation or rotation-reflection) with b ~ a @ r.T in least squares."""
+    u, _, vt = np.linalg.svd(b.T @ a)
+    return u @ vt
+
+
+def _align_by_proximity(
+    ideal: np.ndarray, ideal_numbers: np.ndarray, new: np.ndarray, numbers: np.ndarray, tolerance: float
+) -> tuple[np.ndarray, float] | None:
+    """Match each new atom to the nearest stored atom (same orientation) and align; None if that fails."""
+    from scipy.spatial import cKDTree
+
+    _, j = cKDTree(ideal).query(new)
+    if len(set(j.tolist())) != len(j) or not np.array_equal(ideal_numbers[j], numbers):
+        return None
+    a = ideal[j]
+    r = _align(a, new)
+    dev = float(np.max(np.linalg.norm(a @ r.T - new, axis=1)))
+    return (r, dev) if dev <= tolerance else None

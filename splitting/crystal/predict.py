@@ -202,6 +202,80 @@ def _site_ops(cell: CellSymmetry, centre: np.ndarray) -> list[int]:
     return [k for k in range(len(cell.rotations)) if cell.same_point(cell.apply(k, centre), centre, tol=0.05)]
 
 
+def _site_ops_all(cell: CellSymmetry, centres: list[np.ndarray]) -> list[list[int]]:
+    """:func:`_site_ops` for many centres at once (one array operation per cell operation)."""
+    if not centres:
+        return []
+    pts = np.asarray(centres, dtype=float)
+    inv = np.linalg.inv(cell.lattice)
+    fixed = np.zeros((len(pts), len(cell.rotations)), dtype=bool)
+    for k in range(len(cell.rotations)):
+        d = (cell.apply(k, pts) - pts) @ inv
+        d -= np.round(d)
+        fixed[:, k] = np.linalg.norm(d @ cell.lattice, axis=1) < 0.05
+    return [np.flatnonzero(row).tolist() for row in fixed]
+
+
+class _AxesText:
+    """:func:`_axes_text` remembered per frame (groups of one orientation share it)."""
+
+    def __init__(self, cell: CellSymmetry) -> None:
+        self.cell = cell
+        self.known: dict[bytes, dict[str, str]] = {}
+
+    def __call__(self, og: OrientedGroup) -> dict[str, str]:
+        key = np.asarray(og.frame, dtype=float).round(9).tobytes()
+        found = self.known.get(key)
+        if found is None:
+            found = self.known[key] = _axes_text(self.cell, og)
+        return found
+
+
+@dataclass(frozen=True, eq=False)
+class _Site:
+    """What depends on the site group only (shared by every orbit on the same cell operations)."""
+
+    group: OrientedGroup
+    cell_ops: list[int]
+    axes: dict[str, str]
+    translations: Representation
+    librations: Representation
+    site_to_factor: tuple
+
+    @classmethod
+    def of(cls, cell: CellSymmetry, factor: FactorGroup, site_idx: list[int], formula: str, axes_text) -> _Site:
+        site = identify_in_crystal(cell.rotations[site_idx], cell.reference_axes, tol=1e-3)
+        # site-group element order -> cell operations
+        cell_ops = [
+            site_idx[int(np.argmin([np.abs(cell.rotations[k] - op).max() for k in site_idx]))] for op in site.operations
+        ]
+        vec = np.trace(site.operations, axis1=1, axis2=2)
+        trans = induce(factor, cell_ops, vec, what=f"translations of {formula}")
+        lib_chars = np.linalg.det(site.operations) * vec
+        lib = induce(factor, cell_ops, lib_chars, what=f"librations of {formula}")
+        to_factor = tuple(
+            (
+                sp.label,
+                induce(
+                    factor, cell_ops, site.group.characters_at_operations()[k], what=f"{sp.label} of site {site.name}"
+                ),
+            )
+            for k, sp in enumerate(site.group.species)
+        )
+        return cls(site, cell_ops, axes_text(site), trans, lib, to_factor)
+
+
+def _classes_in(free: OrientedGroup, ops: np.ndarray) -> np.ndarray | bool | None:
+    """Classes of the free group holding each site operation; True for a linear group; None if one is missing."""
+    if "∞" in free.name:
+        return True if all(free.contains(op) for op in ops) else None
+    try:
+        idx = free.locate_all(ops)
+    except SymmetryError:
+        return None
+    return free.group.class_of[idx]
+
+
 def _axes_text(cell: CellSymmetry, og: OrientedGroup) -> dict[str, str]:
     return {k: cell.direction_text(v) for k, v in og.axes().items()}
 
@@ -264,7 +338,6 @@ def _predict(
 ) -> CrystalPrediction:
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     fg = factor.oriented
-    reference = cell.reference_axes
     orbits = _orbits(cell, units)
     wyckoffs = cell.wyckoff_of([units[orbit[0][0]].centre for orbit in orbits], tolerance=opts.tolerance)
     given = _given_free_groups(opts, units)
@@ -272,21 +345,23 @@ def _predict(
         free_cache = FreeUnitCache(opts.unit_tolerance, given)
     zero = fg.group.representation({})
     orbit_results: list[UnitOrbit] = []
-    for orbit, (wyck, site_symbol) in zip(orbits, wyckoffs, strict=True):
+    sites: dict[tuple[int, ...], _Site] = {}
+    species_done: dict[tuple, tuple[Representation, Representation]] = {}
+    axes_text = _AxesText(cell)
+    site_ops_of = _site_ops_all(cell, [units[orbit[0][0]].centre for orbit in orbits])
+    for orbit, (wyck, site_symbol), site_idx in zip(orbits, wyckoffs, site_ops_of, strict=True):
         u0 = units[orbit[0][0]]
         centre = u0.centre
-        site_idx = _site_ops(cell, centre)
-        site = identify_in_crystal(cell.rotations[site_idx], reference, tol=1e-3)
-        # site-group element order -> cell operations
-        site_cell = [
-            site_idx[int(np.argmin([np.abs(cell.rotations[k] - op).max() for k in site_idx]))] for op in site.operations
-        ]
         if len(site_idx) * len(orbit) != len(cell.rotations):
             raise BookkeepingError(
                 f"{u0.formula}: |S| x Z = {len(site_idx)} x {len(orbit)} is not |F| = {len(cell.rotations)}"
             )
-        vec = np.trace(site.operations, axis1=1, axis2=2)
-        trans = induce(factor, site_cell, vec, what=f"translations of {u0.formula}")
+        key = tuple(site_idx)
+        st = sites.get(key)
+        if st is None:
+            st = sites[key] = _Site.of(cell, factor, site_idx, u0.formula, axes_text)
+        site, site_cell = st.group, st.cell_ops
+        trans = st.translations
         lib = zero
         internal = zero
         correlation: list[Correlation] = []
@@ -299,40 +374,41 @@ def _predict(
             info = free_cache.get(u0)
             free = info.group
             free_name, free_source = free.name, info.source
-            free_axes = _axes_text(cell, free)
+            free_axes = axes_text(free)
             deviation = info.deviation
             free_vib = info.vibrations
-            for op in site.operations:
-                if not free.contains(op):
-                    raise SymmetryError(
-                        f"unit {u0.formula}: the site group {site.name} is not a subgroup of the free group "
-                        f"{free.name} as found (unit tolerance {opts.unit_tolerance} A); "
-                        "increase --unit-tolerance or name the free group"
-                    )
+            classes = _classes_in(free, site.operations)
+            if classes is None:
+                raise SymmetryError(
+                    f"unit {u0.formula}: the site group {site.name} is not a subgroup of the free group "
+                    f"{free.name} as found (unit tolerance {opts.unit_tolerance} A); "
+                    "increase --unit-tolerance or name the free group"
+                )
             if info.linear:
                 axis = free.frame[:, 2]
                 lib_chars = np.array([np.linalg.det(r) * (np.trace(r) - axis @ r @ axis) for r in site.operations])
+                lib = induce(factor, site_cell, lib_chars, what=f"librations of {u0.formula}")
             else:
-                lib_chars = np.linalg.det(site.operations) * np.trace(site.operations, axis1=1, axis2=2)
-            lib = induce(factor, site_cell, lib_chars, what=f"librations of {u0.formula}")
+                lib = st.librations
+            orbit_key = tuple(h for _, h in orbit)
             for label, n in info.vibrations:
-                chars = np.array([free.character(label, op) for op in site.operations])
-                site_rep = site.reduce_at(chars, what=f"{label} of {free.name} in site {site.name}")
-                fac = induce(factor, site_cell, chars, what=f"{label} of {u0.formula}")
-                _check_geometric(cell, factor, orbit, centre, free, label, fac, u0.formula)
-                _check_frobenius(factor, site, site_rep, fac, label)
+                if classes is True:
+                    chars = np.array([free.character(label, op) for op in site.operations])
+                else:
+                    chars = np.asarray(free.group.get_species(label).characters, dtype=float)[classes]
+                done_key = (key, orbit_key, label, free.name, chars.round(9).tobytes())
+                done = species_done.get(done_key)
+                if done is None:
+                    site_rep = site.reduce_at(chars, what=f"{label} of {free.name} in site {site.name}")
+                    fac = induce(factor, site_cell, chars, what=f"{label} of {u0.formula}")
+                    _check_geometric(cell, factor, orbit, centre, free, label, fac, u0.formula)
+                    _check_frobenius(factor, site, site_rep, fac, label)
+                    done = species_done[done_key] = (site_rep, fac)
+                site_rep, fac = done
                 dim = free.group.get_species(label).dimension
                 correlation.append(Correlation(label, dim, n, site_rep, fac))
                 internal = internal + fac * n
-        site_to_factor = tuple(
-            (
-                sp.label,
-                induce(
-                    factor, site_cell, site.group.characters_at_operations()[k], what=f"{sp.label} of site {site.name}"
-                ),
-            )
-            for k, sp in enumerate(site.group.species)
-        )
+        site_to_factor = st.site_to_factor
         orbit_results.append(
             UnitOrbit(
                 formula=u0.formula,
@@ -343,7 +419,7 @@ def _predict(
                 wyckoff=wyck,
                 site_symmetry=site_symbol,
                 site_group=site.name,
-                site_axes=_axes_text(cell, site),
+                site_axes=st.axes,
                 free_group=free_name,
                 free_group_source=free_source,
                 free_axes=free_axes,

@@ -261,17 +261,19 @@ class CellSymmetry:
         """A Cartesian direction as crystal-axis text: ``"a"``, ``"c"``, ``"[1,1,0]"`` (of :attr:`label_basis`)."""
         v = np.asarray(v, dtype=float)
         cell = self.label_basis
-        recip = np.linalg.inv(cell).T  # rows: a*, b*, c* (without 2 pi)
-        for k, r in enumerate(recip):
-            cosang = float(v @ r) / (np.linalg.norm(v) * np.linalg.norm(r))
-            axis = cell[k] / np.linalg.norm(cell[k])
-            if abs(abs(cosang) - 1) < 1e-6 and abs(abs(float(axis @ r) / np.linalg.norm(r)) - 1) > 1e-6:
-                return ("-" if cosang < 0 else "") + "abc"[k] + "*"
-        uvw = v @ np.linalg.inv(cell)
+        inv = np.linalg.inv(cell)
+        recip = inv.T  # rows: a*, b*, c* (without 2 pi)
+        rn = np.linalg.norm(recip, axis=1)
+        cosang = (recip @ v) / (np.linalg.norm(v) * rn)
+        oblique = np.abs(np.abs(np.einsum("ij,ij->i", cell, recip)) / (np.linalg.norm(cell, axis=1) * rn) - 1) > 1e-6
+        for k in range(3):
+            if abs(abs(float(cosang[k])) - 1) < 1e-6 and oblique[k]:
+                return ("-" if cosang[k] < 0 else "") + "abc"[k] + "*"
+        uvw = v @ inv
         m = np.max(np.abs(uvw))
         for scale in (1, 2, 3, 4, 6):
             w = uvw / m * scale
-            if np.allclose(w, np.round(w), atol=2e-3):
+            if np.max(np.abs(w - np.round(w))) <= 2e-3:
                 ints = [round(x) for x in w]
                 if sorted(np.abs(ints)) == [0, 0, 1]:
                     k = int(np.argmax(np.abs(ints)))
