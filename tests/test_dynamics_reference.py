@@ -15,8 +15,10 @@ Measured values (every one from memory, cited where it was published):
   ascending order without their species assignment.
 
 The comparison with every line is tabulated in docs/estimate.md.  The goal (lattice modes
-within 20 % in the median) is not reached for CO2 at the structure as given: the
-librations come out about a third too low; that is recorded as a strict xfail.
+within 20 % in the median) is not reached for CO2: the librations come out about a third
+too low with the tight-binding charges (median 0.65), about a quarter with charges scaled
+to the measured quadrupole (0.77, tests/test_dynamics_quadrupole.py); that is recorded as a
+strict xfail, for both.
 """
 
 from __future__ import annotations
@@ -61,9 +63,29 @@ def test_translational_modes_within_20_percent(co2):
     assert np.allclose(mine, [68.0, 114.0], rtol=0.2)
 
 
-@pytest.mark.xfail(strict=True, reason="librations of CO2 come out about 35 % low at the structure as given")
+@pytest.mark.xfail(
+    strict=True,
+    reason="librations of CO2 come out about 35 % low (23 % with charges fitted to the measured quadrupole)",
+)
 def test_lattice_modes_median_within_20_percent(co2):
     assert abs(np.median(_ratios(co2)) - 1) < 0.2
+
+
+@pytest.fixture(scope="module")
+def co2_quadrupole(structures_dir, tmp_path_factory):
+    cache = tmp_path_factory.mktemp("hessians")
+    return estimate(structures_dir / "co2_Pa-3.cif", model=EstimateOptions(cache=str(cache), charges="quadrupole"))
+
+
+def test_quadrupole_charges_raise_the_median(co2, co2_quadrupole):
+    """Median ratio 0.65 with tight-binding charges, 0.77 with the measured quadrupole (docs/estimate.md)."""
+    assert np.median(_ratios(co2_quadrupole)) > np.median(_ratios(co2)) + 0.08
+    assert all(0.5 < r < 2.0 for r in _ratios(co2_quadrupole))
+
+
+@pytest.mark.xfail(strict=True, reason="with the measured quadrupole the CO2 librations are still about 25 % low")
+def test_lattice_modes_median_within_20_percent_quadrupole_charges(co2_quadrupole):
+    assert abs(np.median(_ratios(co2_quadrupole)) - 1) < 0.2
 
 
 def test_nu2_factor_group_splitting_of_the_right_size(co2):

@@ -37,6 +37,8 @@ LATTICE_RULE = 0.20
 #: the crystal-field part of an internal line (its distance from the free value) is
 #: uncertain by about half its size (common practice)
 INTERNAL_RULE = 0.5
+#: the point-charge choices (``EstimateOptions.charges``)
+CHARGE_CHOICES = ("all", "auto", "none", "quadrupole")
 #: imaginary lines larger than this (cm-1) refuse the structure
 IMAGINARY_LIMIT = 3.0
 #: how the model text names each Coulomb sum
@@ -54,7 +56,9 @@ class EstimateOptions:
     charges : str
         ``"all"`` (tight-binding partial charges of every atom, Ewald sum; the default, as
         Williams and Cox fitted their N and O parameters with charges), ``"auto"`` (only
-        when a unit carries a net charge) or ``"none"``.
+        when a unit carries a net charge), ``"none"``, or ``"quadrupole"`` (as ``"all"``, with
+        the charges of every unit whose measured quadrupole moment is bundled scaled to
+        reproduce it; :mod:`splitting.dynamics.quadrupole`).
     cutoff : float
         Lattice-sum cut-off (angstrom).
     scale_to_measured : bool
@@ -130,8 +134,10 @@ def estimate_atoms(
     mo = model or EstimateOptions()
     if mo.potential not in PARAMETER_SETS:
         raise InputError(f"no exp-6 parameter set {mo.potential!r}; sets: {', '.join(PARAMETER_SETS)}")
-    if mo.charges not in ("auto", "all", "none"):
-        raise InputError(f"charges must be auto, all or none, not {mo.charges!r}")
+    if mo.charges not in CHARGE_CHOICES:
+        raise InputError(
+            f"charges must be {', '.join(CHARGE_CHOICES[:-1])} or {CHARGE_CHOICES[-1]}, not {mo.charges!r}"
+        )
     if mo.coulomb not in COULOMB_METHODS:
         raise InputError(f"the Coulomb sum must be {' or '.join(COULOMB_METHODS)}, not {mo.coulomb!r}")
     if not mo.cutoff > 0:
@@ -179,7 +185,10 @@ def estimate_atoms(
             + "; give the charge of each ion with --charge FORMULA=Q"
         )
     charged = any(abs(float(np.sum(cm.charges[cm.unit_of == k]))) > 0.5 for k in range(len(units)))
-    use_charges = mo.charges == "all" or (mo.charges == "auto" and charged)
+    use_charges = mo.charges in ("all", "quadrupole") or (mo.charges == "auto" and charged)
+    scaled_charges: list[str] = []
+    if mo.charges == "quadrupole":
+        cm, scaled_charges = _with_quadrupole_charges(cm, units)
     relaxation = None
     if mo.relax or mo.relax_cell:
         from .relax import relax_structure
@@ -205,6 +214,8 @@ def estimate_atoms(
             scale_to_measured=mo.scale_to_measured,
             turns=turns,
         )
+        if mo.charges == "quadrupole":
+            cm, scaled_charges = _with_quadrupole_charges(cm, units)
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     perms = atom_permutations(cell, cm.positions)
     bases = species_bases(cell, factor, perms, prediction.gamma_3n)
@@ -258,6 +269,7 @@ def estimate_atoms(
         + (" scaled to measured gas-phase fundamentals" if mo.scale_to_measured else "")
         + f"; exp-6 set {params.name!r}, {mo.cutoff:g} A cut-off"
         + (_COULOMB_TEXT[mo.coulomb] if use_charges else "")
+        + "".join(f"; {text}" for text in scaled_charges)
         + (
             "; structure as given (not relaxed)"
             if relaxation is None
@@ -283,6 +295,16 @@ def estimate_atoms(
         warnings=tuple(warnings),
         relaxation=relaxation,
     )
+
+
+def _with_quadrupole_charges(cm, units):
+    """The cell model with the charges of units of measured quadrupole scaled to it (see .quadrupole)."""
+    import dataclasses
+
+    from .quadrupole import quadrupole_charges
+
+    charges, texts = quadrupole_charges(cm, units)
+    return dataclasses.replace(cm, charges=charges), texts
 
 
 def _lines(cm, blocks, alt, prediction, units) -> list[Line]:
