@@ -234,3 +234,11 @@ def test_dsf_supercell_changes_nothing_per_cell(co2_cell):
     _, g8, e8 = dsf_terms(2 * lat, big_pos, np.tile(q, 8), big_units, cutoff=12.0)
     assert e8 == pytest.approx(8 * e1, rel=1e-9)
     assert np.allclose(g8[:n], g1, atol=1e-10)
+
+
+def test_ewald_force_constants_symmetric_with_the_acoustic_sum_rule(co2_cell):
+    lat, pos, q, unit_of = co2_cell
+    fc, _, _ = ewald_terms(lat, pos, q, unit_of, cutoff=12.0)
+    n = len(q)
+    assert np.allclose(fc, fc.T, atol=1e-12 * np.max(np.abs(fc)))
+    assert np.allclose(fc.reshape(n, 3, n, 3).sum(axis=2), 0, atol=1e-10)
