@@ -131,3 +131,16 @@ def test_relaxed_estimate_read_back_from_the_cache_folder(structures_dir, cache,
     back = memo._read(tmp_path / "e.json")
     assert back.relaxation == est.relaxation
     assert back.to_dict() == est.to_dict()
+
+
+def test_alpha_nitrogen_cell_runs_away(structures_dir, cache):
+    """The N parameters (fitted to azahydrocarbons) bind N2 far too strongly: the cell would shrink past the bound.
+
+    As given the model's lattice energy is about -19 kJ/mol of N2, against a measured
+    sublimation enthalpy of about 7 kJ/mol (from memory); the relaxation is refused, not
+    carried to a collapsed crystal.
+    """
+    path = structures_dir / "alpha_N2_Pa-3.cif"
+    with pytest.raises(InputError, match="ran away"):
+        estimate(path, model=EstimateOptions(cache=cache, relax_cell=True))
+    assert estimate(path, model=EstimateOptions(cache=cache, relax=True)).relaxation.degrees_of_freedom == 0
