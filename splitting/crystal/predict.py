@@ -241,6 +241,7 @@ class _Site:
     translations: Representation
     librations: Representation
     site_to_factor: tuple
+    restrictions: dict[str, Representation]
 
     @classmethod
     def of(cls, cell: CellSymmetry, factor: FactorGroup, site_idx: list[int], formula: str, axes_text) -> _Site:
@@ -262,7 +263,7 @@ class _Site:
             )
             for k, sp in enumerate(site.group.species)
         )
-        return cls(site, cell_ops, axes_text(site), trans, lib, to_factor)
+        return cls(site, cell_ops, axes_text(site), trans, lib, to_factor, {})
 
 
 def _classes_in(free: OrientedGroup, ops: np.ndarray) -> np.ndarray | bool | None:
@@ -391,6 +392,7 @@ def _predict(
             else:
                 lib = st.librations
             orbit_key = tuple(h for _, h in orbit)
+            pairs = None
             for label, n in info.vibrations:
                 if classes is True:
                     chars = np.array([free.character(label, op) for op in site.operations])
@@ -401,8 +403,10 @@ def _predict(
                 if done is None:
                     site_rep = site.reduce_at(chars, what=f"{label} of {free.name} in site {site.name}")
                     fac = induce(factor, site_cell, chars, what=f"{label} of {u0.formula}")
-                    _check_geometric(cell, factor, orbit, centre, free, label, fac, u0.formula)
-                    _check_frobenius(factor, site, site_rep, fac, label)
+                    if pairs is None:
+                        pairs = _fixed_pairs(cell, orbit, centre)
+                    _check_geometric(cell, factor, orbit, centre, free, label, fac, u0.formula, pairs)
+                    _check_frobenius(factor, site, site_rep, fac, label, st.restrictions)
                     done = species_done[done_key] = (site_rep, fac)
                 site_rep, fac = done
                 dim = free.group.get_species(label).dimension
@@ -513,30 +517,57 @@ def _check_geometric(
     label: str,
     expected: Representation,
     formula: str,
+    pairs: tuple[np.ndarray, np.ndarray] | None = None,
 ) -> None:
-    """Method-notes route: sum, over the units that g leaves in place, of chi(g) in each unit's orientation."""
-    units = [(h, cell.apply(h, centre)) for _, h in orbit]
-    chars = np.zeros(len(cell.rotations))
-    for g in range(len(cell.rotations)):
-        rg = cell.rotations[g]
-        total = 0.0
-        for h, cj in units:
-            if cell.same_point(cell.apply(g, cj), cj, tol=0.05):
-                rh = cell.rotations[h]
-                total += free.character(label, rh.T @ rg @ rh)  # g seen from the first unit's frame
-        chars[g] = total
+    """Method-notes route: sum, over the units that g leaves in place, of chi(g) in each unit's orientation.
+
+    ``pairs`` (from :func:`_fixed_pairs`) may be passed to share the search between species.
+    """
+    g_idx, conj = pairs if pairs is not None else _fixed_pairs(cell, orbit, centre)
+    if "∞" in free.name:
+        values = np.array([free.character(label, op) for op in conj])
+    else:
+        classes = free.group.class_of[free.locate_all(conj)] if len(conj) else np.zeros(0, dtype=int)
+        values = np.asarray(free.group.get_species(label).characters, dtype=float)[classes]
+    chars = np.bincount(g_idx, weights=values, minlength=len(cell.rotations)).astype(float)
     got = factor.reduce_cell(chars, what=f"{label} of {formula} (unit by unit)")
     if got.counts != expected.counts:
         raise BookkeepingError(f"{formula} {label}: coset route gives {expected}, unit-by-unit route gives {got}")
 
 
+def _fixed_pairs(cell: CellSymmetry, orbit, centre: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """For every cell operation g and unit h(u0) of the orbit that g leaves in place: g's index and
+    g seen from the first unit's frame (R_h^T R_g R_h), all operations at once."""
+    hs = np.array([h for _, h in orbit], dtype=int)
+    cj = centre @ cell.rotations[hs].transpose(0, 2, 1) + cell.translations[hs]  # (n, 3)
+    imgs = np.einsum("gij,nj->gni", cell.rotations, cj) + cell.translations[:, None, :]
+    d = (imgs - cj[None]) @ np.linalg.inv(cell.lattice)
+    d -= np.round(d)
+    fixed = np.linalg.norm(d @ cell.lattice, axis=2) < 0.05
+    g_idx, n_idx = np.nonzero(fixed)
+    rh = cell.rotations[hs[n_idx]]
+    conj = np.einsum("nji,njk,nkl->nil", rh, cell.rotations[g_idx], rh)
+    return g_idx, conj
+
+
 def _check_frobenius(
-    factor: FactorGroup, site: OrientedGroup, site_rep: Representation, fac: Representation, label: str
+    factor: FactorGroup,
+    site: OrientedGroup,
+    site_rep: Representation,
+    fac: Representation,
+    label: str,
+    memo: dict[str, Representation] | None = None,
 ) -> None:
-    """Frobenius reciprocity, counted with the number of complex irreps in each physical species."""
+    """Frobenius reciprocity, counted with the number of complex irreps in each physical species.
+
+    ``memo`` keeps the restrictions of factor-group species to this site group between calls.
+    """
     fg = factor.oriented
+    memo = {} if memo is None else memo
     for phi, n in fac.counts:
-        res = fg.restrict(phi, site)
+        res = memo.get(phi)
+        if res is None:
+            res = memo[phi] = fg.restrict(phi, site)
         lhs = n * len(fg.group.get_species(phi).irreps)
         rhs = sum(site_rep[lab] * k * len(site.group.get_species(lab).irreps) for lab, k in res)
         if lhs != rhs:

@@ -14,6 +14,7 @@ pipeline predicts its spectrum.
 
 from __future__ import annotations
 
+import functools
 import itertools
 import os
 from collections.abc import Mapping
@@ -98,26 +99,47 @@ def hermite_normal_form(basis: np.ndarray) -> np.ndarray:
 def _canonical(
     m: np.ndarray, ops: list[tuple[np.ndarray, np.ndarray]], parent: list[tuple[np.ndarray, np.ndarray]]
 ) -> tuple:
-    """A key shared by all subgroups conjugate under the parent space group (rotations and lattice)."""
-    ws = np.array([w for w, _ in ops])
-    ts = np.array([t for _, t in ops])
-    best = None
+    """A key shared by all subgroups conjugate under the parent space group (rotations and lattice).
+
+    Each conjugate (by a parent operation and a lattice translation of the parent) is written as
+    one row of integers: its sublattice in Hermite normal form, its rotations (coded and sorted;
+    a subgroup holds each rotation once modulo the sublattice) and their translations in the
+    sublattice's fractional coordinates (in millionths, in the order of the rotations); the key
+    is the smallest row.  All translations of one parent operation are done at once.
+    """
+    ws = np.array([w for w, _ in ops], dtype=np.int64)
+    ts = np.array([t for _, t in ops], dtype=float)
+    digits = 16 ** np.arange(9, dtype=np.int64)
+    rows = []
     for wg, tg in parent:
         winv = np.rint(np.linalg.inv(wg)).astype(np.int64)
-        m2 = hermite_normal_form((wg @ m.T).T)
+        m2 = _hnf_cached(wg @ m.T)
         w2 = np.einsum("ij,njk,kl->nil", wg, ws, winv)
+        code = (w2.reshape(len(w2), 9) + 8) @ digits  # entries of integer rotations are small (|w| < 8)
+        order = np.argsort(code, kind="stable")
         minv = np.linalg.inv(m2.T)
         a, c, f = int(m2[0, 0]), int(m2[1, 1]), int(m2[2, 2])
-        for u in itertools.product(range(a), range(c), range(f)):
-            s = tg + np.array(u, dtype=float)
-            t2 = ts @ wg.T + s - np.einsum("nij,j->ni", w2, s)
-            frac = t2 @ minv.T
-            frac = np.round((frac - np.floor(frac + 1e-8)) * 1e6).astype(np.int64) % 1_000_000
-            rows = sorted(zip(map(bytes, w2.reshape(len(w2), -1).astype(np.int8)), map(bytes, frac), strict=True))
-            key = (m2.tobytes(), tuple(rows))
-            if best is None or key < best:
-                best = key
-    return best
+        shifts = tg + np.array(list(itertools.product(range(a), range(c), range(f))), dtype=float)  # (k, 3)
+        # t2 = W_g t + s - W2 s for every shift s
+        t2 = (ts @ wg.T)[None] + shifts[:, None, :] - np.einsum("nij,kj->kni", w2, shifts)
+        frac = t2[:, order] @ minv.T
+        frac = np.round((frac - np.floor(frac + 1e-8)) * 1e6).astype(np.int64) % 1_000_000
+        head = np.concatenate([m2.reshape(9), code[order]])
+        rows.append(np.hstack([np.broadcast_to(head, (len(frac), len(head))), frac.reshape(len(frac), -1)]))
+    table = np.vstack(rows)
+    best = table[np.lexsort(table.T[::-1])[0]]
+    return (len(ops), best.tobytes())
+
+
+@functools.lru_cache(maxsize=4096)
+def _hnf_bytes(data: bytes) -> bytes:
+    return hermite_normal_form(np.frombuffer(data, dtype=np.int64).reshape(3, 3)).astype(np.int64).tobytes()
+
+
+def _hnf_cached(basis_t: np.ndarray) -> np.ndarray:
+    """Hermite normal form of the rows of ``basis_t.T`` (kept for repeated bases)."""
+    data = np.ascontiguousarray(np.rint(basis_t.T).astype(np.int64)).tobytes()
+    return np.frombuffer(_hnf_bytes(data), dtype=np.int64).reshape(3, 3)
 
 
 def _keeps(m: np.ndarray, rotations: np.ndarray) -> bool:
@@ -496,8 +518,6 @@ def lower(
     cache = FreeUnitCache(opts.unit_tolerance, dict(opts.free_groups))
     parent, cell = predict_with_cell(atoms, opts, source=source, free_cache=cache)  # one symmetry search
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
-    g = factor.oriented.group
-    by_std = {int(s): k for k, s in enumerate(factor.index)}
     cand_opts = Options(
         tolerance=1e-3,
         unit_tolerance=opts.unit_tolerance,
@@ -508,7 +528,63 @@ def lower(
         ionic_metals=opts.ionic_metals,
         standard_axes=opts.standard_axes,
     )
-    found: dict[tuple, Candidate] = {}
+    found = [
+        _candidate(cell, m, ops, mult, i, cand_opts, cache, source, seed)
+        for m, ops, mult, i in subgroups_of(cell, factor, max_index)
+    ]
+    merged: dict[tuple, list[Candidate]] = {}
+    for c in found:
+        sig = (
+            c.space_group[0],
+            c.index,
+            tuple(sorted((u.formula, u.site_group, u.wyckoff, u.count) for u in c.prediction.units)),
+            tuple((b.unit, b.band, b.text()) for b in c.bands()),
+        )
+        merged.setdefault(sig, []).append(c)
+    cands = [replace(group[0], variants=len(group)) for group in merged.values()]
+    observed, notes = _resolve_observed(tuple(observed), parent, modes)
+    if peaks is not None:
+        counted, more = _count_peaks(peaks, parent, cands, modes, window_cm1)
+        observed, notes = observed + counted, notes + more
+    if observed:
+        scored = []
+        for c in cands:
+            s, reasons = _score(c.bands(), observed, c.lattice())
+            scored.append(replace(c, score=s, reasons=reasons))
+        cands = sorted(scored, key=lambda c: (c.score, c.index, -c.space_group[0]))
+    else:
+        cands.sort(key=lambda c: (c.index, -c.space_group[0]))
+    return Lowering(parent, max_index, tuple(cands), tuple(observed), state, tuple(notes))
+
+
+#: subgroups found, per parent space group (its operations as the cell lists them) and largest index
+_SUBGROUPS: dict[tuple, tuple] = {}
+
+
+def subgroups_of(cell: CellSymmetry, factor: FactorGroup, max_index: int) -> tuple:
+    """One representative of every class of subgroups of the cell's space group up to ``max_index``.
+
+    Each is ``(m, ops, multiple, point_index)``: the sublattice (rows in the primitive basis),
+    the operations ``(W, t)`` in the primitive cell's fractional coordinates, the cell multiple
+    and the point-group index.  The search depends only on the space group's operations (as
+    the cell lists them) and the largest index, so it is done once per space group and
+    setting in a process and reused for every structure of that group.
+    """
+    g = factor.oriented.group
+    rot = np.rint(cell.frac_rotations).astype(np.int64)
+    tra = np.round((np.asarray(cell.frac_translations) % 1.0) * 1e6).astype(np.int64) % 1_000_000
+    key = (g.name, int(max_index), rot.tobytes(), tra.tobytes(), np.asarray(factor.index, dtype=np.int64).tobytes())
+    found = _SUBGROUPS.get(key)
+    if found is None:
+        found = _SUBGROUPS[key] = tuple(_search_subgroups(cell, factor, max_index))
+    return found
+
+
+def _search_subgroups(cell: CellSymmetry, factor: FactorGroup, max_index: int):
+    """The search behind :func:`subgroups_of` (uncached)."""
+    g = factor.oriented.group
+    by_std = {int(s): k for k, s in enumerate(factor.index)}
+    seen: set[tuple] = set()
     parent_ops = [
         (np.rint(w).astype(np.int64), t) for w, t in zip(cell.frac_rotations, cell.frac_translations, strict=True)
     ]
@@ -537,31 +613,9 @@ def lower(
                     if ops is None or len(ops) != len(members):
                         continue
                     key = _canonical(m, ops, parent_ops)
-                    if key not in found:
-                        found[key] = _candidate(cell, m, ops, mult, i, cand_opts, cache, source, seed)
-    merged: dict[tuple, list[Candidate]] = {}
-    for c in found.values():
-        sig = (
-            c.space_group[0],
-            c.index,
-            tuple(sorted((u.formula, u.site_group, u.wyckoff, u.count) for u in c.prediction.units)),
-            tuple((b.unit, b.band, b.text()) for b in c.bands()),
-        )
-        merged.setdefault(sig, []).append(c)
-    cands = [replace(group[0], variants=len(group)) for group in merged.values()]
-    observed, notes = _resolve_observed(tuple(observed), parent, modes)
-    if peaks is not None:
-        counted, more = _count_peaks(peaks, parent, cands, modes, window_cm1)
-        observed, notes = observed + counted, notes + more
-    if observed:
-        scored = []
-        for c in cands:
-            s, reasons = _score(c.bands(), observed, c.lattice())
-            scored.append(replace(c, score=s, reasons=reasons))
-        cands = sorted(scored, key=lambda c: (c.score, c.index, -c.space_group[0]))
-    else:
-        cands.sort(key=lambda c: (c.index, -c.space_group[0]))
-    return Lowering(parent, max_index, tuple(cands), tuple(observed), state, tuple(notes))
+                    if key not in seen:
+                        seen.add(key)
+                        yield m, ops, mult, i
 
 
 def _count_peaks(peaks, parent: CrystalPrediction, cands, modes, window_cm1: float):
