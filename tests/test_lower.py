@@ -221,3 +221,26 @@ def test_observed_counts_rank_candidates():
     f43m = [c for c in result.candidates if c.space_group[0] == 216 and c.cell_multiple == 2]
     assert f43m and all(u.count == 1 for c in f43m for u in c.prediction.units)
     assert all(c.score == 1 and c.reasons == ("T2: predicts 1 IR component, 2 observed",) for c in f43m)
+
+
+def test_subgroups_kept_per_space_group_give_the_same_candidates(tmp_path, monkeypatch):
+    """The subgroup search runs once per space group: again in the process, and read back from a folder."""
+    atoms = crystal(["Cs", "Ne"], basis=[(0, 0, 0), (0, 0.31, 0.17)], spacegroup=221, cellpar=[10, 10, 10, 90, 90, 90])
+
+    def summary(result):
+        return [(c.space_group, c.index, c.variants, c.supercell) for c in result.candidates]
+
+    monkeypatch.setattr(lowering, "_SUBGROUPS", {})
+    monkeypatch.setenv(lowering.SUBGROUP_CACHE_ENV, str(tmp_path))
+    calls = []
+    real = lowering._search_subgroups
+    monkeypatch.setattr(lowering, "_search_subgroups", lambda *a: calls.append(1) or real(*a))
+    first = summary(lower(atoms=atoms, max_index=4))
+    assert summary(lower(atoms=atoms, max_index=4)) == first and len(calls) == 1  # kept in the process
+    assert len(list(tmp_path.glob("subgroups-*.json"))) == 1
+    monkeypatch.setattr(lowering, "_SUBGROUPS", {})
+    assert summary(lower(atoms=atoms, max_index=4)) == first and len(calls) == 1  # read from the folder
+    for f in tmp_path.glob("subgroups-*.json"):
+        f.write_text("not json", encoding="utf-8")
+    monkeypatch.setattr(lowering, "_SUBGROUPS", {})
+    assert summary(lower(atoms=atoms, max_index=4)) == first and len(calls) == 2  # an unreadable entry: again

@@ -19,6 +19,7 @@ import itertools
 import os
 from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
+from pathlib import Path
 
 import numpy as np
 
@@ -64,6 +65,9 @@ def sublattices(index: int) -> list[np.ndarray]:
             for b, d, e in itertools.product(range(a), range(a), range(c)):
                 out.append(np.array([[a, 0, 0], [b, c, 0], [d, e, f]]))
     return out
+
+
+_OWN_SUBLATTICES = sublattices
 
 
 def hermite_normal_form(basis: np.ndarray) -> np.ndarray:
@@ -561,23 +565,86 @@ def lower(
 _SUBGROUPS: dict[tuple, tuple] = {}
 
 
-def subgroups_of(cell: CellSymmetry, factor: FactorGroup, max_index: int) -> tuple:
+def subgroups_of(
+    cell: CellSymmetry, factor: FactorGroup, max_index: int, folder: str | os.PathLike[str] | None = None
+) -> tuple:
     """One representative of every class of subgroups of the cell's space group up to ``max_index``.
 
     Each is ``(m, ops, multiple, point_index)``: the sublattice (rows in the primitive basis),
     the operations ``(W, t)`` in the primitive cell's fractional coordinates, the cell multiple
     and the point-group index.  The search depends only on the space group's operations (as
     the cell lists them) and the largest index, so it is done once per space group and
-    setting in a process and reused for every structure of that group.
+    setting in a process and reused for every structure of that group.  With a ``folder`` (or
+    the folder named by the environment variable ``SPLITTING_SUBGROUP_CACHE``) the result is
+    also kept there as JSON and read back by later runs; an unreadable entry is searched again.
     """
     g = factor.oriented.group
     rot = np.rint(cell.frac_rotations).astype(np.int64)
     tra = np.round((np.asarray(cell.frac_translations) % 1.0) * 1e6).astype(np.int64) % 1_000_000
     key = (g.name, int(max_index), rot.tobytes(), tra.tobytes(), np.asarray(factor.index, dtype=np.int64).tobytes())
-    found = _SUBGROUPS.get(key)
+    found = _SUBGROUPS.get((*key, sublattices))  # the enumeration of sublattices in use is part of the key
     if found is None:
-        found = _SUBGROUPS[key] = tuple(_search_subgroups(cell, factor, max_index))
+        folder = folder if folder is not None else os.environ.get(SUBGROUP_CACHE_ENV) or None
+        if sublattices is not _OWN_SUBLATTICES:
+            folder = None
+        found = _read_subgroups(folder, key) if folder else None
+        if found is None:
+            found = tuple(_search_subgroups(cell, factor, max_index))
+            if folder:
+                _write_subgroups(folder, key, found)
+        _SUBGROUPS[(*key, sublattices)] = found
     return found
+
+
+#: environment variable naming a folder where the subgroups of each space group are kept between runs
+SUBGROUP_CACHE_ENV = "SPLITTING_SUBGROUP_CACHE"
+#: format of the files in that folder
+_SUBGROUP_FORMAT = 1
+
+
+def _subgroup_file(folder: str | os.PathLike[str], key: tuple) -> Path:
+    import hashlib
+
+    h = hashlib.sha256(f"{_SUBGROUP_FORMAT}/{key[0]}/{key[1]}".encode())
+    for part in key[2:]:
+        h.update(b"\0" + part)
+    return Path(folder) / f"subgroups-{h.hexdigest()[:32]}.json"
+
+
+def _read_subgroups(folder: str | os.PathLike[str], key: tuple) -> tuple | None:
+    """The stored subgroups for ``key``, or None when there is no readable entry."""
+    import json
+
+    try:
+        rows = json.loads(_subgroup_file(folder, key).read_text(encoding="utf-8"))
+        return tuple(
+            (
+                np.array(m, dtype=np.int64).reshape(3, 3),
+                [(np.array(w, dtype=np.int64).reshape(3, 3), np.array(t, dtype=float)) for w, t in ops],
+                int(mult),
+                int(i),
+            )
+            for m, ops, mult, i in rows
+        )
+    except (OSError, ValueError, TypeError, KeyError):
+        return None
+
+
+def _write_subgroups(folder: str | os.PathLike[str], key: tuple, found: tuple) -> None:
+    """Store the subgroups for ``key`` (quietly skipped when the folder cannot be written)."""
+    import json
+
+    rows = [
+        [m.astype(int).ravel().tolist(), [[w.astype(int).ravel().tolist(), t.tolist()] for w, t in ops], mult, i]
+        for m, ops, mult, i in found
+    ]
+    target = _subgroup_file(folder, key)
+    tmp = target.with_suffix(f".{os.getpid()}.tmp")
+    try:
+        tmp.write_text(json.dumps(rows), encoding="utf-8")
+        os.replace(tmp, target)
+    except OSError:
+        tmp.unlink(missing_ok=True)
 
 
 def _search_subgroups(cell: CellSymmetry, factor: FactorGroup, max_index: int):
