@@ -19,8 +19,9 @@ or, without pytest, ``.venv/bin/python benchmarks/bench_scaling.py [max_atoms]``
 The goal is predict <= 1.5 x the floor at every size.
 
 Measured ratios predict / floor on a busy two-core machine (full table in benchmarks/README.md):
-c60 240 / 1,920 / 6,480 atoms: 1.56 / 1.63 / 1.24; naph 288 / 2,304 / 6,480: 2.19 / 1.64 / 0.62;
-naph-jitter 288 / 2,304 / 6,480: 1.57 / 5.05 / 2.20; the 14,000-atom sizes not yet measured.
+c60 240 / 1,920 / 6,480 / 14,400 atoms: 3.17 / 2.22 / 1.10 / 0.86; naph 288 / 2,304 / 6,480 /
+14,112: 2.03 / 1.45 / 0.96 / 1.16; naph-jitter at the same sizes: 1.64 / 1.48 / 1.30 / 0.81
+(the small cells pay a fixed per-process cost, chiefly the free unit's point-group search).
 """
 
 from __future__ import annotations
