@@ -176,3 +176,27 @@ class _NoCarry(freeunits.FreeUnitCache):
     def get(self, unit):
         self._store.clear()
         return super().get(unit)
+
+
+def test_hall_numbers_found_by_bisection_are_all_of_the_type() -> None:
+    from splitting.crystal import setting
+
+    numbers = [int(setting._type(h).number) for h in range(1, 531)]
+    assert numbers == sorted(numbers)  # what the bisection relies on
+    for n in (1, 14, 62, 167, 205, 225, 230):
+        assert setting._halls_of(n) == tuple(h for h in range(1, 531) if numbers[h - 1] == n)
+
+
+def test_connected_pieces_match_a_graph_library() -> None:
+    from scipy.sparse import coo_matrix
+    from scipy.sparse.csgraph import connected_components
+
+    from splitting.crystal.units import _connected
+
+    rng = np.random.default_rng(0)
+    for _ in range(100):
+        n, m = int(rng.integers(1, 60)), int(rng.integers(0, 80))
+        i, j = rng.integers(0, n, m), rng.integers(0, n, m)
+        count, label = connected_components(coo_matrix((np.ones(m), (i, j)), shape=(n, n)), directed=False)
+        got_count, got = _connected(n, i, j)
+        assert got_count == count and len(set(zip(label.tolist(), got.tolist(), strict=True))) == count

@@ -89,7 +89,17 @@ def _type(hall: int):
 
 @cache
 def _halls_of(number: int) -> tuple[int, ...]:
-    return tuple(h for h in range(1, 531) if int(_type(h).number) == number)
+    """Hall numbers of a space-group type; spglib numbers the Hall symbols in order of the
+    space-group number, so the run is found by bisection (checked in the tests)."""
+    import bisect
+
+    first = bisect.bisect_left(range(1, 531), number, key=lambda h: int(_type(h).number)) + 1
+    out = []
+    for h in range(first, 531):
+        if int(_type(h).number) != number:
+            break
+        out.append(h)
+    return tuple(out)
 
 
 @cache
@@ -130,11 +140,25 @@ def _matching(hall: int, p_key: bytes) -> tuple[int, ...]:
         target = _keys(w_h, t_h)
         if len(target) != len(own) or not np.array_equal(np.unique(target // 48**3), np.unique(own // 48**3)):
             continue
-        for o in _ORIGINS:
-            if np.array_equal(_keys(w_f, t_f + (w_f - np.eye(3)) @ o), target):
-                found.append(h)
-                break
+        if _any_origin_matches(w_f, t_f, target):
+            found.append(h)
     return tuple(found)
+
+
+def _any_origin_matches(w_f: np.ndarray, t_f: np.ndarray, target: np.ndarray) -> bool:
+    """True when the operations, with the origin moved to one of :data:`_ORIGINS`, have the keys ``target``.
+
+    All origins are tried at once; operations that coincide modulo the lattice (never in a
+    tabulated setting) fall back to one origin at a time.
+    """
+    if len(_keys(w_f, t_f)) != len(w_f):
+        return any(np.array_equal(_keys(w_f, t_f + (w_f - np.eye(3)) @ o), target) for o in _ORIGINS)
+    origins = np.asarray(_ORIGINS, dtype=float).reshape(-1, 3)
+    shifted = t_f[None] + np.einsum("nij,oj->oni", w_f - np.eye(3), origins)  # (origins, ops, 3)
+    tt = np.rint(np.mod(shifted, 1.0) * 48).astype(np.int64) % 48
+    rr = (w_f.reshape(len(w_f), 9).astype(np.int64) + 1) @ (3 ** np.arange(9, dtype=np.int64))
+    keys = np.sort(rr[None] * 48**3 + tt @ np.array([48 * 48, 48, 1], dtype=np.int64), axis=1)
+    return bool(np.any(np.all(keys == target[None], axis=1)))
 
 
 def file_settings(hall: int, transformation: np.ndarray) -> tuple[int, ...]:
