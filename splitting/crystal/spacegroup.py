@@ -7,6 +7,7 @@ implements them (A. Togo et al., Sci. Technol. Adv. Mater. Meth. 4, 2384822 (202
 from __future__ import annotations
 
 import contextlib
+import functools
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 
@@ -260,12 +261,9 @@ class CellSymmetry:
     def direction_text(self, v: np.ndarray) -> str:
         """A Cartesian direction as crystal-axis text: ``"a"``, ``"c"``, ``"[1,1,0]"`` (of :attr:`label_basis`)."""
         v = np.asarray(v, dtype=float)
-        cell = self.label_basis
-        inv = np.linalg.inv(cell)
+        inv, rn, oblique = _label_frame(np.ascontiguousarray(self.label_basis, dtype=float).tobytes())
         recip = inv.T  # rows: a*, b*, c* (without 2 pi)
-        rn = np.linalg.norm(recip, axis=1)
         cosang = (recip @ v) / (np.linalg.norm(v) * rn)
-        oblique = np.abs(np.abs(np.einsum("ij,ij->i", cell, recip)) / (np.linalg.norm(cell, axis=1) * rn) - 1) > 1e-6
         for k in range(3):
             if abs(abs(float(cosang[k])) - 1) < 1e-6 and oblique[k]:
                 return ("-" if cosang[k] < 0 else "") + "abc"[k] + "*"
@@ -348,6 +346,20 @@ class CellSymmetry:
         d = (np.asarray(p) - np.asarray(q)) @ np.linalg.inv(self.lattice)
         d -= np.round(d)
         return bool(np.linalg.norm(d @ self.lattice) < tol)
+
+
+@functools.lru_cache(maxsize=64)
+def _label_frame(basis: bytes) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """For the rows a, b, c of a cell: the inverse, the lengths of a*, b*, c* and which of them
+    are not along a, b, c (what :meth:`CellSymmetry.direction_text` needs, kept per cell)."""
+    cell = np.frombuffer(basis, dtype=float).reshape(3, 3)
+    inv = np.linalg.inv(cell)
+    recip = inv.T
+    rn = np.linalg.norm(recip, axis=1)
+    oblique = np.abs(np.abs(np.einsum("ij,ij->i", cell, recip)) / (np.linalg.norm(cell, axis=1) * rn) - 1) > 1e-6
+    for a in (inv, rn, oblique):
+        a.setflags(write=False)
+    return inv, rn, oblique
 
 
 def _info(ds, tolerance: float, others, largest_shift: float = 0.0) -> SpaceGroupInfo:
