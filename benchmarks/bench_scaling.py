@@ -18,10 +18,11 @@ Python process (imports done before the clock starts), so the peak resident memo
 or, without pytest, ``.venv/bin/python benchmarks/bench_scaling.py [max_atoms]``.
 The goal is predict <= 1.5 x the floor at every size.
 
-Measured ratios predict / floor on a busy two-core machine (full table in benchmarks/README.md):
-c60 240 / 1,920 / 6,480 / 14,400 atoms: 3.17 / 2.22 / 1.10 / 0.86; naph 288 / 2,304 / 6,480 /
-14,112: 2.03 / 1.45 / 0.96 / 1.16; naph-jitter at the same sizes: 1.64 / 1.48 / 1.30 / 0.81
-(the small cells pay a fixed per-process cost, chiefly the free unit's point-group search).
+Measured ratios predict / floor, median of three on a quiet machine (full table in
+benchmarks/README.md): c60 240 / 1,920 / 6,480 / 14,400 atoms: 2.12 / 1.71 / 1.13 / 1.05;
+naph 288 / 2,304 / 6,480 / 14,112: 1.54 / 1.18 / 1.03 / 1.02; naph-jitter at the same sizes:
+1.70 / 1.64 / 1.26 / 1.19 (the small cells pay a fixed per-process cost, chiefly the free
+unit's point-group search).
 """
 
 from __future__ import annotations
