@@ -246,3 +246,47 @@ def test_cli_prints_setting_and_takes_standard_axes(run_cli, tmp_path: Path) -> 
     for command in ("lower", "compare", "report", "explain"):
         rc, out, _ = run_cli([command, "--help"])
         assert rc == 0 and "--standard-axes" in out, command
+
+
+@pytest.mark.parametrize(
+    "full, short",
+    [
+        # short symbols of International Tables for Crystallography, Vol. A, Table 4.3.2.1 (from memory)
+        ("P 1 2_1/a 1", "P2_1/a"),
+        ("P 1 1 2_1/n", "P2_1/n"),
+        ("C 1 2/c 1", "C2/c"),
+        ("P b n m", "Pbnm"),
+        ("P 2_1 2_1 2_1", "P2_12_12_1"),
+        ("P 3 1 2", "P312"),
+        ("P 3 2 1", "P321"),
+        ("P -1", "P-1"),
+        ("P 1", "P1"),
+        ("F m -3 m", "Fm-3m"),
+    ],
+)
+def test_short_symbols(full: str, short: str) -> None:
+    from splitting.crystal.setting import short_symbol
+
+    assert short_symbol(full) == short
+
+
+def test_headings_name_the_files_setting(run_cli, tmp_path: Path) -> None:
+    """A P2_1/a file is headed P2_1/a (its labels are in its axes), the standard symbol beside it;
+    with --standard-axes, or for a file in the standard setting, the standard symbol alone."""
+    import json
+
+    from splitting.report.display import summary
+
+    a = str(STRUCTURES / "naphthalene_P21a.cif")
+    rc, out, _ = run_cli(["predict", a])
+    assert rc == 0
+    assert "space group P2_1/a (No. 14, C2h^5; standard setting P2_1/c)" in out
+    rc, out, _ = run_cli(["predict", a, "--json"])
+    assert json.loads(out)["setting"]["label_symbol"] == "P2_1/a"
+    rc, out, _ = run_cli(["predict", a, "--standard-axes"])
+    assert "space group P2_1/c (No. 14, C2h^5)," in out and "standard setting P2_1/c" not in out
+    rc, out, _ = run_cli(["predict", str(STRUCTURES / "naphthalene_P21c.cif")])
+    assert "space group P2_1/c (No. 14, C2h^5)," in out
+    p = predict_atoms(ase.io.read(a))
+    assert p.symbol == "P2_1/a" and p.space_group.symbol == "P2_1/c"
+    assert "space group P2_1/a" in summary(p)

@@ -292,6 +292,13 @@ class CrystalPrediction(Summarised):
     cell_parameters: tuple[float, ...] = ()
     setting: Setting | None = None
 
+    @property
+    def symbol(self) -> str:
+        """Short Hermann-Mauguin symbol of the setting the labels refer to: the file's own
+        (``"P2_1/a"``) unless the file's cell is not a tabulated setting or the labels use the
+        standard axes; ``space_group.symbol`` is always the standard setting's."""
+        return self.setting.label_symbol if self.setting is not None else self.space_group.symbol
+
     def species_by_label(self, label: str) -> FactorSpecies:
         """The factor-group species with this label."""
         for s in self.species:

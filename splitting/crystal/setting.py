@@ -15,7 +15,7 @@ from functools import cache
 
 import numpy as np
 
-__all__ = ["Setting", "file_settings", "setting_of"]
+__all__ = ["Setting", "file_settings", "setting_of", "short_symbol"]
 
 #: origins tried when comparing a setting's operations (multiples of 1/8 of the axes)
 _ORIGINS = np.array(np.meshgrid(*[np.arange(8) / 8] * 3, indexing="ij")).reshape(3, -1).T
@@ -53,6 +53,15 @@ class Setting:
     labels: str
 
     @property
+    def label_symbol(self) -> str:
+        """Short symbol of the setting the labels refer to: the file's (``"P2_1/a"``) when the
+        labels use the file's axes and the file's cell is a tabulated setting, else the
+        standard one."""
+        if self.labels == "file" and self.file_symbol is not None:
+            return short_symbol(self.file_symbol)
+        return short_symbol(self.standard_symbol)
+
+    @property
     def is_standard(self) -> bool:
         """True when the file is written in the standard setting."""
         return self.file_symbol == self.standard_symbol
@@ -67,8 +76,25 @@ class Setting:
             "transformation_matrix": [list(r) for r in self.transformation],
             "origin_shift": list(self.origin_shift),
             "labels": self.labels,
+            "label_symbol": self.label_symbol,
             "wyckoff_letters": "standard setting",
         }
+
+
+def short_symbol(full: str) -> str:
+    """Short Hermann-Mauguin symbol of a full one (International Tables, Vol. A, Table 4.3.2.1).
+
+    Monoclinic settings drop the two 1s; every other symbol is written without spaces.
+
+    Examples
+    --------
+    >>> short_symbol("P 1 2_1/a 1"), short_symbol("P b n m"), short_symbol("P 3 1 2"), short_symbol("P -1")
+    ('P2_1/a', 'Pbnm', 'P312', 'P-1')
+    """
+    lattice, *rest = full.split()
+    if len(rest) == 3 and rest.count("1") == 2:
+        rest = [t for t in rest if t != "1"]
+    return lattice + "".join(rest)
 
 
 def _setting_symbol(international: str) -> str:

@@ -143,6 +143,11 @@ class Phase:
         return self.prediction.space_group if self.prediction is not None else self.disorder.space_group
 
     @property
+    def symbol(self) -> str:
+        """Short Hermann-Mauguin symbol in the setting the phase's labels refer to."""
+        return self.prediction.symbol if self.prediction is not None else self.disorder.symbol
+
+    @property
     def factor_group(self) -> str:
         """Factor group (of the averaged structure for a disordered phase)."""
         return self.prediction.factor_group if self.prediction is not None else self.disorder.factor_group

@@ -230,6 +230,11 @@ class DisorderedPrediction:
         return find_unit(self.units, formula)
 
     @property
+    def symbol(self) -> str:
+        """Short Hermann-Mauguin symbol of the averaged structure (standard setting)."""
+        return self.space_group.symbol
+
+    @property
     def state(self) -> str:
         """State of the phase: ``"ordered"``, ``"static"``, ``"dynamic"`` or ``"mixed"`` (units differ)."""
         found = {u.state for u in self.units} or {"ordered"}

@@ -367,11 +367,10 @@ def _plan(prediction: CrystalPrediction, unit: str | UnitOrbit | None, band: str
     from ..activity import activity_table
 
     free_activity = {a.label: (bool(a.ir), bool(a.raman)) for a in activity_table(u.free_group or "C1")}
-    sg = prediction.space_group
     headings = (
         (f"free {formula_mathtext(u.name)}", schoenflies_mathtext(u.free_group or "C1")),
         (f"site {u.wyckoff} ({u.site_symmetry})", schoenflies_mathtext(u.site_group)),
-        (f"factor group, {hermann_mauguin_mathtext(sg.symbol)}", schoenflies_mathtext(prediction.factor_group)),
+        (f"factor group, {hermann_mauguin_mathtext(prediction.symbol)}", schoenflies_mathtext(prediction.factor_group)),
     )
     return _Plan(
         unit=u.formula,

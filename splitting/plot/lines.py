@@ -603,7 +603,7 @@ def _headings(fig, ax, phases, units, columns, lefts, widths, top, small) -> lis
             ax.axvline(x0, color="#e6e6e6", linewidth=0.8, zorder=0)
             u = units[k - 1]
             pred = phases[k - 1][1]
-            sub = f"{hermann_mauguin_mathtext(pred.space_group.symbol)}, site {schoenflies_mathtext(u.site_group)}"
+            sub = f"{hermann_mauguin_mathtext(pred.symbol)}, site {schoenflies_mathtext(u.site_group)}"
             title = name
         else:
             sub = f"{schoenflies_mathtext(u0.free_group)}"

@@ -41,7 +41,7 @@ def _crystal(pred: Any) -> list[str]:
     sg = pred.space_group
     return [
         f"CrystalPrediction: {_name(pred.source)}",
-        f"  space group {sg.symbol} (No. {sg.number}), factor group {pred.factor_group}, "
+        f"  space group {pred.symbol} (No. {sg.number}), factor group {pred.factor_group}, "
         f"{_plural(pred.atoms_primitive, 'atom')} in the primitive cell",
         f"  units: {_units(pred)}",
         f"  {_totals(pred)}",
@@ -52,7 +52,7 @@ def _sequence(seq: Any) -> list[str]:
     out = [f"PhaseSequence: {_plural(len(seq.phases), 'phase')}"]
     for p in seq.phases:
         state = "ordered" if p.ordered else "disordered"
-        out.append(f"  {p.label}: {p.space_group.symbol}, factor group {p.factor_group}, {state}")
+        out.append(f"  {p.label}: {p.symbol}, factor group {p.factor_group}, {state}")
     changed = [b for b in seq.bands if getattr(b, "changes", True)]
     out.append(f"  {_plural(len(changed), 'band')} compared")
     return out

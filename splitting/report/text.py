@@ -193,6 +193,11 @@ def setting_line(st) -> str:
     )
 
 
+def _standard_beside(pred) -> str:
+    """``"; standard setting P2_1/c"`` when the labels' setting is not the standard one, else ``""``."""
+    return "" if pred.symbol == pred.space_group.symbol else f"; standard setting {pred.space_group.symbol}"
+
+
 def prediction_text(pred, estimate=None) -> str:
     """Readable report of a :class:`~splitting.crystal.results.CrystalPrediction`.
 
@@ -206,7 +211,8 @@ def prediction_text(pred, estimate=None) -> str:
     lines = [
         f"{pred.source}",
         f"  {pred.formula} (primitive cell, {pred.atoms_primitive} atoms; {pred.atoms_input} as given)",
-        f"  space group {sg.symbol} (No. {sg.number}, {sg.schoenflies}), tolerance {sg.tolerance:g} Å",
+        f"  space group {pred.symbol} (No. {sg.number}, {sg.schoenflies}{_standard_beside(pred)}),"
+        f" tolerance {sg.tolerance:g} Å",
         f"  factor group {pred.factor_group} ({'centrosymmetric' if pred.centrosymmetric else 'non-centrosymmetric'});"
         f" labels use x = {ax['x']}, y = {ax['y']}, z = {ax['z']}",
     ]
@@ -314,7 +320,7 @@ def sequence_text(seq, estimates=None) -> str:
         sg = ph.space_group
         state = {"ordered": "ordered", "static": "static disorder", "dynamic": "rotor (dynamic disorder)"}
         rows.append(
-            [ph.label, f"{sg.symbol} (No. {sg.number})", ph.factor_group, state.get(ph.state, "mixed"), ph.source]
+            [ph.label, f"{ph.symbol} (No. {sg.number})", ph.factor_group, state.get(ph.state, "mixed"), ph.source]
         )
     lines.append(table(["phase", "space group", "factor group", "state", "file"], rows))
     for ph in seq.phases:
