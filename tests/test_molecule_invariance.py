@@ -85,3 +85,32 @@ def test_an_improper_copy_gives_the_same_answer(name):
     # a mirror image of the whole molecule: every one of these molecules is achiral, so nothing changes
     numbers, positions = load(name)
     assert summary(analyse_unit(numbers, positions * np.array([1.0, 1.0, -1.0]))) == reference(name)
+
+
+@pytest.mark.parametrize("name", NAMES)
+@FEW
+@given(seed=st.integers(0, 2**32 - 1), q=quaternions)
+def test_noise_of_a_refined_structure(name, seed, q):
+    """Gaussian noise of 0.03 Å per coordinate (the size of the uncertainty of light-atom positions
+    in a routine X-ray structure; common practice), far inside the default tolerance of 0.25 Å:
+    the group must not drop to a subgroup (the search once lost every improper partner of a
+    planar unit's operations here)."""
+    numbers, positions = load(name)
+    rng = np.random.default_rng(seed)
+    r = Rotation.from_quat(np.array(q) / np.linalg.norm(q)).as_matrix()
+    noisy = (positions + rng.normal(scale=0.03, size=positions.shape)) @ r.T
+    assert summary(analyse_unit(numbers, noisy)) == reference(name)
+
+
+def test_every_molecule_of_a_displaced_supercell_keeps_its_group():
+    """A 2x2x2 naphthalene supercell with every atom displaced (0.03 Å per coordinate) is P1, but
+    each of its 16 molecules is still D2h within the unit tolerance."""
+    from collections import Counter
+
+    from splitting.crystal.predict import predict_atoms
+
+    cell = ase.io.read(MOLECULES.parent / "naphthalene_P21a.cif").repeat((2, 2, 2))
+    cell.positions += np.random.default_rng(7).normal(scale=0.03, size=cell.positions.shape)
+    p = predict_atoms(cell)
+    assert p.space_group.number == 1
+    assert Counter(u.free_group for u in p.units) == Counter({"D2h": 16})

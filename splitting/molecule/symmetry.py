@@ -249,7 +249,7 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
                     continue
                 nb /= np.linalg.norm(nb)
                 src = np.array([pos[a1], pos[a2], normal * radius[a1]])
-                trials = [np.array([pos[b1], pos[b2], t * radius[a1]]) for t in (nb, -nb)]
+                trials = [(np.array([pos[b1], pos[b2], t * radius[a1]]), None) for t in (nb, -nb)]
             else:
                 src = np.array([pos[a1], pos[a2], pos[a3]])
                 ok = (
@@ -258,12 +258,22 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
                     & (c3 != b1)
                     & (c3 != b2)
                 )
-                trials = [np.array([pos[b1], pos[b2], pos[b3]]) for b3 in c3[ok]]
-            for dst in trials:
-                r = _kabsch(src, dst)
+                # both handednesses: three atoms nearly in a plane with the centre fit a rotation
+                # and a reflection almost equally well
+                trials = [(np.array([pos[b1], pos[b2], pos[b3]]), d) for b3 in c3[ok] for d in (1.0, -1.0)]
+            for dst, det in trials:
+                r = _kabsch(src, dst, det)
                 p = _match(r, pos, numbers, tree, tol)
                 if p is None:
-                    continue
+                    # three nearby atoms fix the rotation only roughly when the positions are noisy:
+                    # pair the atoms under a looser bound, fit the rotation to all of them, check again
+                    p = _match(r, pos, numbers, tree, 3 * tol)
+                    if p is None:
+                        continue
+                    r = _kabsch(pos, pos[p], np.linalg.det(r))
+                    p = _match(r, pos, numbers, tree, tol)
+                    if p is None:
+                        continue
                 key = p.tobytes() + (b"+" if np.linalg.det(r) > 0 else b"-")
                 if key in keys:
                     continue
