@@ -98,6 +98,21 @@ def test_figure_artists(co2):
     assert "FWHM 3 cm" in texts and "not measured" in texts and "williams" in texts
 
 
+@pytest.mark.parametrize("width", [3.0, 0.5])
+def test_notes_stay_above_the_lines(co2, width):
+    """The (wrapped) notes of each panel end above its tallest line, in every panel."""
+    from splitting.plot.simulated import spectra_figure
+
+    art = spectra_figure(simulate_all(co2, width_cm1=width), title="CO2")
+    renderer = art.figure.canvas.get_renderer()
+    for ax in art.axes:
+        notes = [t for t in art.notes if t.axes is ax]
+        bottom = min(t.get_window_extent(renderer).y0 for t in notes)
+        tallest = max(float(np.max(line.get_ydata())) for line in ax.get_lines())
+        top_of_lines = ax.transData.transform((0.0, tallest))[1]
+        assert top_of_lines < bottom
+
+
 def test_cli_spectra_figure_and_data(run_cli, structures_dir, tmp_path):
     cache = tmp_path / "cache"
     cache.mkdir()

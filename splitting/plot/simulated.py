@@ -11,6 +11,8 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
+import numpy as np
+
 from .correlation import ACTIVITY_STYLE, COLOURS
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -51,6 +53,20 @@ class SpectraArtists:
     curves: tuple[Line2D, ...]
     sticks: tuple[tuple[str, float, float, Line2D], ...]
     notes: tuple[Text, ...]
+
+
+def _clear_of_notes(fig, axes, notes) -> None:
+    """Raise each panel's upper limit so that its tallest line ends below the panel's notes
+    (the notes wrap at drawing time, so their height is measured with the figure's renderer)."""
+    renderer = fig.canvas.get_renderer()
+    for ax in axes:
+        own = [t for t in notes if t.axes is ax]
+        if not own:
+            continue
+        inverse = ax.transAxes.inverted()
+        bottom = min(inverse.transform(t.get_window_extent(renderer))[0, 1] for t in own)
+        tallest = max((float(np.max(y)) for line in ax.get_lines() if len(y := line.get_ydata())), default=1.0)
+        ax.set_ylim(0, max(tallest, 1e-12) / max(bottom - 0.04, 0.2))
 
 
 def spectra_figure(
@@ -120,6 +136,7 @@ def spectra_figure(
                 wrap=True,
             )
         )
+    _clear_of_notes(fig, axes, notes)
     axes[-1].set_xlabel("wavenumber / cm$^{-1}$ (model estimate)", fontsize=9)
     if title:
         notes.append(fig.suptitle(title, fontsize=10, color=COLOURS["ink"]))
