@@ -125,6 +125,7 @@ def test_fifo_is_refused_without_blocking(tmp_path: Path, run_cli) -> None:
 
 
 def test_gzip_bomb_is_capped(tmp_path: Path, run_cli, monkeypatch: pytest.MonkeyPatch) -> None:
+    """Reproducer R10 (a small .xyz.gz expanding to gigabytes), scaled down with a 1 MB cap."""
     monkeypatch.setenv("SPLITTING_MAX_INPUT_MB", "1")
     bomb = tmp_path / "bomb.xyz.gz"
     with gzip.open(bomb, "wb") as handle:
