@@ -290,3 +290,18 @@ def test_headings_name_the_files_setting(run_cli, tmp_path: Path) -> None:
     p = predict_atoms(ase.io.read(a))
     assert p.symbol == "P2_1/a" and p.space_group.symbol == "P2_1/c"
     assert "space group P2_1/a" in summary(p)
+
+
+@pytest.mark.parametrize("name", list(SETTINGS))
+def test_site_symbols_in_the_files_axes(aragonite, name: str) -> None:
+    """The oriented site symbol of CO3^2- (4c, .m. in Pnma; ITA Vol. A, No. 62) puts its m at
+    the file's axis normal to the site mirror, which is the site group Cs's z (Mulliken 1955)."""
+    base, _ = aragonite
+    p = predict_atoms(rewritten(base, SETTINGS[name]))
+    for u in p.units:
+        assert u.site_group == "Cs"
+        assert u.site_symmetry.count("m") == 1 and len(u.site_symmetry) == 3
+        assert "abc"[u.site_symmetry.index("m")] == u.site_axes["z"].lstrip("-")
+    std = predict_atoms(rewritten(base, SETTINGS[name]), options=Options(standard_axes=True))
+    assert {u.site_symmetry for u in std.units} == {".m."}
+    assert p.setting.to_dict()["site_symbols"] == "file" and std.setting.to_dict()["site_symbols"] == "standard"

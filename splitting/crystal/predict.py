@@ -350,6 +350,9 @@ def _predict(
     species_done: dict[tuple, tuple[Representation, Representation]] = {}
     axes_text = _AxesText(cell)
     site_ops_of = _site_ops_all(cell, [units[orbit[0][0]].centre for orbit in orbits])
+    setting = _setting(cell)
+    if setting is not None:  # oriented site symbols in the axes the labels use
+        wyckoffs = [(w, setting.site_symbol(symbol)) for w, symbol in wyckoffs]
     for orbit, (wyck, site_symbol), site_idx in zip(orbits, wyckoffs, site_ops_of, strict=True):
         u0 = units[orbit[0][0]]
         centre = u0.centre
@@ -482,7 +485,7 @@ def _predict(
         acoustic=acoustic,
         warnings=tuple(_warnings(cell, units)),
         cell_volume=float(abs(np.linalg.det(cell.lattice))),
-        setting=_setting(cell),
+        setting=setting,
     )
 
 

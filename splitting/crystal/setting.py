@@ -10,6 +10,7 @@ same space-group type.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 from functools import cache
 
@@ -17,6 +18,8 @@ import numpy as np
 
 __all__ = ["Setting", "file_settings", "setting_of", "short_symbol"]
 
+#: one position of an oriented site-symmetry symbol (ITA): an axis, a mirror, 2/m, -1, or a dot
+_SITE_PART = re.compile(r"-?[1-6](?:/m)?|m|\.")
 #: origins tried when comparing a setting's operations (multiples of 1/8 of the axes)
 _ORIGINS = np.array(np.meshgrid(*[np.arange(8) / 8] * 3, indexing="ij")).reshape(3, -1).T
 
@@ -42,6 +45,11 @@ class Setting:
         spglib's origin shift p: x_s = P x + p.
     labels : str
         ``"file"`` when labels use the file's axes, ``"standard"`` when the standard setting's.
+    site_axes : tuple of int or None
+        For an orthorhombic group, the file's axis (0, 1, 2 for a, b, c) along which each of the
+        three positions of the standard setting's oriented site symbol points; None when the
+        positions are not the cell axes (other crystal systems) or do not fall on the file's
+        axes (a primitive cell of a centred lattice).
     """
 
     file_symbol: str | None
@@ -51,6 +59,31 @@ class Setting:
     transformation: tuple[tuple[float, ...], ...]
     origin_shift: tuple[float, ...]
     labels: str
+    site_axes: tuple[int, ...] | None = None
+
+    def site_symbol(self, standard: str) -> str:
+        """An oriented site-symmetry symbol of the standard setting written in the axes the labels use.
+
+        The three positions of an orthorhombic symbol follow the file's axes (``".m."`` of Pnma
+        is ``"..m"`` in Pbnm); symbols of other systems, and every symbol with ``--standard-axes``,
+        stay as they are.
+
+        Examples
+        --------
+        >>> p = ((0, 1, 0), (0, 0, 1), (1, 0, 0))
+        >>> st = Setting("P b n m", "cab", "P n m a", "", p, (0, 0, 0), "file", site_axes=(1, 2, 0))
+        >>> st.site_symbol(".m."), st.site_symbol("-1"), st.site_symbol("2/m..")
+        ('..m', '-1', '.2/m.')
+        """
+        if self.labels != "file" or self.site_axes is None:
+            return standard
+        parts = _SITE_PART.findall(standard)
+        if len(parts) != 3 or "".join(parts) != standard:
+            return standard
+        out = ["."] * 3
+        for j, part in enumerate(parts):
+            out[self.site_axes[j]] = part
+        return "".join(out)
 
     @property
     def label_symbol(self) -> str:
@@ -78,6 +111,7 @@ class Setting:
             "labels": self.labels,
             "label_symbol": self.label_symbol,
             "wyckoff_letters": "standard setting",
+            "site_symbols": "file" if self.labels == "file" and self.site_axes is not None else "standard",
         }
 
 
@@ -216,4 +250,16 @@ def setting_of(hall: int, transformation: np.ndarray, origin_shift: np.ndarray, 
         transformation=tuple(tuple(round(float(v), 6) + 0.0 for v in row) for row in np.asarray(transformation)),
         origin_shift=tuple(round(float(v), 6) + 0.0 for v in np.asarray(origin_shift)),
         labels="standard" if standard_axes else "file",
+        site_axes=_site_axes(int(std.number), transformation),
     )
+
+
+def _site_axes(number: int, transformation: np.ndarray) -> tuple[int, ...] | None:
+    """The file's axis of each standard axis for an orthorhombic group (see :attr:`Setting.site_axes`)."""
+    if not 16 <= number <= 74:
+        return None
+    q = np.linalg.inv(np.asarray(transformation, dtype=float))  # column j: standard axis j in the file's basis
+    nonzero = np.abs(q) > 1e-6
+    if not np.all(nonzero.sum(axis=0) == 1) or not np.all(nonzero.sum(axis=1) == 1):
+        return None
+    return tuple(int(np.flatnonzero(nonzero[:, j])[0]) for j in range(3))

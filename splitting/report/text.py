@@ -190,6 +190,7 @@ def setting_line(st) -> str:
     return (
         f"  setting of the file {found}; standard {st.standard_symbol} (P = {matrix}, origin shift {shift});"
         f" labels in the axes of {where}; Wyckoff letters of the standard setting"
+        + ("; site symbols in the file's axes" if st.labels == "file" and st.site_axes is not None else "")
     )
 
 
