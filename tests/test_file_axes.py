@@ -305,3 +305,16 @@ def test_site_symbols_in_the_files_axes(aragonite, name: str) -> None:
     std = predict_atoms(rewritten(base, SETTINGS[name]), options=Options(standard_axes=True))
     assert {u.site_symmetry for u in std.units} == {".m."}
     assert p.setting.to_dict()["site_symbols"] == "file" and std.setting.to_dict()["site_symbols"] == "standard"
+
+
+def test_lower_names_the_parent_in_the_files_setting(run_cli, tmp_path: Path) -> None:
+    path = tmp_path / "aragonite_pmcn.cif"
+    ase.io.write(path, aragonite_pmcn())
+    rc, out, err = run_cli(["lower", str(path), "--max-index", "2"])
+    assert rc == 0, err
+    head = out.splitlines()[0]
+    assert head.startswith("Parent Pmcn (No. 62; standard setting Pnma)")
+    assert "in its own standard setting" in head
+    rc, out, err = run_cli(["predict", str(path)])
+    assert "space group Pmcn (No. 62, D2h^16; standard setting Pnma)" in out
+    assert "site symbols in the file's axes" in out

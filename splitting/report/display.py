@@ -61,7 +61,7 @@ def _sequence(seq: Any) -> list[str]:
 def _lowering(low: Any) -> list[str]:
     parent = low.parent
     out = [
-        f"Lowering: {_name(parent.source)} ({parent.space_group.symbol}), "
+        f"Lowering: {_name(parent.source)} ({parent.symbol}), "
         f"{_plural(len(low.candidates), 'candidate')} up to index {low.max_index}"
     ]
     for c in low.candidates[:3]:

@@ -69,8 +69,7 @@ def _facts(pred: CrystalPrediction, state: str | None = None) -> str:
         (
             "space group",
             f"{hermann_mauguin_html(pred.symbol)} (No. {sg.number}, {schoenflies_html(sg.schoenflies)}"
-            + (f"; standard setting {hermann_mauguin_html(sg.symbol)}" if pred.symbol != sg.symbol else "")
-            + "), "
+            f"{sections.standard_beside_html(pred)}), "
             f"{escape(sg.crystal_system)}; distance tolerance {sg.tolerance:g} &#197;",
         ),
         ("factor group", f"{schoenflies_html(pred.factor_group)} ({_point_group_hm(sg.point_group)}), {centro}"),

@@ -33,6 +33,7 @@ __all__ = [
     "candidates_section",
     "cell_items",
     "methods_section",
+    "standard_beside_html",
     "tensor_section",
     "unit_tables",
     "versions",
@@ -65,6 +66,13 @@ def _number(x: Any) -> str:
         return f"{float(x):g}"
     except (TypeError, ValueError):
         return escape(str(x))
+
+
+def standard_beside_html(pred) -> str:
+    """``"; standard setting <symbol>"`` when the labels' setting is not the standard one, else ``""``."""
+    if pred.symbol == pred.space_group.symbol:
+        return ""
+    return f"; standard setting {hermann_mauguin_html(pred.space_group.symbol)}"
 
 
 def cell_items(pred: CrystalPrediction, state: str | None = None) -> list[tuple[str, str]]:
@@ -428,9 +436,11 @@ def candidates_section(lowering: Lowering | None, *, limit: int = 12) -> str:
     tail = f" {more} more candidate{'s' if more != 1 else ''} not shown." if more > 0 else ""
     return (
         '<section class="phase" id="candidates"><h2>Candidate lower-symmetry phases</h2>'
-        f"<p>Subgroups of {hermann_mauguin_html(parent.space_group.symbol)} (No. {parent.space_group.number}) "
+        f"<p>Subgroups of {hermann_mauguin_html(parent.symbol)} (No. {parent.space_group.number}"
+        f"{standard_beside_html(parent)}) "
         f"of {escape(file_name(parent.source))} up to index {lowering.max_index}: t (same cell, fewer "
-        f"rotations), k (same rotations, larger cell or no centring) or both.{obs}{tail}</p>"
+        f"rotations), k (same rotations, larger cell or no centring) or both; each named and its sites "
+        f"lettered in its own standard setting.{obs}{tail}</p>"
         + table(
             ["rank", "space group", "factor group", "kind", "index", "cell &times;", "misfit", "where it disagrees"],
             rows,

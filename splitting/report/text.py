@@ -431,8 +431,9 @@ def lowering_text(result, *, limit: int = 40) -> str:
     """Readable list of candidate lower-symmetry phases."""
     p = result.parent
     lines = [
-        f"Parent {p.space_group.symbol} (No. {p.space_group.number}), factor group {p.factor_group}; "
+        f"Parent {p.symbol} (No. {p.space_group.number}{_standard_beside(p)}), factor group {p.factor_group}; "
         f"candidates up to index {result.max_index}: {len(result.candidates)}"
+        + (" (each named and its sites lettered in its own standard setting)" if result.candidates else "")
     ]
     import textwrap
 
