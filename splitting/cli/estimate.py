@@ -78,10 +78,11 @@ def model_options(p: argparse.ArgumentParser, prefix: str = "") -> None:
     p.add_argument("--potential", choices=list(POTENTIAL_NAMES), help=f"{prefix}exp-6 parameter set (default williams)")
     p.add_argument(
         "--charges",
-        choices=["all", "auto", "none", "quadrupole"],
-        help=f"{prefix}point charges: every atom's tight-binding charge (default), only charged units, none, or "
+        choices=["all", "auto", "none", "quadrupole", "distributed"],
+        help=f"{prefix}point charges: every atom's tight-binding charge (default), only charged units, none, "
         "quadrupole (tight-binding charges, those of a unit with a bundled measured quadrupole moment, e.g. CO2, "
-        "scaled to reproduce it)",
+        "scaled to reproduce it) or distributed (tight-binding charges, a unit with a bundled distributed-charge "
+        "model, e.g. CO2, given charges on its atoms and bond centres fitted to its quadrupole and hexadecapole)",
     )
     p.add_argument("--charge", action="append", metavar="FORMULA=Q", help=f"{prefix}total charge of a unit; repeatable")
     p.add_argument(

@@ -22,6 +22,7 @@ from .coulomb import coulomb_terms
 from .freemodes import FreeMode, free_modes, rigid_basis
 from .freeunit import FreeHessian, free_hessian
 from .potential import ParameterSet, exp6_force_constants
+from .sites import ChargeSites
 
 __all__ = ["CellModel", "build_cell_model", "dynamical_matrix", "ion_charge"]
 
@@ -76,6 +77,9 @@ class CellModel:
         ``unit index -> list of (FreeMode, vectors in the whole cell's 3n space)``.
     scaled : bool
         True when free fundamentals were scaled to the measured values.
+    sites : ChargeSites or None
+        Point charges on sites off the atoms (:mod:`splitting.dynamics.sites`); None for
+        the charges on the atoms (``charges``).
     """
 
     lattice: np.ndarray = field(repr=False)
@@ -90,6 +94,7 @@ class CellModel:
     modes: dict[int, tuple[FreeMode, ...]] = field(repr=False)
     unit_modes: dict[int, list[tuple[FreeMode, np.ndarray]]] = field(repr=False)
     scaled: bool = False
+    sites: ChargeSites | None = field(default=None, repr=False)
 
 
 def _atom_map(cell, h: int, src: np.ndarray, dst: np.ndarray) -> np.ndarray:
@@ -241,10 +246,15 @@ def dynamical_matrix(
     )
     w = np.repeat(1 / np.sqrt(model.masses), 3)
     d = model.intra.copy()
-    if use_charges and np.any(np.abs(model.charges) > 1e-6):
-        fq, gq, _ = coulomb_terms(
-            model.lattice, model.positions, model.charges, model.unit_of, cutoff=cutoff, method=coulomb
-        )
+    sites = model.sites
+    if use_charges and (sites is not None or np.any(np.abs(model.charges) > 1e-6)):
+        if sites is None:
+            pos, q, unit_of = model.positions, model.charges, model.unit_of
+        else:
+            pos, q, unit_of = sites.positions(model.positions), sites.charges, sites.unit_of
+        fq, gq, _ = coulomb_terms(model.lattice, pos, q, unit_of, cutoff=cutoff, method=coulomb)
+        if sites is not None:  # from the sites onto the atoms they follow (exact: a linear map)
+            fq, gq = sites.atom_force_constants(fq), sites.atom_gradient(gq)
         grad = grad + gq
         if isinstance(fq, np.ndarray):
             d += fq * np.outer(w, w)

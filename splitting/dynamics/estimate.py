@@ -38,7 +38,7 @@ LATTICE_RULE = 0.20
 #: uncertain by about half its size (common practice)
 INTERNAL_RULE = 0.5
 #: the point-charge choices (``EstimateOptions.charges``)
-CHARGE_CHOICES = ("all", "auto", "none", "quadrupole")
+CHARGE_CHOICES = ("all", "auto", "none", "quadrupole", "distributed")
 #: imaginary lines larger than this (cm-1) refuse the structure
 IMAGINARY_LIMIT = 3.0
 #: how the model text names each Coulomb sum
@@ -58,7 +58,10 @@ class EstimateOptions:
         Williams and Cox fitted their N and O parameters with charges), ``"auto"`` (only
         when a unit carries a net charge), ``"none"``, or ``"quadrupole"`` (as ``"all"``, with
         the charges of every unit whose measured quadrupole moment is bundled scaled to
-        reproduce it; :mod:`splitting.dynamics.quadrupole`).
+        reproduce it; :mod:`splitting.dynamics.quadrupole`), or ``"distributed"`` (as ``"all"``,
+        with a unit that has a bundled distributed-charge model, so far CO2, given charges on
+        its atoms and on sites off them fitted to its quadrupole and hexadecapole;
+        :mod:`splitting.dynamics.sites`).
     cutoff : float
         Lattice-sum cut-off (angstrom).
     scale_to_measured : bool
@@ -185,10 +188,8 @@ def estimate_atoms(
             + "; give the charge of each ion with --charge FORMULA=Q"
         )
     charged = any(abs(float(np.sum(cm.charges[cm.unit_of == k]))) > 0.5 for k in range(len(units)))
-    use_charges = mo.charges in ("all", "quadrupole") or (mo.charges == "auto" and charged)
-    scaled_charges: list[str] = []
-    if mo.charges == "quadrupole":
-        cm, scaled_charges = _with_quadrupole_charges(cm, units)
+    use_charges = mo.charges in ("all", "quadrupole", "distributed") or (mo.charges == "auto" and charged)
+    cm, scaled_charges = _with_charge_model(cm, units, mo.charges)
     relaxation = None
     if mo.relax or mo.relax_cell:
         from .relax import relax_structure
@@ -214,8 +215,7 @@ def estimate_atoms(
             scale_to_measured=mo.scale_to_measured,
             turns=turns,
         )
-        if mo.charges == "quadrupole":
-            cm, scaled_charges = _with_quadrupole_charges(cm, units)
+        cm, scaled_charges = _with_charge_model(cm, units, mo.charges)
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     perms = atom_permutations(cell, cm.positions)
     bases = species_bases(cell, factor, perms, prediction.gamma_3n)
@@ -297,14 +297,21 @@ def estimate_atoms(
     )
 
 
-def _with_quadrupole_charges(cm, units):
-    """The cell model with the charges of units of measured quadrupole scaled to it (see .quadrupole)."""
+def _with_charge_model(cm, units, choice: str):
+    """The cell model with the charges of the choice (see .quadrupole and .sites) and the text naming them."""
     import dataclasses
 
-    from .quadrupole import quadrupole_charges
+    if choice == "quadrupole":
+        from .quadrupole import quadrupole_charges
 
-    charges, texts = quadrupole_charges(cm, units)
-    return dataclasses.replace(cm, charges=charges), texts
+        charges, texts = quadrupole_charges(cm, units)
+        return dataclasses.replace(cm, charges=charges), texts
+    if choice == "distributed":
+        from .sites import distributed_sites
+
+        sites, texts = distributed_sites(cm, units)
+        return (dataclasses.replace(cm, sites=sites), texts) if texts else (cm, texts)
+    return cm, []
 
 
 def _lines(cm, blocks, alt, prediction, units) -> list[Line]:

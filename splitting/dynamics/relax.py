@@ -131,10 +131,19 @@ class Relaxation:
 
 # ----------------------------------------------------------------------------- the energy
 class _Energy:
-    """Model lattice energy per cell (eV) between rigid units: exp-6 shifted at the cut-off, plus Ewald."""
+    """Model lattice energy per cell (eV) between rigid units: exp-6 shifted at the cut-off, plus Ewald.
 
-    def __init__(self, lattice, positions, symbols, unit_of, charges, params: ParameterSet, *, cutoff, use_charges):
+    With ``sites`` (:class:`splitting.dynamics.sites.ChargeSites`) the point charges sit on
+    the sites, which follow the atoms, instead of on the atoms.
+    """
+
+    def __init__(
+        self, lattice, positions, symbols, unit_of, charges, params: ParameterSet, *, cutoff, use_charges, sites=None
+    ):
         self.unit_of = np.asarray(unit_of)
+        self.sites = sites
+        if sites is not None:
+            charges = sites.charges
         self.cutoff = float(cutoff)
         elements = sorted(set(symbols))
         self.code = np.array([elements.index(s) for s in symbols])
@@ -162,8 +171,9 @@ class _Energy:
             self.hkl = hkl[np.einsum("ij,ij->i", g, g) <= gmax**2]
             # pairs inside one unit (all of them, whatever their distance): their erf part is removed
             ia, ib = [], []
-            for u in np.unique(self.unit_of):
-                idx = np.flatnonzero(self.unit_of == u)
+            self.q_unit = self.unit_of if sites is None else np.asarray(sites.unit_of)
+            for u in np.unique(self.q_unit):
+                idx = np.flatnonzero(self.q_unit == u)
                 a_, b_ = np.triu_indices(len(idx), 1)
                 ia.append(idx[a_])
                 ib.append(idx[b_])
@@ -183,6 +193,12 @@ class _Energy:
         if self.q is None:
             return energy
         q, alpha = self.q, self.alpha
+        if self.sites is not None:  # the charges' own pairs, on the sites
+            pos = self.sites.positions(pos)
+            i, j, shift = neighbour_pairs(lattice, pos, self.cutoff)
+            inter = ~((self.q_unit[i] == self.q_unit[j]) & np.all(shift == 0, axis=1))
+            i, j, shift = i[inter], j[inter], shift[inter]
+            r = np.linalg.norm(pos[j] + shift @ lattice - pos[i], axis=1)
         energy += COULOMB * float(np.sum(q[i] * q[j] * erfc(alpha * r) / r)) / 2
         a, b = self.intra
         if len(a):
@@ -219,7 +235,16 @@ def _hump(a: float, b: float, c: float) -> float:
 
 
 def lattice_energy(
-    lattice, positions, symbols, unit_of, charges, params: ParameterSet, *, cutoff: float, use_charges: bool = True
+    lattice,
+    positions,
+    symbols,
+    unit_of,
+    charges,
+    params: ParameterSet,
+    *,
+    cutoff: float,
+    use_charges: bool = True,
+    sites=None,
 ) -> float:
     """Model lattice energy per cell (eV) between units: exp-6 (shifted to zero at the cut-off) plus Ewald.
 
@@ -234,7 +259,9 @@ def lattice_energy(
     >>> bool(-0.01 < e < 0)
     True
     """
-    fn = _Energy(lattice, positions, symbols, unit_of, charges, params, cutoff=cutoff, use_charges=use_charges)
+    fn = _Energy(
+        lattice, positions, symbols, unit_of, charges, params, cutoff=cutoff, use_charges=use_charges, sites=sites
+    )
     return fn(np.asarray(lattice, dtype=float), np.asarray(positions, dtype=float))
 
 
@@ -415,6 +442,7 @@ def relax_structure(
         params,
         cutoff=cutoff,
         use_charges=use_charges,
+        sites=model.sites,
     )
 
     def fun(x: np.ndarray) -> float:
