@@ -177,8 +177,6 @@ def distributed_sites(model, units) -> tuple[ChargeSites, list[str]]:
 
     Returns the sites and one line of text per unit formula given distributed charges.
     """
-    from .quadrupole import MEASURED
-
     charges = np.asarray(model.charges, dtype=float)
     rows: list[dict[int, float]] = []
     q: list[float] = []
@@ -186,35 +184,38 @@ def distributed_sites(model, units) -> tuple[ChargeSites, list[str]]:
     done: dict[str, str] = {}
     for k, u in enumerate(units):
         idx = np.flatnonzero(model.unit_of == k)
-        fit = _linear_fit(model, idx, charges, MEASURED.get(u.formula), HEXADECAPOLE.get(u.formula))
-        if fit is None:
-            for a in idx:
-                rows.append({int(a): 1.0})
-                q.append(float(charges[a]))
-                uo.append(k)
-            continue
-        (centre, ends), (qc, qe, qs), weight = fit
-        rows.append({centre: 1.0})
-        q.append(qc)
-        uo.append(k)
-        for e, other in (ends, ends[::-1]):
-            rows.append({e: 1.0})
-            q.append(qe)
-            # the bond site: at (r_centre + r_e) / 2 for the unit as it sits, moving as weights a, b, c
-            a = 1.0 - weight
-            b = (weight + 0.5) / 2
-            c = (weight - 0.5) / 2
-            rows.append({centre: a, e: b, other: c})
-            q.append(qs)
-            uo += [k, k]
-        theta, _ = MEASURED[u.formula]
-        phi, _ = HEXADECAPOLE[u.formula]
-        done.setdefault(
-            u.formula,
-            f"distributed charges of {u.formula} on its atoms and bond centres ({qc:+.3f}, {qe:+.3f}, {qs:+.3f} e), "
-            f"fitted to its quadrupole {theta:g} x 10^-26 esu cm^2 and hexadecapole {phi:g} x 10^-42 esu cm^4",
-        )
+        found = _linear_sites(model, idx, charges, u.formula) or _bond_sites(model, idx, charges, u.formula)
+        if found is None:
+            found = [({int(a): 1.0}, float(charges[a])) for a in idx], ""
+        sites, text = found
+        for row, charge in sites:
+            rows.append(row)
+            q.append(charge)
+            uo.append(k)
+        if text:
+            done.setdefault(u.formula, text)
     return ChargeSites.from_rows(rows, q, uo, len(charges)), list(done.values())
+
+
+def _linear_sites(model, idx, charges, formula):
+    """The five axial charges of a linear A-B2 unit with a bundled quadrupole and hexadecapole, or None."""
+    from .quadrupole import MEASURED
+
+    fit = _linear_fit(model, idx, charges, MEASURED.get(formula), HEXADECAPOLE.get(formula))
+    if fit is None:
+        return None
+    (centre, ends), (qc, qe, qs), weight = fit
+    sites = [({centre: 1.0}, qc)]
+    for e, other in (ends, ends[::-1]):
+        # the bond site: at (r_centre + r_e) / 2 for the unit as it sits, moving as weights a, b, c
+        a, b, c = 1.0 - weight, (weight + 0.5) / 2, (weight - 0.5) / 2
+        sites += [({e: 1.0}, qe), ({centre: a, e: b, other: c}, qs)]
+    text = (
+        f"distributed charges of {formula} on its atoms and bond centres ({qc:+.3f}, {qe:+.3f}, {qs:+.3f} e), "
+        f"fitted to its quadrupole {MEASURED[formula][0]:g} x 10^-26 esu cm^2 and hexadecapole "
+        f"{HEXADECAPOLE[formula][0]:g} x 10^-42 esu cm^4"
+    )
+    return sites, text
 
 
 def _linear_fit(model, idx, charges, theta, phi):
@@ -236,3 +237,39 @@ def _linear_fit(model, idx, charges, theta, phi):
     if abs(weight - 0.5) > MAX_FLUX:  # (nearly) empty bond sites cannot carry the difference
         weight = 0.5
     return (int(idx[centre]), (int(idx[ends[0]]), int(idx[ends[1]]))), (qc, qe, qs), weight
+
+
+#: bond-charge models: charges (e) on the centres of the shorter and of the longer bonds of
+#: a unit with two bond lengths, and on every atom (added to its tight-binding charge), with sources
+BOND_CHARGES: dict[str, tuple[dict[str, float], str]] = {
+    "C60": (
+        {"short": -0.35, "long": 0.175, "atom": 0.0},
+        "M. Sprik, A. Cheng and M. L. Klein, J. Phys. Chem. 96, 2027 (1992): negative charge on the "
+        "6:6 (double) bonds, balanced on the 6:5 bonds (values from memory)",
+    ),
+}
+
+
+def _bond_sites(model, idx, charges, formula):
+    """Charges on the bond centres of a unit with a bundled bond-charge model (two bond lengths), or None."""
+    if formula not in BOND_CHARGES or len(idx) < 3:
+        return None
+    values, _source = BOND_CHARGES[formula]
+    pos = model.positions[idx]
+    d = np.linalg.norm(pos[:, None] - pos[None], axis=2)
+    shortest = float(np.min(d[d > 0]))
+    a, b = np.nonzero(np.triu((d > 0) & (d < 1.25 * shortest), 1))
+    lengths = d[a, b]
+    split = (lengths.min() + lengths.max()) / 2
+    if lengths.max() - lengths.min() < 0.02:  # one bond length: the model does not apply
+        return None
+    sites = [({int(idx[k]): 1.0}, float(charges[idx[k]]) + values["atom"]) for k in range(len(idx))]
+    for i, j, r in zip(a, b, lengths, strict=True):
+        sites.append(({int(idx[i]): 0.5, int(idx[j]): 0.5}, values["short"] if r < split else values["long"]))
+    short = int(np.sum(lengths < split))
+    text = (
+        f"bond charges of {formula}: {values['short']:+.3f} e on the centres of its {short} shorter bonds, "
+        f"{values['long']:+.3f} e on its {len(lengths) - short} longer ones"
+        + (f", {values['atom']:+.3f} e on every atom" if values["atom"] else "")
+    )
+    return sites, text
