@@ -254,6 +254,12 @@ def estimate_atoms(
         warnings += warnings_of(relaxation)
     if bad:
         warnings.append(f"{len(bad)} imaginary line(s): the structure is not at a minimum of the model")
+    slight = [ln for ln in lines if ln.origin != "acoustic" and -IMAGINARY_LIMIT <= ln.wavenumber_cm1 < -ZERO_CM1]
+    if slight:
+        warnings.append(
+            f"{len(slight)} slightly imaginary line(s), down to {-min(ln.wavenumber_cm1 for ln in slight):.1f}i cm-1 "
+            "(shown as negative wavenumbers): the structure is close to, but not at, a minimum of the model"
+        )
     bands = _bands(cm, lines, units, orbits)
     rule = (
         "half the largest difference from the other parameter set(s) "
