@@ -24,7 +24,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-__all__ = ["ChargeSites", "atom_sites"]
+__all__ = ["BOND_CHARGES", "HEXADECAPOLE", "ChargeSites", "distributed_sites", "linear_site_charges"]
 
 
 @dataclass(frozen=True, eq=False)
@@ -104,19 +104,13 @@ class ChargeSites:
         return np.asarray(self.weights.T @ self.charges).ravel()
 
 
-def atom_sites(charges: np.ndarray, unit_of: np.ndarray) -> ChargeSites:
-    """The plain model: one site on every atom, with the atom's charge."""
-    n = len(charges)
-    return ChargeSites.from_rows([{a: 1.0} for a in range(n)], charges, unit_of, n)
-
-
 #: measured or published hexadecapole moments along the axis of linear units, 10^-42 esu cm^4
 #: (Buckingham's convention: for charges on the axis, Phi = sum_i q_i z_i^4), with sources
 HEXADECAPOLE: dict[str, tuple[float, str]] = {
     "CO2": (
         -4.0,
         "C. G. Gray and K. E. Gubbins, Theory of Molecular Fluids, vol. 1, Oxford (1984), appendix D "
-        "(from memory; an uncertain value, known only to some tens of per cent)",
+        "(from memory; docs/estimate.md shows how much the lines depend on it)",
     ),
 }
 
@@ -172,8 +166,10 @@ def distributed_sites(model, units) -> tuple[ChargeSites, list[str]]:
     units, stay those of the tight-binding model), while the site stays at the bond centre
     (CO2: weights 0.93 on C, 0.28 on its own O and -0.22 on the other).  Where that would
     need weights farther than :data:`MAX_FLUX` from the bond centre's (1/2, 1/2), as for
-    nearly empty sites, the site simply follows its bond.  Every other unit keeps its
-    tight-binding charges on its atoms.
+    nearly empty sites, the site simply follows its bond.  A unit with a bond-charge model
+    in :data:`BOND_CHARGES` (C60) gets charges on the centres of its bonds (weights 1/2,
+    1/2) on top of its tight-binding charges.  Every other unit keeps its tight-binding
+    charges on its atoms.
 
     Returns the sites and one line of text per unit formula given distributed charges.
     """
