@@ -21,8 +21,8 @@ to the measured quadrupole (0.77, tests/test_dynamics_quadrupole.py), and 0.80 w
 distributed charges on the atoms and bond centres fitted to the measured quadrupole and a
 published hexadecapole (``charges="distributed"``, tests/test_dynamics_sites.py; the
 hexadecapole, -4.0 x 10^-42 esu cm^4, from C. G. Gray and K. E. Gubbins, Theory of
-Molecular Fluids, vol. 1 (1984), appendix D, from memory); that is recorded as a strict
-xfail, for all three.
+Molecular Fluids, vol. 1 (1984), its table of multipole moments, from memory); that is
+recorded as a strict xfail, for all three.
 """
 
 from __future__ import annotations

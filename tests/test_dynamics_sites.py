@@ -3,7 +3,7 @@
 Measured and published values (from memory): the quadrupole moment of CO2, -4.3 x 10^-26
 esu cm^2 (A. D. Buckingham and R. L. Disch, Proc. R. Soc. A 273, 275 (1963)); its
 hexadecapole, -4.0 x 10^-42 esu cm^4 (C. G. Gray and K. E. Gubbins, Theory of Molecular
-Fluids, vol. 1 (1984), appendix D; an uncertain value); lattice modes and the nu2 splitting
+Fluids, vol. 1 (1984), its table of multipole moments; an uncertain value); lattice modes and the nu2 splitting
 of the solid as in tests/test_dynamics_reference.py.  The idea of charges off the atoms
 fitted to two moments for the lattice dynamics of solid CO2: C. S. Murthy, S. F. O'Shea and
 I. R. McDonald, Mol. Phys. 50, 531 (1983), from memory.

@@ -109,7 +109,7 @@ class ChargeSites:
 HEXADECAPOLE: dict[str, tuple[float, str]] = {
     "CO2": (
         -4.0,
-        "C. G. Gray and K. E. Gubbins, Theory of Molecular Fluids, vol. 1, Oxford (1984), appendix D "
+        "C. G. Gray and K. E. Gubbins, Theory of Molecular Fluids, vol. 1, Oxford (1984), table of multipole moments "
         "(from memory; docs/estimate.md shows how much the lines depend on it)",
     ),
 }
