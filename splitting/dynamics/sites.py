@@ -223,13 +223,17 @@ def _linear_fit(model, idx, charges, theta, phi):
     centre = int(np.argmin(d.sum(axis=1)))
     ends = [a for a in range(3) if a != centre]
     e1, e2 = pos[ends[0]] - pos[centre], pos[ends[1]] - pos[centre]
-    z = float(np.linalg.norm(e1))
-    linear = np.linalg.norm(np.cross(e1, e2)) < 1e-3 * z * z and e1 @ e2 < 0
-    if not linear or abs(np.linalg.norm(e2) - z) > 1e-3 or model.symbols[idx[ends[0]]] != model.symbols[idx[ends[1]]]:
+    z = float(np.linalg.norm(e1) + np.linalg.norm(e2)) / 2
+    # linear and symmetric to within 2 degrees and 2 % (a unit as found in a measured structure)
+    linear = np.linalg.norm(np.cross(e1, e2)) < 0.035 * z * z and e1 @ e2 < 0
+    if not linear or abs(np.linalg.norm(e2) - np.linalg.norm(e1)) > 0.02 * z:
+        return None
+    if model.symbols[idx[ends[0]]] != model.symbols[idx[ends[1]]]:
         return None
     qc, qe, qs = linear_site_charges(theta[0], phi[0], z)
     # dipole of a displacement: the end atom carries q_e + q_s (b + c) = q_tb  ->  b + c = weight
-    weight = (float(charges[idx[ends[0]]]) - qe) / qs if abs(qs) > 1e-9 else np.inf
+    q_end = float(charges[idx[ends[0]]] + charges[idx[ends[1]]]) / 2
+    weight = (q_end - qe) / qs if abs(qs) > 1e-9 else np.inf
     if abs(weight - 0.5) > MAX_FLUX:  # (nearly) empty bond sites cannot carry the difference
         weight = 0.5
     return (int(idx[centre]), (int(idx[ends[0]]), int(idx[ends[1]]))), (qc, qe, qs), weight
