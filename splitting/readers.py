@@ -52,10 +52,10 @@ def check_cell_parameters(params: Sequence[float], where: str) -> None:
             raise InputError(f"{where}: cell {kind} {name} is {v}, not a finite number")
         if kind == "length":
             if v <= 0:
-                raise InputError(f"{where}: cell length {name} is {v:g} A; a cell length must be positive")
+                raise InputError(f"{where}: cell length {name} is {v:g} Å; a cell length must be positive")
             if v < MIN_CELL_LENGTH or v > MAX_CELL_LENGTH:
                 raise InputError(
-                    f"{where}: cell length {name} is {v:g} A, outside {MIN_CELL_LENGTH:g}-{MAX_CELL_LENGTH:g} A; "
+                    f"{where}: cell length {name} is {v:g} Å, outside {MIN_CELL_LENGTH:g}-{MAX_CELL_LENGTH:g} Å; "
                     "not the cell of a crystal"
                 )
         elif not 0 < v < 180:
@@ -81,7 +81,7 @@ def check_atoms(atoms, where: str) -> None:
         )
     if len(pos) and np.abs(pos).max() > MAX_COORDINATE:
         i = int(np.argmax(np.abs(pos).max(axis=1)))
-        raise InputError(f"{where}: atom {i + 1} ({atoms[i].symbol}) lies {np.abs(pos[i]).max():g} A from the origin")
+        raise InputError(f"{where}: atom {i + 1} ({atoms[i].symbol}) lies {np.abs(pos[i]).max():g} Å from the origin")
     if any(atoms.pbc):
         cell = np.asarray(atoms.cell[:], dtype=float)
         if not np.isfinite(cell).all():

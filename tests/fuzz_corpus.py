@@ -54,12 +54,117 @@ class Case:
     argv: tuple[str, ...]
     files: dict[str, bytes] = field(default_factory=dict)
     output: str | None = None  # an output file the command must write whole or not at all
+    stdout: str = "pipe"  # "pipe", "full" (/dev/full) or "closed": where standard output goes
 
     def materialise(self, folder: Path) -> list[str]:
         """Write the case's files into ``folder`` and return the command line with paths filled in."""
+        import os
+
         for name, data in self.files.items():
-            (folder / name).write_bytes(data)
+            if data == FIFO:
+                os.mkfifo(folder / name)
+            else:
+                (folder / name).write_bytes(data)
         return [a.replace("{dir}", str(folder)) for a in self.argv]
+
+
+#: the content of a file that is to be made a FIFO (named pipe) instead
+FIFO = b"<fifo>"
+
+#: words of Python and of the libraries underneath that must never reach a message: the user is told
+#: what is wrong with which input in the terms of the input, not in the terms of a library
+LIBRARY_PHRASES = (
+    "Traceback",
+    "could not convert string to float",
+    "invalid literal for int()",
+    "Error:",  # "ValueError: ...", "AssertionError: ..."
+    "Error)",
+    "Error(",
+    "(AssertionError",
+    "Expected '=' after a key",
+    "Invalid value (at line",
+    "Invalid statement",
+    "Illegal character",
+    "Unclosed array",
+    "Cannot declare",
+    "Cannot overwrite a value",
+    "Unterminated string",
+    "Invalid initial character",
+    "(at line ",  # tomllib's position suffix
+    "codec can't",
+    "invalid start byte",
+    "invalid continuation byte",
+    "unexpected end of data",
+    "list index out of range",
+    "index out of range",
+    "out of bounds for axis",
+    "NoneType",
+    "object has no attribute",
+    "unsupported operand",
+    "not enough values to unpack",
+    "too many values to unpack",
+    "unhashable type",
+    "SVD did not converge",
+    "could not broadcast",
+    "operands could not be broadcast",
+    "maximum recursion depth",
+    "positional argument",
+    "unexpected keyword argument",
+    "[Errno",
+    "SCF not converged",
+    "spglib",
+    "gemmi",
+    "tblite",
+    "tomllib",
+    "pyarrow",
+    "numpy",
+    "ase.io",
+    "dask",
+    "Parquet magic bytes",
+    "Spacegroup search failed",
+    "too close distance",
+    "internal error",
+)
+#: unit spellings that are not the trade's (Å and cm-1 in plain text)
+UNIT_SPELLINGS = re.compile(r"(?:\d|\bat most|\babove) A\b(?![-=])|angstrom|Angstrom|cm\^-1|cm\*\*-1|\b1/cm\b|cm⁻¹")
+
+#: what a run can end in, from worst to best (the benchmark counts each)
+OUTCOMES = (
+    "hang",
+    "traceback",
+    "internal error",
+    "not one line",
+    "partial file",
+    "raw text",
+    "unit spelling",
+    "clean error",
+    "ok",
+)
+
+
+def judge(case: Case, code: int, out: str, err: str, folder: Path) -> str:
+    """The outcome of one finished run of ``case`` (one of :data:`OUTCOMES` but ``hang``)."""
+    from splitting.errors import EXIT_CODES
+
+    if "Traceback" in err:
+        return "traceback"
+    if code not in EXIT_CODES or code == 70:
+        return "internal error"
+    lines = err.splitlines()
+    if code != 0 and not (len(lines) == 1 and err.startswith("error: ") and err.endswith("\n")):
+        return "not one line"
+    if code != 0 and out:
+        return "not one line"  # an error with output on standard output besides
+    if case.stdout != "pipe" and code != 6:
+        return "not one line"  # the output was lost: that must be said (exit 6), not passed over
+    leftovers = [p for p in folder.rglob("*") if p.name.endswith(".part") or ".tmp" in p.name]
+    if leftovers or (case.output and code != 0 and (folder / case.output).exists()):
+        return "partial file"
+    if any(phrase in err for phrase in LIBRARY_PHRASES):
+        return "raw text"
+    if UNIT_SPELLINGS.search(err) or re.search(r"angstrom|cm\^-1", out, flags=re.I):
+        return "unit spelling"
+    return "ok" if code == 0 else "clean error"
 
 
 def mutate_text(text: str, rng: random.Random) -> str:
@@ -147,9 +252,67 @@ def _option_case(k: int, rng: random.Random) -> Case:
 
 _KINDS = (_structure_case, _structure_case, _peaks_case, _spectrum_case, _table_case, _option_case)
 
+#: random cases in the whole corpus (besides the systematic families of tests/fuzz_variants.py)
+RANDOM_CASES = 240
+
 
 def corpus(size: int = 1200, *, seed: int = 10) -> Iterator[Case]:
-    """``size`` generated cases, the same for the same seed."""
+    """``size`` randomly damaged cases, the same for the same seed."""
     for k in range(size):
         rng = random.Random(seed * 1_000_003 + k)
         yield _KINDS[k % len(_KINDS)](k, rng)
+
+
+def whole_corpus(*, seed: int = 10) -> list[Case]:
+    """The whole corpus: every systematic variant, then :data:`RANDOM_CASES` random ones."""
+    from fuzz_variants import variants
+
+    return [*variants(), *corpus(RANDOM_CASES, seed=seed)]
+
+
+def spread_slice(cases: list[Case], size: int) -> list[Case]:
+    """``size`` cases spread evenly over ``cases`` (so every family is sampled)."""
+    if size >= len(cases):
+        return list(cases)
+    return [cases[round(k * (len(cases) - 1) / (size - 1))] for k in range(size)]
+
+
+def run_process(case: Case, folder: Path, *, timeout: float, code_root: Path = ROOT) -> tuple[int, str, str] | None:
+    """Run ``case`` as a separate process in its own session; ``None`` when it ran out of time.
+
+    A case that runs out of time is killed with every process it started (its session's
+    process group). ``code_root`` is the checkout whose ``splitting`` is run.
+    """
+    import os
+    import signal
+    import subprocess
+    import sys
+
+    argv = case.materialise(folder)
+    command = [sys.executable, "-m", "splitting", *argv]
+    if case.stdout == "closed":
+        command = ["sh", "-c", 'exec "$@" >&-', "sh", *command]
+    env = {**os.environ, "PYTHONPATH": str(code_root)}
+    env.pop("SPLITTING_DEBUG", None)
+    full = open("/dev/full", "w") if case.stdout == "full" else None
+    try:
+        proc = subprocess.Popen(
+            command,
+            stdin=subprocess.DEVNULL,
+            stdout=full if full is not None else subprocess.PIPE,
+            stderr=subprocess.PIPE,
+            cwd=folder,
+            env=env,
+            start_new_session=True,
+        )
+        try:
+            out, err = proc.communicate(timeout=timeout)
+        except subprocess.TimeoutExpired:
+            os.killpg(proc.pid, signal.SIGKILL)
+            proc.communicate()
+            return None
+    finally:
+        if full is not None:
+            full.close()
+    decode = lambda b: (b or b"").decode("utf-8", errors="replace")  # noqa: E731
+    return proc.returncode, decode(out), decode(err)

@@ -206,3 +206,52 @@ def test_failing_standard_output_in_process(exc: OSError, code: int, monkeypatch
     assert main(["group", "Oh"]) == code
     err = capsys.readouterr().err
     assert err == "" if code == 0 else err.startswith("error: cannot write to standard output") and err.count("\n") == 1
+
+
+@pytest.mark.parametrize(
+    ("argv", "says"),
+    [
+        (
+            ["predict", "--foo", str(CALCITE)],
+            "error: predict: unrecognized arguments: --foo (see 'splitting predict --help')",
+        ),
+        (["group", "D4h", "extra"], "error: group: unrecognized arguments: extra (see 'splitting group --help')"),
+        (["predict", "--tolerance", "abc", "x.cif"], "error: predict: --tolerance: 'abc' is not a number"),
+        (["group"], "error: group: the following arguments are required: symbol (see 'splitting group --help')"),
+        (["frobnicate"], "error: COMMAND: invalid choice: 'frobnicate'"),
+    ],
+)
+def test_R31_usage_errors_name_the_command_and_where_help_is(argv, says: str, run_cli) -> None:
+    err = _one_error_line(*run_cli(argv))
+    assert err.startswith(says), err
+    assert err.rstrip().endswith("--help')"), err
+
+
+def test_usage_errors_give_lengths_in_angstrom(run_cli) -> None:
+    err = _one_error_line(*run_cli(["predict", str(CALCITE), "--tolerance", "9"]))
+    assert "at most 0.5 Å" in err and " A " not in err
+    err = _one_error_line(*run_cli(["estimate", str(CALCITE), "--cutoff", "0"]))
+    assert "Å (the lattice-sum cut-off)" in err
+
+
+@pytest.mark.skipif(not Path("/dev/full").exists(), reason="needs /dev/full")
+@pytest.mark.parametrize("argv", [["--version"], ["--help"], ["predict", "--help"]])
+def test_R23_version_and_help_on_dev_full(argv: list[str]) -> None:
+    """--version and --help print before any command runs: a full stdout is still one line, exit 6."""
+    with open("/dev/full", "w") as full:
+        proc = subprocess.run(
+            [sys.executable, "-m", "splitting", *argv], stdout=full, stderr=subprocess.PIPE, text=True
+        )
+    assert proc.returncode == 6, proc.stderr
+    assert proc.stderr == "error: cannot write to standard output: no space left on the device\n"
+
+
+@pytest.mark.parametrize("argv", [["--version"], ["group", "Oh"], ["predict", str(CALCITE)]])
+def test_closed_standard_output_is_one_line(argv: list[str]) -> None:
+    proc = subprocess.run(
+        ["sh", "-c", 'exec "$@" >&-', "sh", sys.executable, "-m", "splitting", *argv],
+        stderr=subprocess.PIPE,
+        text=True,
+    )
+    assert proc.returncode == 6, proc.stderr
+    assert proc.stderr.startswith("error: cannot write to standard output") and proc.stderr.count("\n") == 1

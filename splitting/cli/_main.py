@@ -94,12 +94,16 @@ class _GuardedStdout:
         return getattr(self._stream, name)
 
     def write(self, text: str) -> int:
+        if self._stream is None:  # started with standard output closed (``command >&-``)
+            raise OutputError("cannot write to standard output: it is closed")
         try:
             return self._stream.write(text)
         except OSError as exc:
             raise self._failed(exc) from None
 
     def flush(self) -> None:
+        if self._stream is None:
+            return
         try:
             self._stream.flush()
         except OSError as exc:

@@ -83,15 +83,15 @@ def crystal_options(p: argparse.ArgumentParser) -> None:
     """Options of every command that reads a crystal: tolerances, units, bonds, size limit."""
     p.add_argument(
         "--tolerance",
-        type=number(low=0, high=MAX_CELL_TOLERANCE, unit="A"),
+        type=number(low=0, high=MAX_CELL_TOLERANCE, unit="Å"),
         default=DEFAULT_CELL_TOLERANCE,
-        help=f"space-group distance tolerance, angstrom (default {DEFAULT_CELL_TOLERANCE})",
+        help=f"space-group distance tolerance, Å (default {DEFAULT_CELL_TOLERANCE})",
     )
     p.add_argument(
         "--unit-tolerance",
-        type=number(low=0, high=MAX_UNIT_TOLERANCE, unit="A"),
+        type=number(low=0, high=MAX_UNIT_TOLERANCE, unit="Å"),
         default=DEFAULT_TOLERANCE,
-        help=f"free-unit symmetry tolerance, angstrom (default {DEFAULT_TOLERANCE})",
+        help=f"free-unit symmetry tolerance, Å (default {DEFAULT_TOLERANCE})",
     )
     p.add_argument(
         "--free-group",
@@ -109,7 +109,7 @@ def crystal_options(p: argparse.ArgumentParser) -> None:
         "--bond",
         action="append",
         metavar="A-B=DIST",
-        help="largest A-B bond length in angstrom (0 forbids the bond); repeatable",
+        help="largest A-B bond length in Å (0 forbids the bond); repeatable",
     )
     p.add_argument(
         "--bond-scale",

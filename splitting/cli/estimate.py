@@ -93,8 +93,8 @@ def model_options(p: argparse.ArgumentParser, prefix: str = "") -> None:
     )
     p.add_argument(
         "--cutoff",
-        type=number(low=0, high=MAX_CUTOFF, unit="A (the lattice-sum cut-off)"),
-        help=f"{prefix}lattice-sum cut-off, angstrom (default {DEFAULT_CUTOFF})",
+        type=number(low=0, high=MAX_CUTOFF, unit="Å (the lattice-sum cut-off)"),
+        help=f"{prefix}lattice-sum cut-off, Å (default {DEFAULT_CUTOFF})",
     )
     p.add_argument(
         "--scale-to-measured",

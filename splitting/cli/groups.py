@@ -114,9 +114,9 @@ def add_parsers(sub: argparse._SubParsersAction) -> None:
     m.add_argument("file", help="structure file (XYZ, or any format ase reads)")
     m.add_argument(
         "--tolerance",
-        type=number(low=0, high=MAX_UNIT_TOLERANCE, unit="A"),
+        type=number(low=0, high=MAX_UNIT_TOLERANCE, unit="Å"),
         default=DEFAULT_TOLERANCE,
-        help=f"largest displacement of an atom from its symmetric position, angstrom (default {DEFAULT_TOLERANCE})",
+        help=f"largest displacement of an atom from its symmetric position, Å (default {DEFAULT_TOLERANCE})",
     )
     m.add_argument("--point-group", metavar="NAME", help="use this subgroup of the detected group")
     input_limit_option(m)

@@ -99,8 +99,8 @@ def reduce_cell(lattice: np.ndarray, *, minimum: float = MIN_HEIGHT) -> tuple[np
 def _flat_message(lengths: np.ndarray, volume: float, minimum: float) -> str:
     edges = ", ".join(f"{x:.4g}" for x in lengths)
     return (
-        f"the cell is flat or degenerate (edges {edges} A, volume {volume:.3g} A^3): some lattice "
-        f"translation is shorter than {minimum:g} A, so atoms would overlap their own periodic images; "
+        f"the cell is flat or degenerate (edges {edges} Å, volume {volume:.3g} Å^3): some lattice "
+        f"translation is shorter than {minimum:g} Å, so atoms would overlap their own periodic images; "
         "check the cell lengths and angles"
     )
 
@@ -135,7 +135,7 @@ def periodic_pairs(
     from scipy.spatial import cKDTree
 
     if not (np.isfinite(cutoff) and cutoff > 0):
-        raise InputError(f"the neighbour cut-off {cutoff!r} A must be a positive finite distance")
+        raise InputError(f"the neighbour cut-off {cutoff!r} Å must be a positive finite distance")
     lat = np.asarray(lattice, dtype=float)
     frac = np.asarray(frac, dtype=float).reshape(-1, 3)
     n = len(frac)
@@ -144,7 +144,7 @@ def periodic_pairs(
     expected = n * n / volume * 4.0 / 3.0 * np.pi * cutoff**3
     if expected > max_pairs:
         raise InputError(
-            f"a neighbour search to {cutoff:g} A in this cell ({n} atoms) would give about {expected:.3g} pairs; "
+            f"a neighbour search to {cutoff:g} Å in this cell ({n} atoms) would give about {expected:.3g} pairs; "
             "the bond cut-offs are too long"
         )
     empty = np.zeros(0, dtype=np.int64)

@@ -285,10 +285,10 @@ def _warnings(cell: CellSymmetry, units: tuple[Unit, ...]) -> list[str]:
     out = []
     info = cell.info
     if info.tolerance_sensitive:
-        alts = ", ".join(f"{s} (No. {n}) at {t:g} A" for t, n, s in info.other_tolerances if n != info.number)
+        alts = ", ".join(f"{s} (No. {n}) at {t:g} Å" for t, n, s in info.other_tolerances if n != info.number)
         out.append(
             f"the space group depends on the tolerance: {info.symbol} (No. {info.number}) at "
-            f"{info.tolerance:g} A, but {alts}"
+            f"{info.tolerance:g} Å, but {alts}"
         )
     symbols = {s for u in units for s in u.symbols}
     if "H" not in symbols:
@@ -385,7 +385,7 @@ def _predict(
             if classes is None:
                 raise SymmetryError(
                     f"unit {u0.formula}: the site group {site.name} is not a subgroup of the free group "
-                    f"{free.name} as found (unit tolerance {opts.unit_tolerance} A); "
+                    f"{free.name} as found (unit tolerance {opts.unit_tolerance} Å); "
                     "increase --unit-tolerance or name the free group"
                 )
             if info.linear:

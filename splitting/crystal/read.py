@@ -33,7 +33,7 @@ def check_overlaps(atoms, *, minimum: float = 0.5) -> None:
         k = int(np.argmin(d))
         raise InputError(
             f"atoms {i[k] + 1} ({atoms[i[k]].symbol}) and {j[k] + 1} ({atoms[j[k]].symbol}) overlap "
-            f"({d[k]:.3f} A apart); the file may hold several orientations of a disordered unit"
+            f"({d[k]:.3f} Å apart); the file may hold several orientations of a disordered unit"
         )
 
 

@@ -94,7 +94,7 @@ def parse_cutoffs(items: list[str] | None) -> dict[tuple[str, str], float]:
             a, b = (x.strip() for x in pair.split("-"))
             distance = float(value)
         except ValueError:
-            raise InputError(f"bond cut-off {item!r} is not of the form A-B=distance (angstrom)") from None
+            raise InputError(f"bond cut-off {item!r} is not of the form A-B=distance in Å") from None
         unknown = [x for x in (a, b) if x not in chemical_symbols[1:]]
         if unknown:
             raise InputError(f"bond cut-off {item!r}: {', '.join(unknown)} is not an element symbol")
@@ -122,7 +122,7 @@ def check_bond_options(scale: float, cutoffs: dict[tuple[str, str], float] | Non
         if not (np.isfinite(distance) and 0 <= distance <= MAX_BOND_LENGTH):
             raise InputError(
                 f"bond cut-off {a}-{b}={distance:g} is out of range: give a distance from 0 (no bond) "
-                f"to {MAX_BOND_LENGTH:g} A"
+                f"to {MAX_BOND_LENGTH:g} Å"
             )
 
 

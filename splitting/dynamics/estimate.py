@@ -273,7 +273,7 @@ def estimate_atoms(
     model_text = (
         f"model: harmonic k = 0 lattice dynamics; free units {METHOD} (tblite)"
         + (" scaled to measured gas-phase fundamentals" if mo.scale_to_measured else "")
-        + f"; exp-6 set {params.name!r}, {mo.cutoff:g} A cut-off"
+        + f"; exp-6 set {params.name!r}, {mo.cutoff:g} Å cut-off"
         + (_COULOMB_TEXT[mo.coulomb] if use_charges else "")
         + "".join(f"; {text}" for text in scaled_charges)
         + (

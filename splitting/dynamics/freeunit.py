@@ -168,7 +168,7 @@ def _relax(engine: _Engine, start: np.ndarray, sym: MoleculeSymmetry, progress: 
     worst = float(np.max(np.abs(symmetrise(g))))
     if worst > 10 * GRADIENT_TOLERANCE:
         raise InputError(
-            f"unit {engine.formula}: relaxation of the free unit stopped with a gradient of {worst:.2g} eV/A; "
+            f"unit {engine.formula}: relaxation of the free unit stopped with a gradient of {worst:.2g} eV/Å; "
             "check its geometry and charge"
         )
     if progress:

@@ -109,7 +109,7 @@ class Relaxation:
             lengths = "/".join(f"{x:+.2f}" for x in self.length_change_percent)
             text += f", cell lengths {lengths} %, volume {self.volume_change_percent:+.2f} %"
         return text + (
-            f", largest turn {self.largest_turn_degrees:.2f} deg, largest shift {self.largest_shift_angstrom:.3f} A"
+            f", largest turn {self.largest_turn_degrees:.2f} deg, largest shift {self.largest_shift_angstrom:.3f} Å"
         )
 
     def to_dict(self) -> dict[str, object]:
@@ -560,7 +560,7 @@ def warnings_of(relaxation: Relaxation) -> list[str]:
         )
     if relaxation.largest_shift_angstrom > WARN_SHIFT:
         out.append(
-            f"a unit moved by {relaxation.largest_shift_angstrom:.2f} A in the relaxation: the model's minimum "
+            f"a unit moved by {relaxation.largest_shift_angstrom:.2f} Å in the relaxation: the model's minimum "
             "is far from the measured structure"
         )
     return out

@@ -194,7 +194,7 @@ def _with_group(sym: MoleculeSymmetry, name: str) -> MoleculeSymmetry:
     except SymmetryError:
         raise InputError(
             f"{canon} is not a subgroup of the unit's group {sym.group.name} "
-            f"(tolerance {sym.tolerance} A); a larger tolerance may find more symmetry"
+            f"(tolerance {sym.tolerance} Å); a larger tolerance may find more symmetry"
         ) from None
     pref = molecular_preference(sym.symmetric_positions)
     best = None

@@ -129,7 +129,7 @@ def _validate(numbers: np.ndarray, positions: np.ndarray) -> None:
     d, _ = cKDTree(positions).query(positions, k=2)
     if np.min(d[:, 1]) < MIN_SEPARATION:
         i = int(np.argmin(d[:, 1]))
-        raise InputError(f"atoms overlap: atom {i + 1} has a neighbour {d[i, 1]:.3f} A away")
+        raise InputError(f"atoms overlap: atom {i + 1} has a neighbour {d[i, 1]:.3f} Å away")
 
 
 def find_symmetry(numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE, masses=None) -> MoleculeSymmetry:
@@ -155,8 +155,8 @@ def find_symmetry(numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE, m
     """
     if not (np.isfinite(tolerance) and 0 < tolerance <= MAX_UNIT_TOLERANCE):
         raise InputError(
-            f"the symmetry tolerance {tolerance:g} A is out of range: give a distance above 0 and at most "
-            f"{MAX_UNIT_TOLERANCE:g} A (beyond it any molecule looks more symmetric than it is)"
+            f"the symmetry tolerance {tolerance:g} Å is out of range: give a distance above 0 and at most "
+            f"{MAX_UNIT_TOLERANCE:g} Å (beyond it any molecule looks more symmetric than it is)"
         )
     numbers = np.asarray(numbers, dtype=int)
     pos_in = np.asarray(positions, dtype=float).reshape(-1, 3)
@@ -179,7 +179,7 @@ def find_symmetry(numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE, m
     dev = float(np.max(np.linalg.norm(sym - pos, axis=1)))
     if dev > tolerance:
         raise SymmetryError(
-            f"symmetrising moved an atom by {dev:.3f} A, more than the tolerance {tolerance} A; use a smaller tolerance"
+            f"symmetrising moved an atom by {dev:.3f} Å, more than the tolerance {tolerance} Å; use a smaller tolerance"
         )
     og = identify(ops, prefer=molecular_preference(sym, tol=max(0.05, min(tolerance, 0.2))), tol=1e-4)
     aligned = og.operations

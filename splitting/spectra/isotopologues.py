@@ -182,7 +182,7 @@ def _permutations(ops: np.ndarray, pos: np.ndarray, numbers: np.ndarray, tol: fl
         d = np.linalg.norm(moved[:, None, :] - pos[None, :, :], axis=2)
         j = np.argmin(d, axis=1)
         if np.max(d[np.arange(len(pos)), j]) > tol or np.any(numbers[j] != numbers) or len(set(j.tolist())) != len(j):
-            raise InputError(f"operation {g} of the given group does not map the unit onto itself within {tol} A")
+            raise InputError(f"operation {g} of the given group does not map the unit onto itself within {tol} Å")
         perms[g] = j
     return perms
 
