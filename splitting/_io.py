@@ -63,7 +63,13 @@ def _os_reason(exc: OSError) -> str:
         return "too many levels of symbolic links"
     if exc.errno == errno.ENOTDIR:
         return "a part of the path is not a folder"
-    return exc.strerror or type(exc).__name__
+    if exc.errno == errno.ENOENT:
+        return "no such file or folder (or the folder takes no new files)"
+    if exc.errno == errno.EROFS:
+        return "the file system is read-only"
+    if exc.strerror:
+        return exc.strerror[:1].lower() + exc.strerror[1:]
+    return "the operating system refused it"
 
 
 def check_input_file(path: str | os.PathLike[str], *, what: str = "file") -> Path:
@@ -275,10 +281,6 @@ def atomic_write_text(path: str | os.PathLike[str], text: str) -> Path:
 def read_text(path: str | os.PathLike[str]) -> str:
     """Read a UTF-8 text file, turning the usual failures into :class:`InputError`."""
     p = Path(path)
-    data = read_input_bytes(p)
-    if b"\0" in data[:65536]:
-        raise InputError(f"{p}: a binary file, not text")
-    try:
-        return data.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        raise InputError(f"{p}: not a UTF-8 text file ({exc.reason} at byte {exc.start})") from None
+    from ._reasons import decode_text
+
+    return decode_text(read_input_bytes(p), str(p))

@@ -142,10 +142,15 @@ def _operations(block, where: str) -> tuple[np.ndarray, np.ndarray, str]:
         col = block.find_values(tag)
         if len(col):
             triplets = [gemmi.cif.as_string(v) for v in col]
-            try:
-                ops = [gemmi.Op(t) for t in triplets]
-            except (RuntimeError, ValueError) as exc:
-                raise InputError(f"{where}: {tag}: a symmetry operation cannot be read ({exc})") from None
+            ops = []
+            for t in triplets:
+                try:
+                    ops.append(gemmi.Op(t))
+                except (RuntimeError, ValueError):
+                    raise InputError(
+                        f"{where}: {tag}: the symmetry operation {t!r} cannot be read; write it as x,y,z triplets "
+                        "such as '-x+1/2,y,-z'"
+                    ) from None
             break
     if ops is None:
         hall = first("_space_group_name_Hall", "_symmetry_space_group_name_Hall")
@@ -163,8 +168,11 @@ def _operations(block, where: str) -> tuple[np.ndarray, np.ndarray, str]:
                 if sg is None:
                     raise InputError(f"{where}: unknown space-group number {number!r}")
                 ops = list(sg.operations())
-        except (RuntimeError, ValueError) as exc:
-            raise InputError(f"{where}: the space group cannot be read ({exc})") from None
+        except (RuntimeError, ValueError):
+            raise InputError(
+                f"{where}: the space group cannot be read from its name {name!r} or number {number!r}; "
+                "give the symmetry operations (_space_group_symop_operation_xyz)"
+            ) from None
     if not ops:
         ops = [gemmi.Op("x,y,z")]  # no symmetry given: the sites are the whole cell (P1)
     rot = np.array([op.rot for op in ops], dtype=float) / gemmi.Op.DEN
@@ -301,14 +309,7 @@ def read_cif(path: str | Path, text: str | None = None):
     try:
         doc = gemmi.cif.read_string(text) if text is not None else gemmi.cif.read(str(path))
     except (RuntimeError, ValueError) as exc:
-        text_ = str(exc).strip().splitlines()[0] if str(exc).strip() else "syntax error"
-        m = re.search(r":(\d+):\d+(?:\(\d+\))?: (.*)$", text_)
-        msg = f"line {m.group(1)}: {m.group(2)}" if m else text_
-        if "Wrong number of values in loop" in msg:
-            msg = (
-                msg.replace("Wrong number of values in loop", "a row of the table") + " has a value too many or too few"
-            )
-        raise InputError(f"{where}: not a readable CIF ({msg})") from None
+        raise InputError(f"{where}: not a readable CIF ({_syntax_reason(exc)})") from None
     block = _block(doc, where)
     sites = _sites(block, where)
     a, b, c, alpha, beta, gamma = _cell(block, where)
@@ -349,3 +350,27 @@ def read_cif(path: str | Path, text: str | None = None):
     atoms.info["occupancy"] = table
     atoms.info["site_labels"] = [s.label for s in sites]
     return atoms
+
+
+#: the CIF parser's complaints (a pattern of its message) and what they mean for the file
+_SYNTAX = (
+    (re.compile(r"Wrong number of values in loop"), "a row of a table (loop_) has a value too many or too few"),
+    (re.compile(r"unterminated 'string'"), "a quoted value has no closing quote"),
+    (re.compile(r"unterminated text field"), "a text field opened with ';' is not closed"),
+    (re.compile(r"duplicate block name: (\S+)"), "two data blocks are named {0}"),
+    (re.compile(r"duplicate tag (\S+)"), "the tag {0} is given twice"),
+    (re.compile(r"(_\S+) has no value"), "the tag {0} has no value"),
+    (re.compile(r"expected block header"), "no data_ block starts the file"),
+)
+
+
+def _syntax_reason(exc: BaseException) -> str:
+    """Where and how the text of a CIF breaks the syntax, from the parser's exception (never its words)."""
+    text = " ".join(str(exc).split())
+    m = re.search(r"^\S*?:(\d+)[: ]", text)
+    where = f"line {m.group(1)}: " if m else ""
+    for pattern, words in _SYNTAX:
+        found = pattern.search(text)
+        if found:
+            return where + words.format(*found.groups())
+    return where + "the text does not follow the CIF syntax"

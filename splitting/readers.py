@@ -18,6 +18,7 @@ from pathlib import Path
 import numpy as np
 
 from ._io import read_input_bytes
+from ._reasons import decode_text
 from .errors import InputError
 
 __all__ = ["check_atoms", "check_cell_parameters", "read_atoms"]
@@ -117,7 +118,35 @@ def _xyz_counts(data: bytes, where: str) -> None:
             raise InputError(
                 f"{where}: line {pos + 1} says {n} atoms, but the file has only {n_lines - pos - 2} lines after it"
             )
+        expected, columns = _xyz_columns(lines[pos + 1] if pos + 1 < n_lines else b"")
+        for k in range(pos + 2, pos + 2 + n):
+            got = len(lines[k].split())
+            if got != expected:
+                raise InputError(
+                    f"{where}, line {k + 1}: {got} value{'s' if got != 1 else ''} where an atom row holds {expected} "
+                    f"({columns}); a value is missing or one too many"
+                )
         pos += 2 + n
+
+
+_PROPERTIES = re.compile(rb"""(?i)\bproperties=(?:"([^"]*)"|'([^']*)'|(\S+))""")
+
+
+def _xyz_columns(comment: bytes) -> tuple[int, str]:
+    """How many values an atom row holds, and what they are, from an (extended) XYZ comment line."""
+    m = _PROPERTIES.search(comment)
+    if m is None:
+        return 4, "element, x, y, z"
+    spec = (m.group(1) or m.group(2) or m.group(3)).decode(errors="replace").split(":")
+    try:
+        fields = [(spec[i], int(spec[i + 2])) for i in range(0, len(spec) - 2, 3)]
+    except ValueError:
+        return 4, "element, x, y, z"
+    if not fields or len(spec) % 3:
+        return 4, "element, x, y, z"
+    known = {("species", 1): "element", ("pos", 3): "x, y, z"}
+    words = [known.get((name, k)) or (f"{name} ({k} values)" if k > 1 else name) for name, k in fields]
+    return sum(k for _, k in fields), ", ".join(words)
 
 
 def _is_cif(name: str, format: str | None) -> bool:
@@ -152,8 +181,10 @@ def read_atoms(path: str | os.PathLike[str], *, format: str | None = None, cif_r
     if _is_cif(name, format) and cif_reader == "gemmi":
         from .cif import read_cif
 
-        atoms = read_cif(p, text=data.decode("utf-8", errors="replace"))
+        atoms = read_cif(p, text=decode_text(data, str(p), lenient=True))
     else:
+        if not name.lower().endswith(_BINARY_FORMATS):
+            decode_text(data, str(p))  # ase would stop with a decoding error of its own
         if (format or "").endswith("xyz") or (format is None and name.lower().endswith((".xyz", ".extxyz"))):
             _xyz_counts(data, str(p))
         atoms = _read_ase(p, name, data, format)
@@ -161,6 +192,10 @@ def read_atoms(path: str | os.PathLike[str], *, format: str | None = None, cif_r
         raise InputError(f"{p}: the structure has no atoms")
     check_atoms(atoms, str(p))
     return atoms
+
+
+#: suffixes of binary structure formats ase reads (every other structure file must be UTF-8 text)
+_BINARY_FORMATS = (".traj", ".bundle", ".nc", ".db", ".gpw", ".pckl", ".npz", ".h5", ".hdf5")
 
 
 def _read_ase(p: Path, name: str, data: bytes, format: str | None):
@@ -191,14 +226,7 @@ def _read_ase(p: Path, name: str, data: bytes, format: str | None):
 
 
 def _plain(exc: Exception) -> str:
-    """The first line of a reader's message, without Python's wording for a failed conversion."""
-    text = str(exc).strip().splitlines()[0] if str(exc).strip() else ""
-    m = re.match(r"could not convert string to float: (.*)", text)
-    if m:
-        return f"{m.group(1)} is not a number"
-    m = re.match(r"invalid literal for int\(\) with base 10: (.*)", text)
-    if m:
-        return f"{m.group(1)} is not a whole number"
-    if not text or isinstance(exc, (AssertionError, IndexError, KeyError)):
-        return "the file does not follow the format"
-    return text
+    """What a reader's failure says about the file, in the file's terms (never the reader's words)."""
+    from ._reasons import reason
+
+    return reason(exc, "the file does not follow the format")

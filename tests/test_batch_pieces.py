@@ -90,5 +90,6 @@ def test_half_written_part_is_not_committed(tmp_path: Path) -> None:
 def test_read_metadata_of_other_files(tmp_path: Path) -> None:
     other = tmp_path / "x.parquet"
     other.write_text("not parquet")
-    with pytest.raises(InputError, match="cannot be read as a Parquet file"):
+    with pytest.raises(InputError, match=r"not a Parquet file that 'splitting screen' wrote") as caught:
         read_metadata(other)
+    assert "magic" not in str(caught.value) and str(other) in str(caught.value)

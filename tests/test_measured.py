@@ -321,13 +321,13 @@ def test_jcamp_technique_conflict_and_absent(tmp_path: Path) -> None:
         (
             # NPOINTS says 3 but 4 values follow: the jcamp package reports it
             _jcamp("1/CM", body="##XYDATA=(X++(Y..Y))\n500 1 2 3 4\n"),
-            "fail their checks: Mismatch of array lengths",
+            "fail their checks: the data give 3 x values but 4 y values",
         ),
         (
             # FIRSTX 500, LASTX 700, NPOINTS 3: step 100, so the second line
             # (after two values) must start at x = 700, not 900
             _jcamp("1/CM", body="##XYDATA=(X++(Y..Y))\n500 1 2\n900 3\n"),
-            "X-Check failed",
+            "a data line starts at x = 900, but the lines before it lead to x = 700",
         ),
         ("", "file is empty"),
         ("##TITLE=x\n##DATA TYPE=LINK\n##BLOCKS=0\n##END=\n", "compound"),

@@ -127,10 +127,13 @@ def _connect(scheduler: str | None, workers: int | None):
     if scheduler:
         try:
             return Client(scheduler, timeout="30s"), None
-        except OSError as exc:
+        except OSError:
             from ..errors import InputError
 
-            raise InputError(f"cannot reach the Dask scheduler at {scheduler} ({exc})") from None
+            raise InputError(
+                f"--scheduler {scheduler}: no Dask scheduler answers at this address within 30 s; give it as "
+                "tcp://HOST:PORT, or leave --scheduler out to run on this machine"
+            ) from None
     n = workers or os.cpu_count() or 1
     # the dashboard on a free port: a fixed one fails when another cluster holds it
     cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True, dashboard_address=":0")

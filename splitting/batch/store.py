@@ -124,7 +124,8 @@ def read_metadata(path: str | os.PathLike[str]) -> dict[str, Any]:
     try:
         meta = pq.read_schema(path).metadata or {}
     except (OSError, pa.ArrowInvalid) as exc:
-        raise InputError(f"{path}: cannot be read as a Parquet file ({exc})") from None
+        what = "cannot be read" if isinstance(exc, OSError) and not isinstance(exc, pa.ArrowInvalid) else "damaged"
+        raise InputError(f"{path}: not a Parquet file that 'splitting screen' wrote (it is {what})") from None
     if METADATA_KEY not in meta:
         raise InputError(f"{path}: not a table written by splitting screen (no run description)")
     return json.loads(meta[METADATA_KEY])
@@ -145,11 +146,16 @@ class PartStore:
         self.folder = Path(folder)
         self.parts = self.folder / "parts"
         self.metadata = metadata
-        if self.folder.exists() and not self.folder.is_dir():
-            raise InputError(f"{self.folder}: exists and is not a folder")
-        if not self.folder.parent.is_dir():
-            raise InputError(f"cannot write {self.folder}: folder {self.folder.parent} does not exist")
-        self.parts.mkdir(parents=True, exist_ok=True)
+        try:
+            if self.folder.exists() and not self.folder.is_dir():
+                raise InputError(f"{self.folder}: exists and is not a folder")
+            if not self.folder.parent.is_dir():
+                raise InputError(f"cannot write {self.folder}: folder {self.folder.parent} does not exist")
+            self.parts.mkdir(parents=True, exist_ok=True)
+        except OSError as exc:  # a read-only file system, a name too long, no permission
+            from .._io import output_error
+
+            raise output_error(self.folder, exc) from None
 
     def _committed_files(self) -> list[Path]:
         return sorted(self.parts.glob("*" + _STRUCT_END))

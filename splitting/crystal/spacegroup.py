@@ -53,9 +53,14 @@ def spglib_dataset(lattice: np.ndarray, frac: np.ndarray, numbers: np.ndarray, t
         try:
             ds = spglib.get_symmetry_dataset((lattice, frac, numbers), symprec=tolerance)
         except Exception as exc:
-            raise SymmetryError(f"spglib found no space group: {exc}") from None
+            close = "too close" in str(exc)
+            raise SymmetryError(
+                f"the symmetry search found no space group at the tolerance {tolerance:g} Å"
+                + ("; atoms lie closer together than the tolerance" if close else "")
+                + "; check the cell and the coordinates, or give another --tolerance"
+            ) from None
     if ds is None:  # pragma: no cover - old error handling
-        raise SymmetryError("spglib found no space group (atoms too close for the tolerance?)")
+        raise SymmetryError(f"the symmetry search found no space group at the tolerance {tolerance:g} Å")
     return ds
 
 

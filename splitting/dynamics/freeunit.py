@@ -97,8 +97,11 @@ class _Engine:
             self.calc = Calculator(METHOD, np.asarray(numbers), positions / BOHR, charge=float(charge))
             self.calc.set("verbosity", 0)
             self.calc.set("accuracy", 0.01)
-        except Exception as exc:  # tblite raises plain exceptions
-            raise InputError(f"unit {formula}: the tight-binding model cannot be set up ({exc})") from None
+        except Exception:  # tblite raises plain exceptions
+            raise InputError(
+                f"unit {formula}: the tight-binding model cannot be set up for it (an element the model does not "
+                "cover, a charge it cannot hold, or atoms on top of each other)"
+            ) from None
 
     def __call__(self, positions: np.ndarray) -> tuple[float, np.ndarray, np.ndarray]:
         """Energy (eV), gradient (eV/angstrom) and charges at ``positions`` (angstrom)."""
@@ -106,9 +109,9 @@ class _Engine:
         try:
             self.calc.update(positions / BOHR)
             res = self.calc.singlepoint()
-        except Exception as exc:
+        except Exception:
             raise InputError(
-                f"unit {self.formula}: the tight-binding calculation did not converge ({exc}); "
+                f"unit {self.formula}: the tight-binding calculation did not converge; "
                 "check the unit's charge and geometry (bond cut-offs, missing hydrogen atoms)"
             ) from None
         return (

@@ -486,7 +486,9 @@ def _load_text(text: str, where: str) -> ModeTable:
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"{where}: not valid TOML ({exc})") from None
+        from .._reasons import toml_reason
+
+        raise InputError(f"{where}: not valid TOML ({toml_reason(exc)})") from None
     except RecursionError:
         raise InputError(
             f"{where}: not a mode table: its arrays or tables are nested hundreds of levels deep "

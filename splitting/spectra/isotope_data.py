@@ -81,7 +81,9 @@ def _table() -> tuple[dict[str, tuple[Isotope, ...]], dict[str, str]]:
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise DataError(f"{_WHERE}: not valid TOML ({exc})") from None
+        from .._reasons import toml_reason
+
+        raise DataError(f"{_WHERE}: not valid TOML ({toml_reason(exc)})") from None
     sources: dict[str, str] = data.get("sources", {})
     by_element: dict[str, tuple[Isotope, ...]] = {}
     source_of: dict[str, str] = {}

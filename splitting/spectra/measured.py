@@ -722,10 +722,12 @@ def _read_jcamp(path: Path, *, technique: str | None, units: str) -> Spectrum:
     import jcamp
 
     from .._io import read_input_bytes
+    from .._reasons import decode_text, jcamp_reason, reason
 
     raw = read_input_bytes(path)
     if not raw.strip():
         raise InputError(f"{path}: file is empty")
+    decode_text(raw, str(path))  # refuses UTF-16, binary and other non-UTF-8 files by name
     _check_jcamp_header(path, raw)
     reader = getattr(jcamp, "jcamp_readfile", None) or jcamp.readfile
     chatter = io.StringIO()
@@ -734,15 +736,12 @@ def _read_jcamp(path: Path, *, technique: str | None, units: str) -> Spectrum:
             warnings.simplefilter("ignore")
             data = reader(str(path))
     except (KeyError, ValueError, IndexError, TypeError, ZeroDivisionError) as exc:
-        from ..readers import _plain
-
-        reason = (
-            _plain(exc)
-            if isinstance(exc, ValueError)
-            else "a header value such as ##FIRSTX, ##LASTX, ##XFACTOR or ##NPOINTS, or a data line, is not as the "
+        header = (
+            "a header value such as ##FIRSTX, ##LASTX, ##XFACTOR or ##NPOINTS, or a data line, is not as the "
             "format asks"
         )
-        raise InputError(f"{path}: not a readable JCAMP-DX file ({reason})") from None
+        why = reason(exc, header) if isinstance(exc, ValueError) else header
+        raise InputError(f"{path}: not a readable JCAMP-DX file ({why})") from None
     except MemoryError:
         raise InputError(f"{path}: the JCAMP-DX header asks for more points than memory holds") from None
     except Exception as exc:  # the jcamp reader raises a bare Exception on undecodable data lines
@@ -751,10 +750,12 @@ def _read_jcamp(path: Path, *, technique: str | None, units: str) -> Spectrum:
             raise InputError(
                 f"{path}: a data line holds {m.group(1)!r}, which is not part of a JCAMP-DX number"
             ) from None
-        raise InputError(f"{path}: not a readable JCAMP-DX file (the reader stopped: {exc})") from None
+        raise InputError(
+            f"{path}: not a readable JCAMP-DX file (a data line cannot be decoded as JCAMP-DX numbers)"
+        ) from None
     said = chatter.getvalue().strip()
     if said:
-        raise InputError(f"{path}: JCAMP-DX data fail their checks: {said.splitlines()[0]}")
+        raise InputError(f"{path}: JCAMP-DX data fail their checks: {jcamp_reason(said.splitlines()[0])}")
     if "children" in data:
         raise InputError(f"{path}: compound JCAMP-DX files (DATA TYPE=LINK) are not supported")
     x = np.asarray(data.get("x", []), dtype=float)
