@@ -46,8 +46,12 @@ def run_corpus() -> dict:
     cases = whole_corpus()
     size = int(os.environ.get("SPLITTING_FUZZ_SIZE", len(cases)))
     start = time.monotonic()
+    results = []
     with ThreadPoolExecutor(max_workers=2) as pool:
-        results = list(pool.map(run_case, cases[:size]))
+        for k, result in enumerate(pool.map(run_case, cases[:size]), start=1):
+            results.append(result)
+            if k % 100 == 0 and __name__ == "__main__":
+                print(f"{k} cases, {time.monotonic() - start:.0f} s", file=sys.stderr, flush=True)
     counts = Counter(outcome for _, outcome, _, _ in results)
     return {
         "cases": len(results),

@@ -73,6 +73,9 @@ def reason(exc: BaseException, default: str) -> str:
         m = pattern.search(text)
         if m:
             return words.format(m.group(1))
+    m = re.search(r"could not broadcast input array from shape \((\d*),?\) into shape \((\d+),?\)", text)
+    if m:
+        return f"a line holds {m.group(1) or 0} values where {m.group(2)} are needed"
     if re.search(r"too many values to unpack|not enough values to unpack|could not assign tuple of length", text):
         return "a line has a value too many or too few"
     return default

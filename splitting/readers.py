@@ -43,7 +43,7 @@ def check_cell_parameters(params: Sequence[float], where: str) -> None:
     >>> check_cell_parameters([-1.0, 4.0, 4.0, 90, 90, 90], "x.cif")
     Traceback (most recent call last):
     ...
-    splitting.errors.InputError: x.cif: cell length a is -1 A; a cell length must be positive
+    splitting.errors.InputError: x.cif: cell length a is -1 Å; a cell length must be positive
     """
     names = ("a", "b", "c", "alpha", "beta", "gamma")
     for name, v in zip(names, params, strict=True):
@@ -89,11 +89,13 @@ def check_atoms(atoms, where: str) -> None:
             raise InputError(f"{where}: the cell holds a number that is not finite")
         if atoms.cell.rank < 3:
             raise InputError(f"{where}: the cell vectors do not span three dimensions")
-        lengths = np.linalg.norm(cell, axis=1)
         angles = []
-        for i, j in ((1, 2), (0, 2), (0, 1)):
-            cosine = float(np.dot(cell[i], cell[j]) / (lengths[i] * lengths[j]))
-            angles.append(math.degrees(math.acos(max(-1.0, min(1.0, cosine)))))
+        with np.errstate(all="ignore"):  # lengths near 1e308 overflow: check_cell_parameters names them
+            lengths = np.linalg.norm(cell, axis=1)
+            for i, j in ((1, 2), (0, 2), (0, 1)):
+                cosine = float(np.dot(cell[i], cell[j]) / (lengths[i] * lengths[j]))
+                cosine = cosine if math.isfinite(cosine) else 0.0
+                angles.append(math.degrees(math.acos(max(-1.0, min(1.0, cosine)))))
         check_cell_parameters([*lengths.tolist(), *angles], where)
 
 

@@ -126,7 +126,9 @@ LIBRARY_PHRASES = (
     "internal error",
 )
 #: unit spellings that are not the trade's (Å and cm-1 in plain text)
-UNIT_SPELLINGS = re.compile(r"(?:\d|\bat most|\babove) A\b(?![-=])|angstrom|Angstrom|cm\^-1|cm\*\*-1|\b1/cm\b|cm⁻¹")
+UNIT_SPELLINGS = re.compile(
+    r"(?:\d|\bat most|\babove) A\b(?![-=])|(?<![_\w])[Aa]ngstroms?\b|cm\^-1|cm\*\*-1|\b1/cm\b|cm⁻¹"
+)
 
 #: what a run can end in, from worst to best (the benchmark counts each)
 OUTCOMES = (
@@ -162,7 +164,8 @@ def judge(case: Case, code: int, out: str, err: str, folder: Path) -> str:
         return "partial file"
     if any(phrase in err for phrase in LIBRARY_PHRASES):
         return "raw text"
-    if UNIT_SPELLINGS.search(err) or re.search(r"angstrom|cm\^-1", out, flags=re.I):
+    said = re.sub(r"'[^'\n]*'", "''", err)  # text quoted from the user's own input is theirs
+    if UNIT_SPELLINGS.search(said) or re.search(r"(?<![_\w])angstrom|cm\^-1", out, flags=re.I):
         return "unit spelling"
     return "ok" if code == 0 else "clean error"
 

@@ -127,7 +127,7 @@ def _connect(scheduler: str | None, workers: int | None):
     if scheduler:
         try:
             return Client(scheduler, timeout="30s"), None
-        except OSError:
+        except (OSError, ValueError, TypeError):  # no answer, or not an address at all
             from ..errors import InputError
 
             raise InputError(
