@@ -354,6 +354,7 @@ def read_cif(path: str | Path, text: str | None = None):
 
 #: the CIF parser's complaints (a pattern of its message) and what they mean for the file
 _SYNTAX = (
+    (re.compile(r"Wrong number of values in loop (\S+)"), "a row of the table {0} has a value too many or too few"),
     (re.compile(r"Wrong number of values in loop"), "a row of a table (loop_) has a value too many or too few"),
     (re.compile(r"unterminated 'string'"), "a quoted value has no closing quote"),
     (re.compile(r"unterminated text field"), "a text field opened with ';' is not closed"),

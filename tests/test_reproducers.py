@@ -15,6 +15,7 @@ fault or a hang fails the test instead of the test run.
 
 from __future__ import annotations
 
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -81,3 +82,24 @@ def test_R09_cell_above_the_atom_limit_is_refused_before_the_search(tmp_path: Pa
     )
     lines = proc.stderr.splitlines()
     assert proc.returncode == 2 and len(lines) == 1 and "--max-atoms" in lines[0], proc.stderr
+
+
+def _shared_bad_inputs() -> Path | None:
+    """The collection of reported bad inputs beside the checkout (shared/bad-inputs), if it is there."""
+    for base in (Path(__file__).resolve().parents[2], Path(__file__).resolve().parents[3]):
+        folder = base / "shared" / "bad-inputs"
+        if (folder / "INDEX.txt").is_file():
+            return folder
+    return None
+
+
+def test_every_reported_bad_input_is_a_test() -> None:
+    """Each reproducer of the collection (R01, R02, ...) is named by at least one test file."""
+    folder = _shared_bad_inputs()
+    if folder is None:
+        pytest.skip("the shared bad-input collection is not beside this checkout")
+    index = (folder / "INDEX.txt").read_text(encoding="utf-8")
+    names = sorted(set(re.findall(r"^R\d\d", index, flags=re.M)))
+    tests = "\n".join(p.read_text(encoding="utf-8") for p in Path(__file__).parent.glob("test_*.py"))
+    missing = [n for n in names if not re.search(rf"\b{n}\b", tests)]
+    assert not missing, missing

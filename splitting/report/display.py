@@ -77,12 +77,12 @@ def _explanation(ex: Any) -> list[str]:
     n, bad = len(ex.lines), len(ex.unexplained)
     out = [
         f"Explanation: {_plural(n, 'line')} ({tech}) against {_name(ex.phase)}",
-        f"  {n - bad} explained, {bad} unexplained; window {ex.tolerance_cm1:g} cm⁻¹",
+        f"  {n - bad} explained, {bad} unexplained; window {ex.tolerance_cm1:g} cm-1",
     ]
     for line in ex.lines[:5]:
         best = line.candidates[0] if line.candidates else None
         what = f"{best.band} ({best.kind.replace('_', ' ')})" if best else "?"
-        out.append(f"  {line.peak.position_cm1:8.1f} cm⁻¹  {what}")
+        out.append(f"  {line.peak.position_cm1:8.1f} cm-1  {what}")
     if n > 5:
         out.append(f"  ... {n - 5} more")
     return out
