@@ -18,10 +18,10 @@ from .constants import COULOMB
 from .pairs import pair_blocks
 from .potential import neighbour_pairs, pair_gradient
 
-__all__ = ["coulomb_force_constants", "ewald_terms"]
+__all__ = ["REACH", "coulomb_force_constants", "ewald_terms", "half_sphere"]
 
-#: erfc(alpha * cutoff) = erfc(_REACH) ~ 1e-7 sets alpha from the real-space cut-off
-_REACH = 3.7
+#: erfc(alpha * cutoff) = erfc(REACH) ~ 1e-7 sets alpha from the real-space cut-off
+REACH = 3.7
 #: alpha (1/angstrom) times n^(1/3) at which real and reciprocal parts cost about the same
 #: (measured on CO2 supercells of molecular-crystal density)
 _BALANCE = 3.2
@@ -72,10 +72,10 @@ def ewald_terms(
     unit_of = np.asarray(unit_of)
     n = len(q)
     if alpha is None:
-        alpha = min(_REACH / cutoff, _BALANCE / max(n, 1) ** (1 / 3))
-        cutoff = _REACH / alpha
+        alpha = min(REACH / cutoff, _BALANCE / max(n, 1) ** (1 / 3))
+        cutoff = REACH / alpha
     else:
-        cutoff = _REACH / alpha
+        cutoff = REACH / alpha
     # ---- real space: every pair inside the reach, as radial derivatives
     i, j, shift = neighbour_pairs(lattice, pos, cutoff)
     vec = pos[j] + shift @ lattice - pos[i]
@@ -147,21 +147,24 @@ def ewald_terms(
 _G_CHUNK = 2048
 
 
-def _reciprocal_vectors(lattice: np.ndarray, alpha: float) -> tuple[np.ndarray, np.ndarray]:
-    """One of each pair +-G of reciprocal vectors inside the Ewald sphere, and their weights (eV angstrom)."""
-    volume = abs(np.linalg.det(lattice))
+def half_sphere(lattice: np.ndarray, gmax: float) -> np.ndarray:
+    """Indices hkl of one of each pair +-G of reciprocal vectors with |G| <= ``gmax`` (1/angstrom),
+    the half whose first nonzero index is positive; G = hkl @ (2 pi lattice^-T)."""
     recip = 2 * np.pi * np.linalg.inv(lattice).T
-    gmax = 2 * alpha * _REACH
     m = np.ceil(gmax / np.linalg.norm(recip, axis=1)).astype(int)
     h, k, l = np.meshgrid(*(np.arange(-mm, mm + 1) for mm in m), indexing="ij")
     hkl = np.stack([h.ravel(), k.ravel(), l.ravel()], axis=1)
-    # keep the half with the first nonzero index positive
     first = np.where(hkl[:, 0] != 0, hkl[:, 0], np.where(hkl[:, 1] != 0, hkl[:, 1], hkl[:, 2]))
     hkl = hkl[first > 0]
-    gv = hkl @ recip
+    g = hkl @ recip
+    return hkl[np.einsum("ij,ij->i", g, g) <= gmax**2]
+
+
+def _reciprocal_vectors(lattice: np.ndarray, alpha: float) -> tuple[np.ndarray, np.ndarray]:
+    """One of each pair +-G of reciprocal vectors inside the Ewald sphere, and their weights (eV angstrom)."""
+    volume = abs(np.linalg.det(lattice))
+    gv = half_sphere(lattice, 2 * alpha * REACH) @ (2 * np.pi * np.linalg.inv(lattice).T)
     g2 = np.einsum("ij,ij->i", gv, gv)
-    keep = g2 <= gmax**2
-    gv, g2 = gv[keep], g2[keep]
     w = 4 * np.pi * COULOMB / volume * np.exp(-g2 / (4 * alpha**2)) / g2
     return gv, w
 

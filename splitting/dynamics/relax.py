@@ -34,6 +34,7 @@ from scipy.special import erf, erfc
 
 from ..errors import InputError
 from .constants import COULOMB
+from .ewald import REACH, half_sphere
 from .potential import ParameterSet, neighbour_pairs
 
 __all__ = ["Relaxation", "lattice_energy", "relax_structure"]
@@ -53,8 +54,6 @@ WARN_SHIFT = 0.3
 _SCALE = 0.01
 #: central-difference step (in units of _SCALE)
 _STEP = 1e-3
-#: erfc(_REACH) ~ 1e-7 at the cut-off sets the Ewald splitting (as the force constants do)
-_REACH = 3.7
 
 
 @dataclass(frozen=True)
@@ -156,19 +155,10 @@ class _Energy:
         self.q = np.asarray(charges, dtype=float) if use_charges else None
         if self.q is not None and not np.any(np.abs(self.q) > 1e-6):
             self.q = None
-        self.alpha = _REACH / cutoff
+        self.alpha = REACH / cutoff
         if self.q is not None:
-            recip = 2 * np.pi * np.linalg.inv(lattice).T
-            gmax = 2 * self.alpha * _REACH * 1.15  # a fixed set of G: smooth under strain
-            m = np.ceil(gmax / np.linalg.norm(recip, axis=1)).astype(int)
-            hkl = np.array(
-                [(h, k, l) for h in range(-m[0], m[0] + 1) for k in range(-m[1], m[1] + 1) for l in range(0, m[2] + 1)]
-            )
-            # one of each pair +-G (l > 0, or l = 0 and k > 0, or l = k = 0 and h > 0)
-            half = (hkl[:, 2] > 0) | ((hkl[:, 2] == 0) & ((hkl[:, 1] > 0) | ((hkl[:, 1] == 0) & (hkl[:, 0] > 0))))
-            hkl = hkl[half]
-            g = hkl @ recip
-            self.hkl = hkl[np.einsum("ij,ij->i", g, g) <= gmax**2]
+            # a fixed set of G, chosen at the start with room to spare: smooth under strain
+            self.hkl = half_sphere(lattice, 2 * self.alpha * REACH * 1.15)
             # pairs inside one unit (all of them, whatever their distance): their erf part is removed
             ia, ib = [], []
             self.q_unit = self.unit_of if sites is None else np.asarray(sites.unit_of)
