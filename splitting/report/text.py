@@ -433,8 +433,9 @@ def lowering_text(result, *, limit: int = 40) -> str:
     lines = [
         f"Parent {p.symbol} (No. {p.space_group.number}{_standard_beside(p)}), factor group {p.factor_group}; "
         f"candidates up to index {result.max_index}: {len(result.candidates)}"
-        + (" (each named and its sites lettered in its own standard setting)" if result.candidates else "")
     ]
+    if result.candidates:
+        lines.append("Candidates: each named, and its sites lettered, in its own standard setting")
     import textwrap
 
     from ..phases.disorder import STATE_MEANING
