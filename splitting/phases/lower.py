@@ -14,7 +14,6 @@ pipeline predicts its spectrum.
 
 from __future__ import annotations
 
-import functools
 import itertools
 import os
 from collections.abc import Mapping
@@ -35,125 +34,32 @@ from ..errors import InputError
 from ..groups.pointgroup import point_group
 from ..groups.subgroups import generators_of, subgroup_classes
 from .compare import BandState, Phase
+from .sublattice import (
+    canonical_key,
+    close_operations,
+    closing_choices,
+    coset_vectors,
+    hermite_normal_form,
+    kept_lattices,
+    sublattices,
+)
 
-__all__ = ["DEFAULT_MAX_INDEX", "Candidate", "Lowering", "lower", "parse_observed", "sublattices"]
+__all__ = [
+    "DEFAULT_MAX_INDEX",
+    "Candidate",
+    "Lowering",
+    "hermite_normal_form",
+    "lower",
+    "parse_observed",
+    "sublattices",
+]
 
 #: largest index accepted: |Oh| = 48 reaches every t-subgroup of a cubic parent; beyond it the search runs for minutes
 MAX_INDEX_LIMIT = 48
 #: displacement (angstrom) used to realise a candidate as a structure
 DISPLACEMENT = 0.05
 
-
-def sublattices(index: int) -> list[np.ndarray]:
-    """Every sublattice of Z^3 of the given index, as lower-triangular Hermite normal forms.
-
-    Rows are the new basis vectors in the old basis.
-
-    Examples
-    --------
-    >>> len(sublattices(2)), len(sublattices(4))
-    (7, 35)
-    """
-    out = []
-    for a in range(1, index + 1):
-        if index % a:
-            continue
-        for c in range(1, index // a + 1):
-            if (index // a) % c:
-                continue
-            f = index // (a * c)
-            for b, d, e in itertools.product(range(a), range(a), range(c)):
-                out.append(np.array([[a, 0, 0], [b, c, 0], [d, e, f]]))
-    return out
-
-
 _OWN_SUBLATTICES = sublattices
-
-
-def hermite_normal_form(basis: np.ndarray) -> np.ndarray:
-    """Lower-triangular Hermite normal form of an integer lattice basis given as rows.
-
-    Examples
-    --------
-    >>> hermite_normal_form(np.array([[0, 1, 1], [1, 0, 1], [1, 1, 0]])).tolist()
-    [[2, 0, 0], [1, 1, 0], [1, 0, 1]]
-    """
-    h = np.array(basis, dtype=np.int64)
-    for col, row in ((2, 2), (1, 1), (0, 0)):
-        # bring the gcd of h[:row+1, col] into h[row, col] and zero the rows above
-        while True:
-            nz = [r for r in range(row + 1) if h[r, col] != 0]
-            if len(nz) <= 1:
-                break
-            piv = min(nz, key=lambda r: abs(h[r, col]))
-            for r in nz:
-                if r != piv:
-                    h[r] -= (h[r, col] // h[piv, col]) * h[piv]
-        nz = [r for r in range(row + 1) if h[r, col] != 0]
-        if not nz:
-            raise InputError("lattice basis is singular")
-        h[[row, nz[0]]] = h[[nz[0], row]]
-        if h[row, col] < 0:
-            h[row] = -h[row]
-    for r, c in ((1, 0), (2, 1), (2, 0)):
-        h[r] -= (h[r, c] // h[c, c]) * h[c]
-    return h
-
-
-def _canonical(
-    m: np.ndarray, ops: list[tuple[np.ndarray, np.ndarray]], parent: list[tuple[np.ndarray, np.ndarray]]
-) -> tuple:
-    """A key shared by all subgroups conjugate under the parent space group (rotations and lattice).
-
-    Each conjugate (by a parent operation and a lattice translation of the parent) is written as
-    one row of integers: its sublattice in Hermite normal form, its rotations (coded and sorted;
-    a subgroup holds each rotation once modulo the sublattice) and their translations in the
-    sublattice's fractional coordinates (in millionths, in the order of the rotations); the key
-    is the smallest row.  All translations of one parent operation are done at once.
-    """
-    ws = np.array([w for w, _ in ops], dtype=np.int64)
-    ts = np.array([t for _, t in ops], dtype=float)
-    digits = 16 ** np.arange(9, dtype=np.int64)
-    rows = []
-    for wg, tg in parent:
-        winv = np.rint(np.linalg.inv(wg)).astype(np.int64)
-        m2 = _hnf_cached(wg @ m.T)
-        w2 = np.einsum("ij,njk,kl->nil", wg, ws, winv)
-        code = (w2.reshape(len(w2), 9) + 8) @ digits  # entries of integer rotations are small (|w| < 8)
-        order = np.argsort(code, kind="stable")
-        minv = np.linalg.inv(m2.T)
-        a, c, f = int(m2[0, 0]), int(m2[1, 1]), int(m2[2, 2])
-        shifts = tg + np.array(list(itertools.product(range(a), range(c), range(f))), dtype=float)  # (k, 3)
-        # t2 = W_g t + s - W2 s for every shift s
-        t2 = (ts @ wg.T)[None] + shifts[:, None, :] - np.einsum("nij,kj->kni", w2, shifts)
-        frac = t2[:, order] @ minv.T
-        frac = np.round((frac - np.floor(frac + 1e-8)) * 1e6).astype(np.int64) % 1_000_000
-        head = np.concatenate([m2.reshape(9), code[order]])
-        rows.append(np.hstack([np.broadcast_to(head, (len(frac), len(head))), frac.reshape(len(frac), -1)]))
-    table = np.vstack(rows)
-    best = table[np.lexsort(table.T[::-1])[0]]
-    return (len(ops), best.tobytes())
-
-
-@functools.lru_cache(maxsize=4096)
-def _hnf_bytes(data: bytes) -> bytes:
-    return hermite_normal_form(np.frombuffer(data, dtype=np.int64).reshape(3, 3)).astype(np.int64).tobytes()
-
-
-def _hnf_cached(basis_t: np.ndarray) -> np.ndarray:
-    """Hermite normal form of the rows of ``basis_t.T`` (kept for repeated bases)."""
-    data = np.ascontiguousarray(np.rint(basis_t.T).astype(np.int64)).tobytes()
-    return np.frombuffer(_hnf_bytes(data), dtype=np.int64).reshape(3, 3)
-
-
-def _keeps(m: np.ndarray, rotations: np.ndarray) -> bool:
-    """True when every fractional rotation maps the sublattice (rows of m) onto itself."""
-    inv = np.linalg.inv(m.T)
-    for w in rotations:
-        c = inv @ w @ m.T
-        if not np.allclose(c, np.round(c), atol=1e-8):
-            return False
-    return True
 
 
 @dataclass(frozen=True, eq=False)
@@ -263,40 +169,6 @@ class Lowering(Summarised):
             "notes": list(self.notes),
             "candidates": [c.to_dict() for c in self.candidates],
         }
-
-
-def _close_ops(
-    gens: list[tuple[np.ndarray, np.ndarray]], m: np.ndarray, order: int
-) -> list[tuple[np.ndarray, np.ndarray]] | None:
-    """Close (W, t) pairs modulo the sublattice m; None if some rotation gets two translations."""
-    minv = np.linalg.inv(m.T)
-
-    def key(w: np.ndarray, t: np.ndarray) -> tuple[bytes, bytes]:
-        f = minv @ t
-        f = np.round((f - np.floor(f + 1e-8)) * 1e6).astype(np.int64) % 1_000_000
-        return w.astype(np.int64).tobytes(), f.tobytes()
-
-    ident = (np.eye(3, dtype=int), np.zeros(3))
-    found = {key(*ident)[0]: ident}
-    tkeys = {key(*ident)[0]: key(*ident)[1]}
-    frontier = [ident]
-    while frontier:
-        new = []
-        for w1, t1 in frontier:
-            for w2, t2 in gens:
-                w, t = w1 @ w2, w1 @ t2 + t1
-                kw, kt = key(w, t)
-                if kw in tkeys:
-                    if tkeys[kw] != kt:
-                        return None
-                    continue
-                tkeys[kw] = kt
-                found[kw] = (w, t)
-                new.append((w, t))
-        frontier = new
-        if len(found) > order:
-            return None
-    return list(found.values())
 
 
 def _realise(cell: CellSymmetry, m: np.ndarray, ops: list[tuple[np.ndarray, np.ndarray]], seed: int):
@@ -577,6 +449,8 @@ def subgroups_of(
     setting in a process and reused for every structure of that group.  With a ``folder`` (or
     the folder named by the environment variable ``SPLITTING_SUBGROUP_CACHE``) the result is
     also kept there as JSON and read back by later runs; an unreadable entry is searched again.
+    Candidates past :data:`MAX_CANDIDATES` or :data:`MAX_CANDIDATE_ATOMS` are refused with an
+    InputError naming the largest index within them (the search stops there).
     """
     g = factor.oriented.group
     rot = np.rint(cell.frac_rotations).astype(np.int64)
@@ -589,10 +463,14 @@ def subgroups_of(
             folder = None
         found = _read_subgroups(folder, key) if folder else None
         if found is None:
-            found = tuple(_search_subgroups(cell, factor, max_index))
+            found = _within_limits(_search_subgroups(cell, factor, max_index), len(cell.numbers), max_index)
             if folder:
                 _write_subgroups(folder, key, found)
+            _SUBGROUPS[(*key, sublattices)] = found
+            return found
         _SUBGROUPS[(*key, sublattices)] = found
+    # kept from an earlier search (maybe of a structure with fewer atoms): the same limits
+    _within_limits(((0, sub) for sub in sorted(found, key=lambda sub: sub[2] * sub[3])), len(cell.numbers), max_index)
     return found
 
 
@@ -648,41 +526,81 @@ def _write_subgroups(folder: str | os.PathLike[str], key: tuple, found: tuple) -
 
 
 def _search_subgroups(cell: CellSymmetry, factor: FactorGroup, max_index: int):
-    """The search behind :func:`subgroups_of` (uncached)."""
+    """The search behind :func:`subgroups_of` (uncached), by ascending index.
+
+    Yields ``(place, (m, ops, multiple, point_index))``: ``place`` (class, multiple, lattice,
+    choice) puts the subgroups back in the order of the class-by-class search.  Conjugate
+    subgroups share their point-group class and cell multiple, so the representative kept for
+    each class does not depend on the order.
+    """
     g = factor.oriented.group
     by_std = {int(s): k for k, s in enumerate(factor.index)}
     seen: set[tuple] = set()
     parent_ops = [
         (np.rint(w).astype(np.int64), t) for w, t in zip(cell.frac_rotations, cell.frac_translations, strict=True)
     ]
-    lattices = {m: sublattices(m) for m in range(1, max_index + 1)}
-    for members in subgroup_classes(g.name):
+    classes = []
+    for number, members in enumerate(subgroup_classes(g.name)):
         i = g.order // len(members)
-        if i > max_index:
-            continue
-        cell_ops = [by_std[s] for s in sorted(members)]
-        w_frac = np.rint(cell.frac_rotations[cell_ops]).astype(int)
-        gens_std = generators_of(g.table, members)
-        gens = [
-            (np.rint(cell.frac_rotations[by_std[s]]).astype(int), cell.frac_translations[by_std[s]]) for s in gens_std
-        ]
-        for mult in range(1, max_index // i + 1):
-            if i == 1 and mult == 1:
+        if i <= max_index:
+            gens = [
+                (np.rint(cell.frac_rotations[by_std[s]]).astype(int), cell.frac_translations[by_std[s]])
+                for s in generators_of(g.table, members)
+            ]
+            classes.append((number, i, len(members), gens))
+    lattices: dict[int, np.ndarray] = {}
+    for index in range(2, max_index + 1):
+        for number, i, order, gens in classes:
+            if index % i:
                 continue
-            for m in lattices[mult]:
-                if not _keeps(m, w_frac):
-                    continue
-                a, c, f = int(m[0, 0]), int(m[1, 1]), int(m[2, 2])
-                cosets = [np.array(u, dtype=float) for u in itertools.product(range(a), range(c), range(f))]
-                for choice in itertools.product(range(len(cosets)), repeat=len(gens)):
+            mult = index // i
+            if mult not in lattices:
+                lattices[mult] = np.array(sublattices(mult), dtype=np.int64).reshape(-1, 3, 3)
+            stack = lattices[mult]
+            kept = np.flatnonzero(kept_lattices(stack, [w for w, _ in gens]))
+            for place in kept:
+                m = stack[place]
+                cosets = coset_vectors(m)
+                for q, choice in enumerate(closing_choices(gens, m, cosets)):
                     trial = [(w, t + cosets[k]) for (w, t), k in zip(gens, choice, strict=True)]
-                    ops = _close_ops(trial, m, len(members))
-                    if ops is None or len(ops) != len(members):
+                    ops = close_operations(trial, m, order)
+                    if ops is None or len(ops) != order:  # pragma: no cover - closing_choices said it closes
                         continue
-                    key = _canonical(m, ops, parent_ops)
+                    key = canonical_key(m, ops, parent_ops)
                     if key not in seen:
                         seen.add(key)
-                        yield m, ops, mult, i
+                        yield (number, mult, int(place), q), (m, ops, mult, i)
+
+
+#: most candidate subgroups ``lower`` predicts, and most atoms in all their cells (about a minute of work)
+MAX_CANDIDATES = 600
+MAX_CANDIDATE_ATOMS = 200_000
+
+
+def _within_limits(found, atoms: int, max_index: int) -> tuple:
+    """The subgroups in the order of the class-by-class search; InputError once the work grows too large.
+
+    ``found`` yields ``(place, subgroup)`` by ascending index; the search stops at the first
+    subgroup past :data:`MAX_CANDIDATES` or :data:`MAX_CANDIDATE_ATOMS` (a candidate's cell holds
+    ``multiple x atoms`` atoms) and the message names the largest index that stays within both.
+    """
+    kept, count, total = [], 0, 0
+    for place, sub in found:
+        count += 1
+        total += sub[2] * atoms
+        if count > MAX_CANDIDATES or total > MAX_CANDIDATE_ATOMS:
+            index = sub[2] * sub[3]
+            what = (
+                f"more than {MAX_CANDIDATES} candidate subgroups by index {index}"
+                if count > MAX_CANDIDATES
+                else f"candidate cells of more than {MAX_CANDIDATE_ATOMS} atoms in all by index {index} "
+                f"({atoms} atoms in the primitive cell)"
+            )
+            fix = f"give --max-index {index - 1} or less" if index > 2 else "give a smaller cell"
+            raise InputError(f"lower to index {max_index} is too large: {what}; {fix}")
+        kept.append((place, sub))
+    kept.sort(key=lambda row: row[0])
+    return tuple(sub for _, sub in kept)
 
 
 def _count_peaks(peaks, parent: CrystalPrediction, cands, modes, window_cm1: float):
