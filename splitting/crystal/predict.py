@@ -174,6 +174,7 @@ def units_of(cell: CellSymmetry, opts: Options) -> tuple[Unit, ...]:
 def _orbits(cell: CellSymmetry, units: tuple[Unit, ...]) -> list[list[tuple[int, int]]]:
     """Orbits of units as lists of (unit index, cell operation carrying the first unit onto it)."""
     centres = np.array([u.centre for u in units])
+    formulas = [u.formula for u in units]
     inv = np.linalg.inv(cell.lattice)
     cf = centres @ inv
     seen: set[int] = set()
@@ -181,17 +182,16 @@ def _orbits(cell: CellSymmetry, units: tuple[Unit, ...]) -> list[list[tuple[int,
     for u0 in range(len(units)):
         if u0 in seen:
             continue
+        # every operation at once: image of the unit's centre, nearest centre (modulo the lattice)
+        img = (centres[u0] @ np.transpose(cell.rotations, (0, 2, 1)) + cell.translations) @ inv  # (ops, 3)
+        d = cf[None] - img[:, None]
+        d -= np.round(d)
+        dist = np.linalg.norm(d @ cell.lattice, axis=2)  # (ops, units)
+        near = np.argmin(dist, axis=1)
         orbit = {u0: 0}
-        for k in range(len(cell.rotations)):
-            img = cell.apply(k, centres[u0]) @ inv
-            d = cf - img
-            d -= np.round(d)
-            dist = np.linalg.norm(d @ cell.lattice, axis=1)
-            v = int(np.argmin(dist))
-            if dist[v] > 0.05 or units[v].formula != units[u0].formula:
-                raise SymmetryError(
-                    f"operation {k} maps unit {units[u0].formula} onto no unit; try a different --tolerance"
-                )
+        for k, v in enumerate(near.tolist()):
+            if dist[k, v] > 0.05 or formulas[v] != formulas[u0]:
+                raise SymmetryError(f"operation {k} maps unit {formulas[u0]} onto no unit; try a different --tolerance")
             orbit.setdefault(v, k)
         seen.update(orbit)
         orbits.append(sorted(orbit.items()))

@@ -9,7 +9,7 @@ from __future__ import annotations
 import contextlib
 import functools
 from collections.abc import Iterator
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -21,6 +21,7 @@ __all__ = [
     "CellSymmetry",
     "SpaceGroupInfo",
     "analyse_cell",
+    "cell_of_known_group",
     "crystal_system",
     "spglib_dataset",
 ]
@@ -177,6 +178,9 @@ class CellSymmetry:
         spglib's origin shift p: x_s = P x + p.
     standard_axes : bool
         Label in the axes of the standard setting instead of the file's (see :attr:`label_basis`).
+    skeleton : tuple of numpy.ndarray or None
+        Fractional positions and species of a few atoms with exactly this space group (see
+        :func:`cell_of_known_group`), searched in place of all atoms to name Wyckoff positions.
     """
 
     info: SpaceGroupInfo
@@ -196,6 +200,7 @@ class CellSymmetry:
     transformation: np.ndarray | None = field(default=None, repr=False)
     origin_shift: np.ndarray | None = field(default=None, repr=False)
     standard_axes: bool = False
+    skeleton: tuple[np.ndarray, np.ndarray] | None = field(default=None, repr=False)
 
     @property
     def cartesian(self) -> np.ndarray:
@@ -287,13 +292,16 @@ class CellSymmetry:
     def orbit_of(self, point: np.ndarray) -> np.ndarray:
         """Distinct images (Cartesian, inside the primitive cell) of a point under the space group."""
         inv = np.linalg.inv(self.lattice)
-        out: list[np.ndarray] = []
-        for k in range(len(self.rotations)):
-            f = self.apply(k, point) @ inv
-            f -= np.floor(f + 1e-9)
-            if not any(self.same_point(f @ self.lattice, q) for q in out):
-                out.append(f @ self.lattice)
-        return np.array(out)
+        f = (np.asarray(point, dtype=float) @ np.transpose(self.rotations, (0, 2, 1)) + self.translations) @ inv
+        f -= np.floor(f + 1e-9)
+        d = f[:, None] - f[None]
+        d -= np.round(d)
+        same = np.linalg.norm(d @ self.lattice, axis=2) < 1e-2  # as :meth:`same_point`
+        kept: list[int] = []
+        for k in range(len(f)):
+            if not same[k, kept].any():
+                kept.append(k)
+        return f[kept] @ self.lattice
 
     def wyckoff_of(
         self, points: list[np.ndarray], *, tolerance: float = DEFAULT_CELL_TOLERANCE
@@ -308,9 +316,10 @@ class CellSymmetry:
         ratio = abs(np.linalg.det(self.conventional) / np.linalg.det(self.lattice))
         if not self.sites_named:
             return [("?", "?") for _ in points]
-        frac, numbers, slot, sizes = [self.frac], [self.numbers], [], []
-        count = len(self.numbers)
-        kind = int(np.max(self.numbers)) + 1000
+        base_frac, base_numbers = (self.frac, self.numbers) if self.skeleton is None else self.skeleton
+        frac, numbers, slot, sizes = [base_frac], [base_numbers], [], []
+        count = len(base_numbers)
+        kind = int(np.max(base_numbers)) + 1000
         # an atom on the general position names every point on it (no look-up needed)
         general = next((k for k, sym in enumerate(self.site_symbols) if sym.replace(".", "") == "1"), None)
         for n, p in enumerate(points):
@@ -320,27 +329,34 @@ class CellSymmetry:
             d -= np.round(d)
             dist = np.linalg.norm(d @ self.lattice, axis=1)
             if dist.min() < 0.05:
-                slot.append(int(np.argmin(dist)))
+                slot.append((True, int(np.argmin(dist))))
                 continue
             if general is not None and len(orbit) == len(self.rotations):
-                slot.append(general)
+                slot.append((True, general))
                 continue
-            slot.append(count)
+            slot.append((False, count))
             f = orbit @ inv
             frac.append(f)
             numbers.append(np.full(len(f), kind + n))
             count += len(f)
-        if count > len(self.numbers):
+        wyck, sites = list(self.wyckoffs), list(self.site_symbols)
+        if count > len(base_numbers):
             ds = spglib_dataset(self.lattice, np.vstack(frac), np.concatenate(numbers), _EXACT)
             if int(ds.number) != self.info.number:
                 raise BookkeepingError(
                     f"unit centres placed on the idealised cell give space group No. {ds.number}, "
                     f"not No. {self.info.number}"
                 )
-            wyck, sites = list(ds.wyckoffs), list(ds.site_symmetry_symbols)
-        else:
-            wyck, sites = list(self.wyckoffs), list(self.site_symbols)
-        return [(f"{round(size * ratio)}{wyck[i]}", sites[i]) for i, size in zip(slot, sizes, strict=True)]
+            if self.skeleton is None:  # the atoms were searched again: their names from the same search
+                wyck, sites = list(ds.wyckoffs), list(ds.site_symmetry_symbols)
+            else:
+                wyck = [*wyck, *([""] * len(base_numbers)), *list(ds.wyckoffs)[len(base_numbers) :]]
+                sites = [*sites, *([""] * len(base_numbers)), *list(ds.site_symmetry_symbols)[len(base_numbers) :]]
+        out = []
+        for (atom, i), size in zip(slot, sizes, strict=True):
+            k = i if atom or self.skeleton is None else i + len(self.numbers)
+            out.append((f"{round(size * ratio)}{wyck[k]}", sites[k]))
+        return out
 
     def apply(self, k: int, cart: np.ndarray) -> np.ndarray:
         """Operation k applied to Cartesian points (angstrom)."""
@@ -433,6 +449,81 @@ def cell_from_operations(
         sites_named=False,
         given_lattice=None if given_lattice is None else np.asarray(given_lattice, dtype=float),
         standard_axes=standard_axes,
+    )
+
+
+def cell_of_known_group(
+    lattice: np.ndarray,
+    frac: np.ndarray,
+    numbers: np.ndarray,
+    rotations: np.ndarray,
+    translations: np.ndarray,
+    special: np.ndarray,
+    *,
+    tolerance: float,
+    standard_axes: bool = False,
+    seed: int = 0,
+) -> CellSymmetry | None:
+    """The cell of atoms whose space group is known to be exactly the given operations.
+
+    ``rotations`` and ``translations`` (fractional, in the basis ``lattice``, which is primitive
+    for them) are the whole group modulo the lattice, checked by the caller; ``special`` marks
+    the atoms on special positions.  spglib then searches a skeleton instead of every atom:
+    three orbits of random general points (of new kinds) and the atoms on special positions.
+    Its one dataset gives the type, the standard setting and the Wyckoff letters as a search of
+    all atoms would (the same operations on the same lattice basis); the atoms keep their
+    positions, which already have the symmetry exactly.  Returns None when the skeleton does not
+    show exactly this group (the caller then searches all atoms).
+    """
+    lattice = np.asarray(lattice, dtype=float)
+    w = np.asarray(rotations, dtype=float)
+    t = np.asarray(translations, dtype=float)
+    frac = np.asarray(frac, dtype=float)
+    numbers = np.array(numbers, dtype=int)
+    special = np.flatnonzero(np.asarray(special, dtype=bool))
+    rng = np.random.default_rng(seed)
+    points: list[np.ndarray] = []
+    for _ in range(30):  # three general orbits, each at least 0.5 A from every other skeleton point
+        if len(points) == 3:
+            break
+        orbit = rng.random(3) @ np.transpose(w, (0, 2, 1)) + t
+        orbit -= np.floor(orbit)
+        trial = np.vstack([*points, orbit, frac[special]])
+        d = trial[:, None] - trial[None]
+        d -= np.round(d)
+        dist = np.linalg.norm(d @ lattice, axis=2) + np.eye(len(trial)) * 1e3
+        if dist.min() > 0.5:
+            points.append(orbit)
+    if len(points) < 3:
+        return None
+    skeleton = np.vstack([*points, frac[special]])
+    top = int(numbers.max()) if len(numbers) else 0
+    kinds = np.concatenate([np.full(len(p), top + 1 + k) for k, p in enumerate(points)] + [numbers[special]])
+    ds = spglib_dataset(lattice, skeleton, kinds, tolerance)
+    in_map = np.asarray(ds.mapping_to_primitive)
+    if len(ds.rotations) != len(w) or len(set(in_map.tolist())) != len(kinds):  # more symmetry than given
+        return None
+    cell = _cell_of_dataset(ds, lattice, skeleton, kinds, tolerance, (), standard_axes)
+    general = next((i for i in range(len(kinds)) if str(ds.site_symmetry_symbols[i]).replace(".", "") == "1"), None)
+    if general is None:  # pragma: no cover - the random points are general
+        return None
+    wyck = [str(ds.wyckoffs[general])] * len(numbers)
+    sites = [str(ds.site_symmetry_symbols[general])] * len(numbers)
+    for k, i in enumerate(special):
+        wyck[i] = str(ds.wyckoffs[len(kinds) - len(special) + k])
+        sites[i] = str(ds.site_symmetry_symbols[len(kinds) - len(special) + k])
+    pfrac = (frac @ lattice) @ np.linalg.inv(cell.lattice)
+    pfrac -= np.floor(pfrac + 1e-9)
+    for arr in (pfrac, numbers):
+        arr.setflags(write=False)
+    return replace(
+        cell,
+        frac=pfrac,
+        numbers=numbers,
+        wyckoffs=tuple(wyck),
+        site_symbols=tuple(sites),
+        input_atoms=len(numbers),
+        skeleton=(cell.frac, cell.numbers),
     )
 
 

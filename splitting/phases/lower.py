@@ -190,18 +190,72 @@ def _realise(cell: CellSymmetry, m: np.ndarray, ops: list[tuple[np.ndarray, np.n
     from scipy.spatial import cKDTree
 
     tree = cKDTree(frac % 1.0, boxsize=1.0 + 1e-12)
+    fixed = np.zeros(len(cart), dtype=bool)  # atoms that some operation other than the identity keeps
     for w, t in ops:
         r = plat.T @ w @ np.linalg.inv(plat.T)
         img = ((cart @ r.T + t @ plat) @ inv) % 1.0
         _, perm = tree.query(img)
         sym += disp[perm] @ r  # R^-1 d_{pi(i)} written for row vectors
+        if not (np.array_equal(w, np.eye(3)) and np.allclose(t, 0.0)):
+            fixed |= perm == np.arange(len(perm))
     sym /= len(ops)
     norm = np.max(np.linalg.norm(sym, axis=1))
     if norm > 1e-9:
         sym *= DISPLACEMENT / norm
     atoms = Atoms(numbers=numbers, positions=cart + sym, cell=lat, pbc=True)
     atoms.wrap()
-    return atoms
+    return atoms, fixed, sym.mean(axis=0)
+
+
+#: a parent operation that moves no atom of a realised candidate farther than this (angstrom) may be a
+#: symmetry of it at the candidates' tolerance: its space group is then searched atom by atom
+_EXTRA_SYMMETRY_MARGIN = 5e-3
+
+
+def _shows_only(cell: CellSymmetry, m: np.ndarray, ops, atoms, shift: np.ndarray) -> bool:
+    """True when no operation of the parent's group (modulo the sublattice) outside ``ops`` maps the
+    realised candidate onto itself, even within :data:`_EXTRA_SYMMETRY_MARGIN`: its space group is then
+    exactly ``ops``.  One operation per coset of the candidate's group is tried.
+
+    The mean displacement ``shift`` (a uniform move, allowed along a polar axis) is taken off first:
+    it moves the origin of every symmetry of the displaced atoms, not their number."""
+    from scipy.spatial import cKDTree
+
+    minv = np.linalg.inv(m.T.astype(float))
+    lat = np.asarray(atoms.cell[:], dtype=float)
+    frac = (atoms.positions - shift) @ np.linalg.inv(lat)
+    frac -= np.floor(frac)
+    numbers = atoms.numbers
+
+    def key(w: np.ndarray, t: np.ndarray) -> tuple[bytes, bytes]:
+        f = np.round((t - np.floor(t + 1e-8)) * 1e6).astype(np.int64) % 1_000_000
+        return np.rint(w).astype(np.int64).tobytes(), f.tobytes()
+
+    sub = [(minv @ w @ m.T, minv @ t) for w, t in ops]
+    covered = set()
+    reps = []
+    for wg, tg in zip(cell.frac_rotations, cell.frac_translations, strict=True):
+        ws = minv @ wg @ m.T
+        if np.abs(ws - np.rint(ws)).max() > 1e-8:  # does not keep the sublattice
+            continue
+        for u in coset_vectors(m):
+            ts = minv @ (tg + u)
+            if key(ws, ts) in covered:
+                continue
+            reps.append((ws, ts))
+            covered.update(key(ws @ wh, ws @ th + ts) for wh, th in sub)
+    own = {key(w, t) for w, t in sub}
+    tree = cKDTree(frac % 1.0, boxsize=1.0 + 1e-12)
+    for ws, ts in (r for r in reps if key(*r) not in own):  # one per coset other than the group itself
+        img = (frac @ ws.T + ts) % 1.0
+        _, near = tree.query(img)
+        if not np.array_equal(numbers[near], numbers):
+            continue
+        d = img - frac[near]
+        d -= np.round(d)
+        if np.linalg.norm(d @ lat, axis=1).max() < _EXTRA_SYMMETRY_MARGIN:
+            return False
+    return True
 
 
 def parse_observed(items: list[str] | None) -> tuple[tuple[str, str, int], ...]:
@@ -659,10 +713,12 @@ def _candidate(
     source: str,
     seed: int,
 ) -> Candidate:
-    atoms = _realise(cell, m, ops, seed)
+    atoms, fixed, shift = _realise(cell, m, ops, seed)
     kind = "t" if mult == 1 else ("k" if point_index == 1 else "t+k")
     supercell = tuple(tuple(int(x) for x in r) for r in m)
-    pred = predict_atoms(atoms, opts, source=f"{source} (candidate)", free_cache=cache, scan=False)
+    pred = _predict_known(cell, m, ops, atoms, fixed, shift, opts, cache, f"{source} (candidate)")
+    if pred is None:
+        pred = predict_atoms(atoms, opts, source=f"{source} (candidate)", free_cache=cache, scan=False)
     realised = point_group(pred.factor_group).order * pred.atoms_primitive == len(ops) * len(atoms)
     if not realised:
         # the atoms cannot show this subgroup (they sit where no displacement breaks the parent
@@ -672,6 +728,52 @@ def _candidate(
     return Candidate(
         kind, point_index * mult, pred.factor_group, mult, supercell, (sg.number, sg.symbol), pred, realised=realised
     )
+
+
+def _predict_known(
+    cell: CellSymmetry,
+    m: np.ndarray,
+    ops,
+    atoms,
+    fixed: np.ndarray,
+    shift: np.ndarray,
+    opts: Options,
+    cache: FreeUnitCache,
+    source: str,
+) -> CrystalPrediction | None:
+    """The prediction of a realised candidate whose space group is exactly its operations, without a
+    search of all its atoms (:func:`~splitting.crystal.spacegroup.cell_of_known_group`); None when that
+    cannot be shown (the caller then predicts the atoms as any structure)."""
+    from ..crystal.limits import check_atom_count
+    from ..crystal.predict import _predict, units_of
+    from ..crystal.spacegroup import cell_of_known_group
+    from ..errors import BookkeepingError
+
+    check_atom_count(len(atoms), opts.max_atoms)
+    if 2 * (3 * len(ops) + int(fixed.sum())) > len(atoms):  # a skeleton no smaller than the atoms: search them
+        return None
+    if not _shows_only(cell, m, ops, atoms, shift):
+        return None
+    minv = np.linalg.inv(m.T.astype(float))
+    rots = np.array([np.rint(minv @ w @ m.T) for w, _ in ops])
+    trans = np.array([minv @ t for _, t in ops])
+    known = cell_of_known_group(
+        atoms.cell[:],
+        atoms.get_scaled_positions(wrap=True),
+        atoms.numbers,
+        rots,
+        trans,
+        fixed,
+        tolerance=opts.tolerance,
+        standard_axes=opts.standard_axes,
+    )
+    if known is None:
+        return None
+    try:
+        pred = _predict(known, units_of(known, opts), opts, source, cache)
+    except BookkeepingError:
+        return None
+    return replace(pred, cell_parameters=tuple(float(v) for v in atoms.cell.cellpar()))
 
 
 def _predict_from_operations(

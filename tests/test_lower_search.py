@@ -1,5 +1,7 @@
-"""The subgroup search of ``lower``: its vectorised closure test agrees with closing operation by
-operation, and a search that would predict too many candidates is refused early with the index to give."""
+"""The short cuts of ``lower``: the vectorised closure test agrees with closing operation by operation;
+a candidate whose space group is known from its operations (a skeleton searched instead of every atom)
+gets the prediction a search of all its atoms gives; a search that would predict too many candidates is
+refused early with the index to give."""
 
 from __future__ import annotations
 
@@ -115,3 +117,31 @@ def test_a_low_symmetry_cell_at_a_large_index_is_refused_early(tmp_path: Path, r
     assert code == 2 and out == ""
     assert err.startswith("error: lower to index 48 is too large:") and "give --max-index" in err
     assert len(err.strip().splitlines()) == 1
+
+
+@pytest.mark.parametrize(
+    ("name", "index"), [("c60_fcc_Fm-3.cif", 4), ("c60_ordered_Pa-3.cif", 2), ("naphthalene_P21a.cif", 4)]
+)
+def test_known_group_prediction_is_the_full_search_prediction(name: str, index: int) -> None:
+    atoms = load_structure(ROOT / "structures" / name)
+    _, cell = predict_with_cell(atoms, Options())
+    factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
+    opts = Options(tolerance=1e-3)
+    cache = lowering.FreeUnitCache(opts.unit_tolerance, {})
+    known = 0
+    for m, ops, _mult, _i in lowering.subgroups_of(cell, factor, index):
+        realised, fixed, shift = lowering._realise(cell, m, ops, 1)
+        short = lowering._predict_known(cell, m, ops, realised, fixed, shift, opts, cache, "candidate")
+        if short is None:
+            continue
+        known += 1
+        full = lowering.predict_atoms(realised, opts, source="candidate", free_cache=cache)
+        assert short.space_group.number == full.space_group.number
+        assert short.space_group.hall_number == full.space_group.hall_number
+        assert short.factor_group == full.factor_group and short.atoms_primitive == full.atoms_primitive
+        # a free unit's axes are one of the equivalent frames of its free group (a D2h naphthalene may
+        # come out turned by a two-fold axis): the positions differ by float noise from spglib's idealised ones
+        assert [{**u, "free_axes": None} for u in short.to_dict()["units"]] == [
+            {**u, "free_axes": None} for u in full.to_dict()["units"]
+        ]
+    assert known > 0
