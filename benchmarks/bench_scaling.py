@@ -52,14 +52,14 @@ import json, resource, sys, time
 what, path, tol = sys.argv[1], sys.argv[2], float(sys.argv[3])
 import numpy as np, spglib
 from splitting.crystal.read import load_structure
-from splitting.crystal.predict import predict
+from splitting.crystal.predict import Options, predict
 spglib.error.OLD_ERROR_HANDLING = False
 start = time.perf_counter()
 if what == "floor":
     atoms = load_structure(path)
     spglib.get_symmetry_dataset((atoms.cell[:], atoms.get_scaled_positions(), atoms.numbers), symprec=tol)
 else:
-    predict(path)
+    predict(path, Options(max_atoms=100_000))  # the 14,000-atom sizes are above the default limit
 seconds = time.perf_counter() - start
 print(json.dumps({"seconds": seconds, "rss_mib": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024}))
 """
