@@ -111,6 +111,16 @@ def _kabsch(a: np.ndarray, b: np.ndarray, det: float | None = None) -> np.ndarra
     return r
 
 
+def _kabsch_many(a: np.ndarray, b: np.ndarray, det: np.ndarray) -> np.ndarray:
+    """:func:`_kabsch` for stacks of point sets; ``det`` 0 leaves the determinant free."""
+    u, _, vt = np.linalg.svd(np.transpose(b, (0, 2, 1)) @ a)
+    r = u @ vt
+    flip = (det != 0) & (np.linalg.det(r) * det < 0)
+    if np.any(flip):
+        r[flip] = u[flip] @ np.diag([1.0, 1.0, -1.0]) @ vt[flip]
+    return r
+
+
 def _match(r: np.ndarray, pos: np.ndarray, numbers: np.ndarray, tree: cKDTree, tol: float) -> np.ndarray | None:
     moved = pos @ r.T
     d, j = tree.query(moved)
@@ -241,6 +251,9 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
     keys: set[bytes] = set()
     c2 = np.asarray(cand[a2])
     c3 = np.asarray(cand[a3]) if a3 is not None else None
+    srcs: list[np.ndarray] = []
+    dsts: list[np.ndarray] = []
+    want: list[float] = []
     for b1 in cand[a1]:
         for b2 in c2[(np.abs(dist[b1, c2] - d12) <= 2 * tol) & (c2 != b1)]:
             if a3 is None:
@@ -249,7 +262,10 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
                     continue
                 nb /= np.linalg.norm(nb)
                 src = np.array([pos[a1], pos[a2], normal * radius[a1]])
-                trials = [(np.array([pos[b1], pos[b2], t * radius[a1]]), None) for t in (nb, -nb)]
+                for t in (nb, -nb):
+                    srcs.append(src)
+                    dsts.append(np.array([pos[b1], pos[b2], t * radius[a1]]))
+                    want.append(0.0)
             else:
                 src = np.array([pos[a1], pos[a2], pos[a3]])
                 ok = (
@@ -260,29 +276,66 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
                 )
                 # both handednesses: three atoms nearly in a plane with the centre fit a rotation
                 # and a reflection almost equally well
-                trials = [(np.array([pos[b1], pos[b2], pos[b3]]), d) for b3 in c3[ok] for d in (1.0, -1.0)]
-            for dst, det in trials:
-                r = _kabsch(src, dst, det)
+                for b3 in c3[ok]:
+                    for d in (1.0, -1.0):
+                        srcs.append(src)
+                        dsts.append(np.array([pos[b1], pos[b2], pos[b3]]))
+                        want.append(d)
+    ops: list[np.ndarray] = []
+    perms: list[np.ndarray] = []
+    keys: set[bytes] = set()
+    if srcs:
+        # every trial rotation fitted and matched at once; the looser second try one by one
+        rots = _kabsch_many(np.array(srcs), np.array(dsts), np.array(want))
+        # a few atoms spread over the unit first: a trial that moves one of them too far fails anyway
+        few = np.unique(np.linspace(0, n - 1, min(n, 8)).astype(int))
+        dd, _ = tree.query((pos[few][None] @ np.transpose(rots, (0, 2, 1))).reshape(-1, 3))
+        rots = rots[dd.reshape(len(rots), -1).max(axis=1) <= 3 * tol]
+        moved = pos[None] @ np.transpose(rots, (0, 2, 1))
+        d, j = tree.query(moved.reshape(-1, 3))
+        d, j = d.reshape(len(rots), -1), j.reshape(len(rots), -1)
+        srt = np.sort(j, axis=1)
+        paired = np.all(numbers[j] == numbers[None], axis=1) & np.all(srt[:, 1:] != srt[:, :-1], axis=1)
+        good = paired & (d.max(axis=1) <= tol)
+        loose = paired & (d.max(axis=1) <= 3 * tol)
+        for t, r in enumerate(rots):
+            p = j[t] if good[t] else None
+            if p is None:
+                # three nearby atoms fix the rotation only roughly when the positions are noisy:
+                # pair the atoms under a looser bound, fit the rotation to all of them, check again
+                if not loose[t]:
+                    continue
+                r = _kabsch(pos, pos[j[t]], np.linalg.det(r))
                 p = _match(r, pos, numbers, tree, tol)
                 if p is None:
-                    # three nearby atoms fix the rotation only roughly when the positions are noisy:
-                    # pair the atoms under a looser bound, fit the rotation to all of them, check again
-                    p = _match(r, pos, numbers, tree, 3 * tol)
-                    if p is None:
-                        continue
-                    r = _kabsch(pos, pos[p], np.linalg.det(r))
-                    p = _match(r, pos, numbers, tree, tol)
-                    if p is None:
-                        continue
-                key = p.tobytes() + (b"+" if np.linalg.det(r) > 0 else b"-")
-                if key in keys:
                     continue
-                keys.add(key)
-                ops.append(r)
-                perms.append(p)
+            key = p.tobytes() + (b"+" if np.linalg.det(r) > 0 else b"-")
+            if key in keys:
+                continue
+            keys.add(key)
+            ops.append(r)
+            perms.append(p)
     if not ops:  # pragma: no cover - the identity always matches
         raise SymmetryError("no symmetry operation found, not even the identity")
     return np.array(ops), np.array(perms)
+
+
+def _closed(perms: np.ndarray, dets: np.ndarray) -> bool:
+    """True when every product of two elements (permutation, sign of det) is already an element.
+
+    Rows are found by a hash and then compared whole, so a false "closed" cannot come from a collision.
+    """
+    n = perms.shape[1]
+    rows = np.column_stack([perms, dets > 0]).astype(np.int64)
+    prod = np.empty((len(perms) ** 2, n + 1), dtype=np.int64)
+    prod[:, :n] = perms[:, perms].reshape(-1, n)  # row (i, j): apply j, then i
+    prod[:, n] = ((dets[:, None] * dets[None]) > 0).reshape(-1)
+    weights = np.random.default_rng(0).integers(1, 2**62, size=n + 1, dtype=np.int64)
+    with np.errstate(over="ignore"):
+        h_rows, h_prod = rows @ weights, prod @ weights
+    order = np.argsort(h_rows)
+    at = order[np.clip(np.searchsorted(h_rows[order], h_prod), 0, len(rows) - 1)]
+    return bool(np.all(rows[at] == prod))
 
 
 def _refine(ops: np.ndarray, perms: np.ndarray, pos: np.ndarray, *, rounds: int = 60):
@@ -291,7 +344,9 @@ def _refine(ops: np.ndarray, perms: np.ndarray, pos: np.ndarray, *, rounds: int 
     dets = [1.0 if np.linalg.det(r) > 0 else -1.0 for r in ops]
     elements = [(p, d) for p, d in zip(perms, dets, strict=True)]
     keys = {p.tobytes() + str(d).encode() for p, d in elements}
-    changed = True
+    changed = not _closed(perms, np.array(dets))  # the search usually finds the whole group
+    if not changed and len(elements) > 240:
+        raise SymmetryError("tolerance is too loose: the atom permutations do not form a point group")
     while changed:
         changed = False
         for p, d in list(elements):
@@ -305,15 +360,16 @@ def _refine(ops: np.ndarray, perms: np.ndarray, pos: np.ndarray, *, rounds: int 
         if len(elements) > 240:
             raise SymmetryError("tolerance is too loose: the atom permutations do not form a point group")
     perms = np.array([p for p, _ in elements])
-    dets = [d for _, d in elements]
+    dets = np.array([d for _, d in elements])
     sym = pos.copy()
     for _ in range(rounds):
-        mats = np.array([_kabsch(sym, sym[p], d) for p, d in zip(perms, dets, strict=True)])
-        new = np.mean([(sym[p]) @ m for p, m in zip(perms, mats, strict=True)], axis=0)
+        images = sym[perms]  # (G, n, 3)
+        mats = _kabsch_many(np.broadcast_to(sym, images.shape), images, dets)
+        new = np.mean(images @ mats, axis=0)
         # new_i = 1/|G| sum_g R_g^-1 r_{p_g(i)}
         if np.max(np.abs(new - sym)) < 1e-13:
             sym = new
             break
         sym = new
-    mats = np.array([_kabsch(sym, sym[p], d) for p, d in zip(perms, dets, strict=True)])
+    mats = _kabsch_many(np.broadcast_to(sym, (len(perms), *sym.shape)), sym[perms], dets)
     return mats, perms, sym
