@@ -13,7 +13,10 @@ Timings:
 * fcc C60 and the salt K2PtCl6 (Fm-3m, PtCl6^2- octahedra on the Oh sites, K+ on the Td
   sites; a = 9.75 A, Cl at (0.24, 0, 0): values from memory, a timing input only) to index 16,
   first in a process (the subgroup search runs) and then again (the subgroups of the space
-  group are reused; the candidates are predicted again).
+  group are reused; the candidates are predicted again);
+* the large-index cases as whole commands: CO2 (Pa-3) to index 48 (171 subgroups, predicted),
+  and a 20-atom P1 cell (invented positions) to index 48, refused at once with the
+  ``--max-index`` that fits (thousands of sublattices, each a candidate).
 
 The last test prints every mean.
 """
@@ -117,6 +120,48 @@ def test_lower_to_index_16(case: str, tmp_path: Path, benchmark) -> None:
     assert got["candidates"] > 0
     _MEANS[f"{case} index 16 first"] = got["first"]
     _MEANS[f"{case} index 16 again"] = got["again"]
+    print("\n" + "\n".join(f"lower {k}: {v:.2f} s" for k, v in _MEANS.items()))
+
+
+def p1_cell(folder: Path) -> Path:
+    """A 20-atom cell without symmetry (invented positions on a jittered grid), as CIF."""
+    import itertools
+
+    import numpy as np
+    from ase import Atoms
+
+    rng = np.random.default_rng(5)
+    grid = np.array(list(itertools.product(range(3), range(3), range(3))), dtype=float)[:20]
+    atoms = Atoms(
+        ["Na", "Cl"] * 10,
+        scaled_positions=(grid + 0.2 * rng.random(grid.shape)) / 3,
+        cell=[[9.1, 0, 0], [0.8, 9.6, 0], [0.5, 0.3, 10.2]],
+        pbc=True,
+    )
+    path = folder / "p1_20.cif"
+    atoms.write(path, format="cif")
+    return path
+
+
+def _command(path: Path, max_index: int) -> subprocess.CompletedProcess:
+    return subprocess.run(
+        [sys.executable, "-m", "splitting.cli", "lower", str(path), "--max-index", str(max_index)],
+        capture_output=True,
+        text=True,
+        check=False,
+        cwd=ROOT,
+    )
+
+
+@pytest.mark.parametrize("case", ["co2", "p1"])
+def test_lower_to_index_48(case: str, tmp_path: Path, benchmark) -> None:
+    path = ROOT / "structures" / "co2_Pa-3.cif" if case == "co2" else p1_cell(tmp_path)
+    done = benchmark.pedantic(_command, args=(path, 48), rounds=1, iterations=1)
+    if case == "co2":
+        assert done.returncode == 0, done.stderr
+    else:
+        assert done.returncode == 2 and "give --max-index" in done.stderr, done.stderr
+    _record(f"{case} index 48 command", benchmark)
     print("\n" + "\n".join(f"lower {k}: {v:.2f} s" for k, v in _MEANS.items()))
 
 

@@ -14,7 +14,8 @@ def pytest_collect_file(file_path: Path, parent: pytest.Collector) -> pytest.Mod
 
 
 def pytest_addoption(parser: pytest.Parser, pluginmanager: pytest.PytestPluginManager) -> None:
-    # ``make bench`` passes ``-p no:doctest`` while pyproject's addopts carry ``--doctest-modules``;
-    # with the doctest plugin blocked that option would be unknown, so accept and ignore it here
+    # the documented commands pass ``-p no:doctest`` while pyproject's addopts carry ``--doctest-modules``
+    # and ``--doctest-glob``; with the doctest plugin blocked those would be unknown, so accept and ignore them
     if not pluginmanager.has_plugin("doctest"):
         parser.addoption("--doctest-modules", action="store_true", help="ignored: the doctest plugin is disabled")
+        parser.addoption("--doctest-glob", action="append", default=[], help="ignored: the doctest plugin is disabled")

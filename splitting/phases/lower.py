@@ -8,8 +8,11 @@ of the ``m`` translation cosets; a choice is kept when the operations close modu
 ones, and the rest are t+k subgroups (International Tables for Crystallography, Vol. A1,
 describes the same two kinds of maximal subgroups).  Each candidate is realised as a
 structure: the parent (in the supercell ``L'``) with a small random displacement averaged
-over the candidate's operations, whose space group spglib then confirms, and the usual
-pipeline predicts its spectrum.
+over the candidate's operations.  When no other operation of the parent's group maps it onto
+itself, its space group is the candidate's exactly and one spglib search of a small skeleton
+names it (:func:`~splitting.crystal.spacegroup.cell_of_known_group`); otherwise spglib searches
+all its atoms.  The usual pipeline then predicts its spectrum.  The subgroup search itself is in
+:mod:`splitting.phases.sublattice`.
 """
 
 from __future__ import annotations
