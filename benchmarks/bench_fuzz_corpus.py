@@ -57,6 +57,7 @@ def run_corpus() -> dict:
         "cases": len(results),
         "seconds": round(time.monotonic() - start, 1),
         "slowest_s": round(max((s for _, _, s, _ in results), default=0.0), 1),
+        "slowest": [f"{n} ({s:.1f} s)" for n, _, s, _ in sorted(results, key=lambda r: -r[2])[:3]],
         "counts": {o: counts.get(o, 0) for o in OUTCOMES},
         "problems": [(name, outcome, detail) for name, outcome, _, detail in results if outcome not in GOOD],
     }
@@ -73,6 +74,6 @@ if __name__ == "__main__":
     summary = run_corpus()
     if len(sys.argv) > 1:
         Path(sys.argv[1]).write_text(json.dumps(summary, indent=1, ensure_ascii=False), encoding="utf-8")
-    print(json.dumps({k: summary[k] for k in ("cases", "seconds", "slowest_s", "counts")}, indent=1))
+    print(json.dumps({k: summary[k] for k in ("cases", "seconds", "slowest", "counts")}, indent=1, ensure_ascii=False))
     for name, outcome, detail in summary["problems"]:
         print(f"{outcome:15} {name}: {detail[:160]}")

@@ -246,7 +246,9 @@ def test_R23_version_and_help_on_dev_full(argv: list[str]) -> None:
     assert proc.stderr == "error: cannot write to standard output: no space left on the device\n"
 
 
-@pytest.mark.parametrize("argv", [["--version"], ["group", "Oh"], ["predict", str(CALCITE)]])
+@pytest.mark.parametrize(
+    "argv", [["--version"], ["--help"], ["predict", "--help"], ["group", "Oh"], ["predict", str(CALCITE)]]
+)
 def test_closed_standard_output_is_one_line(argv: list[str]) -> None:
     proc = subprocess.run(
         ["sh", "-c", 'exec "$@" >&-', "sh", sys.executable, "-m", "splitting", *argv],

@@ -54,8 +54,7 @@ class Parser(argparse.ArgumentParser):
         """Write help or usage text; a standard output that cannot take it is an error (exit 6)."""
         if not message:
             return
-        stream = file if file is not None else sys.stderr
-        write_or_exit(stream, message)
+        write_or_exit(file, message)  # argparse passes None for standard output when it is closed
 
 
 def write_or_exit(stream, text: str) -> None:
