@@ -55,6 +55,7 @@ class Case:
     files: dict[str, bytes] = field(default_factory=dict)
     output: str | None = None  # an output file the command must write whole or not at all
     stdout: str = "pipe"  # "pipe", "full" (/dev/full) or "closed": where standard output goes
+    refuse: bool = False  # the input is broken beyond reading: an answer (exit 0) is a silent misreading
 
     def materialise(self, folder: Path) -> list[str]:
         """Write the case's files into ``folder`` and return the command line with paths filled in."""
@@ -139,13 +140,18 @@ OUTCOMES = (
     "partial file",
     "raw text",
     "unit spelling",
+    "silently read",
     "clean error",
     "ok",
 )
 
 
 def judge(case: Case, code: int, out: str, err: str, folder: Path) -> str:
-    """The outcome of one finished run of ``case`` (one of :data:`OUTCOMES` but ``hang``)."""
+    """The outcome of one finished run of ``case`` (one of :data:`OUTCOMES` but ``hang``).
+
+    ``silently read``: an answer to an input that cannot be read as it is (a row with a value
+    too many, a count that is not the file's, text that is not UTF-8, a device).
+    """
     from splitting.errors import EXIT_CODES
 
     if "Traceback" in err:
@@ -167,6 +173,8 @@ def judge(case: Case, code: int, out: str, err: str, folder: Path) -> str:
     said = re.sub(r"'[^'\n]*'", "''", err)  # text quoted from the user's own input is theirs
     if UNIT_SPELLINGS.search(said) or re.search(r"(?<![_\w])angstrom|cm\^-1", out, flags=re.I):
         return "unit spelling"
+    if code == 0 and case.refuse:
+        return "silently read"
     return "ok" if code == 0 else "clean error"
 
 
