@@ -6,7 +6,7 @@ benchmarks/bench_fuzz_corpus.py, each case a separate process. Contract checked 
 error), one ``error:`` line on standard error and nothing on standard output when it fails, no
 partial output file, bounded time, no library's wording in the message (LIBRARY_PHRASES) and no
 unit spelled other than the trade's (UNIT_SPELLINGS). A standard output that is full or closed
-must be said (exit 6).
+must be said (exit 6), and an input marked `refuse` (unreadable as it is) must not get an answer.
 """
 
 from __future__ import annotations
