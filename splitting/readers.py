@@ -219,7 +219,7 @@ def _read_ase(p: Path, name: str, data: bytes, format: str | None):
         except MemoryError:
             raise InputError(f"{p}: the file asks for more memory than there is; it is damaged") from None
         except Exception as exc:  # ase raises many types for malformed files
-            raise InputError(f"{p}: cannot be read as a structure ({_plain(exc)})") from None
+            raise InputError(f"{p}: cannot be read as a structure ({_plain(exc, name, format)})") from None
     if isinstance(atoms, list):
         if not atoms:
             raise InputError(f"{p}: no structure found in the file")
@@ -227,8 +227,15 @@ def _read_ase(p: Path, name: str, data: bytes, format: str | None):
     return atoms
 
 
-def _plain(exc: Exception) -> str:
+#: names of the formats read through ase, by suffix (or file name), as the trade calls them
+_FORMAT_NAMES = {".vasp": "POSCAR", "poscar": "POSCAR", "contcar": "POSCAR", ".xyz": "XYZ", ".extxyz": "extended XYZ"}
+
+
+def _plain(exc: Exception, name: str = "", format: str | None = None) -> str:
     """What a reader's failure says about the file, in the file's terms (never the reader's words)."""
     from ._reasons import reason
 
-    return reason(exc, "the file does not follow the format")
+    lower = name.lower()
+    known = _FORMAT_NAMES.get(Path(lower).suffix) or _FORMAT_NAMES.get(lower.split(".")[0]) or format
+    default = f"the file does not follow the {known} format" if known else "the file does not follow its format"
+    return reason(exc, default)

@@ -66,6 +66,7 @@ CASES = [
         "line 5: 3 values",
     ),
     ("xyz-extra", "x.xyz", H2O.read_bytes().replace(b"-0.520318", b"-0.520318 7", 1), "molecule", "line 4: 5 values"),
+    ("vasp-short", "x.vasp", b"x\n1.0\n4 0 0\n0 4 0\n", "predict", "does not follow the POSCAR format"),
     ("peaks-utf16", "p.csv", RAMAN.read_text(encoding="utf-8").encode("utf-16"), "peaks", "UTF-16"),
     ("peaks-latin1", "p.csv", RAMAN.read_bytes().replace(b"invented A", b"invent\xe9 A"), "peaks", "line 4"),
     ("spectrum-utf16", "s.jdx", JDX.read_text(encoding="utf-8").encode("utf-16"), "spectrum", "UTF-16"),

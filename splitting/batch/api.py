@@ -180,7 +180,9 @@ def screen(
         except OSError as exc:  # a list file may name files that are gone: a failure row, not a stop
             key = structure_key(f"unreadable:{p}".encode(), text)
             inputs.append((p, key))
-            missing.append((p, f"{p}: cannot be read ({exc.strerror or exc})"))
+            from .._io import _os_reason
+
+            missing.append((p, f"{p}: cannot be read ({_os_reason(exc)})"))
     done = store.committed_keys()
     unreadable = {p for p, _ in missing}
     todo: list[tuple[str, str]] = []
