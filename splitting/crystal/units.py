@@ -10,6 +10,7 @@ framework: its atoms are treated one by one.
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -60,13 +61,15 @@ class Unit:
     numbers: np.ndarray = field(repr=False)
     kind: str
 
-    @property
+    @functools.cached_property
     def centre(self) -> np.ndarray:
-        """Mass-weighted centre (angstrom)."""
+        """Mass-weighted centre (angstrom; computed once, read-only)."""
         from ase.data import atomic_masses
 
         m = atomic_masses[self.numbers]
-        return m @ self.positions / m.sum()
+        c = m @ self.positions / m.sum()
+        c.setflags(write=False)
+        return c
 
     @property
     def symbols(self) -> list[str]:
@@ -75,9 +78,9 @@ class Unit:
 
         return [chemical_symbols[z] for z in self.numbers]
 
-    @property
+    @functools.cached_property
     def formula(self) -> str:
-        """Hill formula."""
+        """Hill formula (computed once)."""
         from ..molecule.analysis import hill_formula
 
         return hill_formula(self.symbols)
