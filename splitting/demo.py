@@ -161,7 +161,7 @@ def _run_demo_into(folder: Path) -> list[Path]:
         "lines should each split into three infrared components and five Raman-active librations should "
         "appear below ~40 cm-1.",
         f"Candidate ordered phases from the one-orientation fcc model, ranked by the invented 90 K infrared "
-        f"counts: best {ranking.candidates[0].space_group[1]} (see candidates.txt).",
+        f"counts: best {ranking.candidates[0].symbol} (see candidates.txt).",
         "After the run: "
         + "; ".join(
             f"{r.technique}: {len(r.lines) - len(r.unexplained)} of {len(r.lines)} lines explained" for r in explained

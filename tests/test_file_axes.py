@@ -16,6 +16,7 @@ tests check does not depend on the exact coordinates, only on the space group.
 from __future__ import annotations
 
 import itertools
+import re
 from pathlib import Path
 
 import ase.io
@@ -314,7 +315,40 @@ def test_lower_names_the_parent_in_the_files_setting(run_cli, tmp_path: Path) ->
     assert rc == 0, err
     head, second = out.splitlines()[:2]
     assert head.startswith("Parent Pmcn (No. 62; standard setting Pnma)")
-    assert "in its own standard setting" in second
+    assert second.startswith("Candidates: named and labelled in the file's axes")
     rc, out, err = run_cli(["predict", str(path)])
     assert "space group Pmcn (No. 62, D2h^16; standard setting Pnma)" in out
     assert "site symbols in the file's axes" in out
+
+
+def test_lower_candidates_in_the_files_axes(aragonite) -> None:
+    """Below a Pmcn file every candidate's cell is the file's (same a, b, c), and each polar C2v
+    candidate is named with its two-fold axis where the site group's z lies: P2_1cn (z = a),
+    Pm2_1n (z = b), Pmc2_1 (z = c) - the three mm2 settings of the subgroups of Pnma written on
+    the file's axes (ITA Vol. A, No. 62, maximal subgroups, from memory; checked here by the axes)."""
+    from splitting.phases.lower import lower
+
+    base, _ = aragonite
+    found = lower(atoms=base, max_index=2)
+    assert found.parent.symbol == "Pmcn"
+    given = base.cell.cellpar()[:3]
+    polar = {}
+    for c in found.candidates:
+        assert np.allclose(c.prediction.cell_parameters[:3], given, atol=1e-3), c.name
+        if c.point_group == "C2v":
+            polar[c.symbol] = c.prediction.factor_axes["z"]
+            two = [k for k, part in enumerate(re.findall(r"2_1|2|[a-z]", c.symbol[1:])) if part.startswith("2")]
+            assert "abc"[two[0]] == c.prediction.factor_axes["z"], c.name
+    assert polar == {"P2_1cn": "a", "Pm2_1n": "b", "Pmc2_1": "c"}
+    names = {c.name for c in found.candidates}
+    assert {"P2_1cn (33, Pna2_1)", "Pm2_1n (31, Pmn2_1)", "Pmc2_1 (26)"} <= names
+    # the counts do not depend on the axes they are written in
+    std = lower(atoms=base, max_index=2, options=Options(standard_axes=True))
+
+    def counts(result):
+        return sorted(
+            (c.space_group[0], sorted((s.dimension, s.optical) for s in c.prediction.species))
+            for c in result.candidates
+        )
+
+    assert counts(found) == counts(std)

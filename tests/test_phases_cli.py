@@ -66,6 +66,7 @@ def test_lower_text_and_json(run_cli):
     assert d["parent"]["space_group"]["number"] == 215
     keys = {
         "space_group",
+        "label_symbol",
         "kind",
         "index",
         "factor_group",

@@ -17,7 +17,6 @@ all its atoms.  The usual pipeline then predicts its spectrum.  The subgroup sea
 
 from __future__ import annotations
 
-import itertools
 import os
 from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
@@ -108,6 +107,18 @@ class Candidate:
     variants: int = 1
     realised: bool = True
 
+    @property
+    def symbol(self) -> str:
+        """Short symbol in the setting its labels use: the file's axes where the candidate's cell is
+        a multiple of the file's cell (``"P2_1cn"`` below a Pmcn file), else its standard setting."""
+        return self.prediction.symbol
+
+    @property
+    def name(self) -> str:
+        """``"P2_1cn (33, Pna2_1)"``: the symbol in the labels' setting, the number, the standard symbol."""
+        number, standard = self.space_group
+        return f"{self.symbol} ({number})" if self.symbol == standard else f"{self.symbol} ({number}, {standard})"
+
     def bands(self) -> list[BandState]:
         """Every band in this candidate."""
         return self._phase().bands()
@@ -123,6 +134,7 @@ class Candidate:
         """JSON-ready form."""
         return {
             "space_group": {"number": self.space_group[0], "symbol": self.space_group[1]},
+            "label_symbol": self.symbol,
             "kind": self.kind,
             "index": self.index,
             "factor_group": self.point_group,
@@ -179,8 +191,7 @@ def _realise(cell: CellSymmetry, m: np.ndarray, ops: list[tuple[np.ndarray, np.n
     from ase import Atoms
 
     lat = m @ cell.lattice
-    a, c, f = int(m[0, 0]), int(m[1, 1]), int(m[2, 2])
-    cosets = [np.array(u) for u in itertools.product(range(a), range(c), range(f))]
+    cosets = coset_vectors(m)
     cart = np.concatenate([(cell.frac + u) @ cell.lattice for u in cosets])
     numbers = np.tile(cell.numbers, len(cosets))
     inv = np.linalg.inv(lat)
@@ -716,6 +727,7 @@ def _candidate(
     source: str,
     seed: int,
 ) -> Candidate:
+    m = _along_file_axes(cell, m)
     atoms, fixed, shift = _realise(cell, m, ops, seed)
     kind = "t" if mult == 1 else ("k" if point_index == 1 else "t+k")
     supercell = tuple(tuple(int(x) for x in r) for r in m)
@@ -731,6 +743,40 @@ def _candidate(
     return Candidate(
         kind, point_index * mult, pred.factor_group, mult, supercell, (sg.number, sg.symbol), pred, realised=realised
     )
+
+
+def _along_file_axes(cell: CellSymmetry, m: np.ndarray) -> np.ndarray:
+    """Another basis of the supercell ``m`` (rows in the parent's primitive basis) whose vectors run
+    along the file's a, b, c (multiples of them), when the supercell has one; else ``m`` itself.
+
+    The candidate is then described, and its labels, components and site symbols written, in the
+    axes of the file; a supercell that is no multiple of the file's cell (half of a centred cell, a
+    rotated cell) keeps the parent's primitive axes.
+    """
+    if cell.given_lattice is None or cell.standard_axes:
+        return m
+    from fractions import Fraction
+    from math import lcm
+
+    lat = m @ cell.lattice
+    inv = np.linalg.inv(lat)
+    steps = []
+    for axis in np.asarray(cell.given_lattice, dtype=float):
+        coeffs = axis @ inv  # the file's axis in the supercell's basis
+        den = 1
+        for x in coeffs:
+            f = Fraction(float(x)).limit_denominator(64)
+            if abs(float(f) - x) > 1e-6:
+                return m
+            den = lcm(den, f.denominator)
+        steps.append(den)
+    new = np.array(steps, dtype=float)[:, None] * np.asarray(cell.given_lattice, dtype=float)
+    if abs(abs(np.linalg.det(new)) - abs(np.linalg.det(lat))) > 1e-6 * abs(np.linalg.det(lat)):
+        return m  # the multiples of the file's axes span a smaller lattice than the supercell
+    t = new @ inv
+    if np.abs(t - np.rint(t)).max() > 1e-6:
+        return m
+    return np.rint(t).astype(int) @ np.asarray(m, dtype=int)
 
 
 def _predict_known(
@@ -785,8 +831,7 @@ def _predict_from_operations(
     from ..crystal.predict import _predict, units_of
     from ..crystal.spacegroup import cell_from_operations
 
-    a, c, f = int(m[0, 0]), int(m[1, 1]), int(m[2, 2])
-    cosets = [np.array(u) for u in itertools.product(range(a), range(c), range(f))]
+    cosets = coset_vectors(m)
     lat = m @ cell.lattice
     cart = np.concatenate([(cell.frac + u) @ cell.lattice for u in cosets])
     frac = cart @ np.linalg.inv(lat)

@@ -167,14 +167,20 @@ def close_operations(
 
 
 def coset_vectors(m: np.ndarray) -> np.ndarray:
-    """Integer vectors (rows) of the primitive lattice, one per coset of the sublattice ``m`` (HNF rows).
+    """Integer vectors (rows) of the primitive lattice, one per coset of the sublattice with basis ``m``
+    (rows; any basis, its Hermite normal form is taken when it is not triangular).
 
     Examples
     --------
     >>> coset_vectors(np.array([[2, 0, 0], [1, 1, 0], [0, 0, 1]])).tolist()
     [[0.0, 0.0, 0.0], [1.0, 0.0, 0.0]]
+    >>> coset_vectors(np.array([[0, 1, 0], [2, 0, 0], [0, 0, 1]])).tolist()
+    [[0.0, 0.0, 0.0], [1.0, 0.0, 0.0]]
     """
-    a, c, f = int(m[0, 0]), int(m[1, 1]), int(m[2, 2])
+    m = np.asarray(m)
+    if np.any(np.triu(m, 1)) and np.any(np.tril(m, -1)):
+        m = hermite_normal_form(m)
+    a, c, f = (abs(int(m[k, k])) for k in range(3))
     return np.array(list(itertools.product(range(a), range(c), range(f))), dtype=float).reshape(-1, 3)
 
 

@@ -66,7 +66,7 @@ def _lowering(low: Any) -> list[str]:
     ]
     for c in low.candidates[:3]:
         score = "" if c.score is None else f", misfit {c.score:.3g}"
-        out.append(f"  {c.space_group[1]} (No. {c.space_group[0]}), index {c.index}{score}")
+        out.append(f"  {c.name}, index {c.index}{score}")
     if len(low.candidates) > 3:
         out.append(f"  ... {len(low.candidates) - 3} more")
     return out

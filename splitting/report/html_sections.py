@@ -18,6 +18,7 @@ from ..crystal.names import unit_name
 from ..plot.mulliken import formula_html, hermann_mauguin_html, schoenflies_html
 from ..plot.mulliken import html as species_html
 from ._htmlkit import MARK_IR, MARK_RAMAN, geometry_html, rep_html, table
+from .text import CANDIDATE_AXES
 
 if TYPE_CHECKING:  # pragma: no cover
     from ..crystal.results import CrystalPrediction, UnitOrbit
@@ -66,6 +67,9 @@ def _number(x: Any) -> str:
         return f"{float(x):g}"
     except (TypeError, ValueError):
         return escape(str(x))
+
+
+_CANDIDATE_AXES = "Candidates are " + escape(CANDIDATE_AXES) + "."
 
 
 def standard_beside_html(pred) -> str:
@@ -417,11 +421,12 @@ def candidates_section(lowering: Lowering | None, *, limit: int = 12) -> str:
     cands = lowering.candidates[:limit]
     rows = []
     for k, c in enumerate(cands, 1):
-        number, symbol = c.space_group
+        number, standard = c.space_group
+        beside = "" if c.symbol == standard else f", {hermann_mauguin_html(standard)}"
         rows.append(
             [
                 str(k),
-                f"{hermann_mauguin_html(symbol)} (No. {number})",
+                f"{hermann_mauguin_html(c.symbol)} (No. {number}{beside})",
                 schoenflies_html(c.point_group),
                 escape(c.kind),
                 str(c.index),
@@ -439,8 +444,7 @@ def candidates_section(lowering: Lowering | None, *, limit: int = 12) -> str:
         f"<p>Subgroups of {hermann_mauguin_html(parent.symbol)} (No. {parent.space_group.number}"
         f"{standard_beside_html(parent)}) "
         f"of {escape(file_name(parent.source))} up to index {lowering.max_index}: t (same cell, fewer "
-        f"rotations), k (same rotations, larger cell or no centring) or both; each named and its sites "
-        f"lettered in its own standard setting.{obs}{tail}</p>"
+        f"rotations), k (same rotations, larger cell or no centring) or both. {_CANDIDATE_AXES}{obs}{tail}</p>"
         + table(
             ["rank", "space group", "factor group", "kind", "index", "cell &times;", "misfit", "where it disagrees"],
             rows,

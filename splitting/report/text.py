@@ -422,9 +422,16 @@ def lowering_rows(result, *, limit: int = 40) -> list[list[object]]:
                 f"{lat['translational_raman'] + lat['librational_raman']}"
             )
         score = "-" if c.score is None else f"{c.score:g}"
-        group = f"{c.space_group[1]} ({c.space_group[0]})"
+        group = c.name
         rows.append([k, group, c.kind, c.index, c.point_group, sites, bands, score])
     return rows
+
+
+#: how candidate phases are named and labelled (text and HTML)
+CANDIDATE_AXES = (
+    "named and labelled in the file's axes where the cell is a multiple of the file's "
+    "(else in the parent's primitive axes; standard symbol beside); Wyckoff letters of the standard setting"
+)
 
 
 def lowering_text(result, *, limit: int = 40) -> str:
@@ -434,9 +441,10 @@ def lowering_text(result, *, limit: int = 40) -> str:
         f"Parent {p.symbol} (No. {p.space_group.number}{_standard_beside(p)}), factor group {p.factor_group}; "
         f"candidates up to index {result.max_index}: {len(result.candidates)}"
     ]
-    if result.candidates:
-        lines.append("Candidates: each named, and its sites lettered, in its own standard setting")
     import textwrap
+
+    if result.candidates:
+        lines += textwrap.wrap(f"Candidates: {CANDIDATE_AXES}", width=96, subsequent_indent="  ")
 
     from ..phases.disorder import STATE_MEANING
 
@@ -469,7 +477,7 @@ def lowering_text(result, *, limit: int = 40) -> str:
         lines.append("")
         for k, c in enumerate(result.candidates[:limit], 1):
             if c.reasons:
-                lines.append(f"  #{k} {c.space_group[1]}: " + "; ".join(c.reasons))
+                lines.append(f"  #{k} {c.symbol}: " + "; ".join(c.reasons))
     return "\n".join(lines)
 
 
