@@ -257,3 +257,14 @@ def test_closed_standard_output_is_one_line(argv: list[str]) -> None:
     )
     assert proc.returncode == 6, proc.stderr
     assert proc.stderr.startswith("error: cannot write to standard output") and proc.stderr.count("\n") == 1
+
+
+@pytest.mark.parametrize(
+    "argv",
+    [["molecule", H2O, "--tolerance", "1e-300"], ["predict", CALCITE, "--unit-tolerance", "1e-300"]],
+    ids=["molecule", "predict"],
+)
+def test_a_tolerance_below_the_coordinates_precision_is_one_line(argv, run_cli) -> None:
+    """Found by the fuzz corpus: no trial rotation left at 1e-300 Å was an internal error."""
+    err = _one_error_line(*run_cli(argv), expected=3)
+    assert "not even the identity" in err and "1e-300 Å" in err

@@ -293,7 +293,7 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
         rots = rots[dd.reshape(len(rots), -1).max(axis=1) <= 3 * tol]
         moved = pos[None] @ np.transpose(rots, (0, 2, 1))
         d, j = tree.query(moved.reshape(-1, 3))
-        d, j = d.reshape(len(rots), -1), j.reshape(len(rots), -1)
+        d, j = d.reshape(len(rots), n), j.reshape(len(rots), n)  # no trial left: (0, n), not an error
         srt = np.sort(j, axis=1)
         paired = np.all(numbers[j] == numbers[None], axis=1) & np.all(srt[:, 1:] != srt[:, :-1], axis=1)
         good = paired & (d.max(axis=1) <= tol)
@@ -315,8 +315,11 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
             keys.add(key)
             ops.append(r)
             perms.append(p)
-    if not ops:  # pragma: no cover - the identity always matches
-        raise SymmetryError("no symmetry operation found, not even the identity")
+    if not ops:  # a tolerance below the precision of the coordinates (1e-300 Å): not even the identity matches
+        raise SymmetryError(
+            f"no symmetry operation found at the symmetry tolerance {tol:g} Å, not even the identity; "
+            "give a larger tolerance"
+        )
     return np.array(ops), np.array(perms)
 
 
