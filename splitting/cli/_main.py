@@ -10,7 +10,7 @@ from collections.abc import Sequence
 
 from ..errors import OutputError, SplittingError
 from . import crystal, estimate, groups, outputs, phases, screen, spectra
-from ._parser import Parser, VersionAction
+from ._parser import Parser, VersionAction, _silence
 
 __all__ = ["build_parser", "main"]
 
@@ -118,15 +118,7 @@ class _GuardedStdout:
         return output_error("to standard output", exc)
 
     def silence(self) -> None:
-        try:
-            fd = self._stream.fileno()
-        except (OSError, ValueError, AttributeError):  # a test's captured stream: nothing to do
-            return
-        devnull = os.open(os.devnull, os.O_WRONLY)
-        try:
-            os.dup2(devnull, fd)
-        finally:
-            os.close(devnull)
+        _silence(self._stream)  # a test's captured stream has no descriptor: nothing to do
 
 
 if __name__ == "__main__":  # pragma: no cover
