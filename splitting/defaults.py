@@ -41,8 +41,8 @@ DEFAULT_CUTOFF = 12.0
 #: full width at half maximum of every line of the simulated spectra, cm-1 (a typical width of
 #: lines of molecular crystals at low temperature; common practice)
 DEFAULT_SPECTRUM_WIDTH = 3.0
-#: names of the exp-6 parameter sets of the model estimate (splitting.dynamics.potential)
-POTENTIAL_NAMES = ("williams", "gavezzotti")
+#: names of the atom-atom parameter sets of the model estimate (splitting.dynamics.potential)
+POTENTIAL_NAMES = ("williams", "gavezzotti", "epm2", "trappe")
 
 # Upper bounds of the numeric options.  Beyond them an answer is either meaningless or
 # costs minutes: a symmetry tolerance of 1e6 angstrom makes every molecule linear, a bond

@@ -244,6 +244,8 @@ _TEXT_OPTIONS = [
     ("predict", "--charge", ["CO3=abc", "CO3", "CO3=nan", "Xx=1"]),
     ("predict", "--geometry", ["abc", "x(yz)x", ""]),
     ("predict", "--potential", ["nosuch"]),
+    ("estimate", "--potential", ["epm2", "trappe"]),  # fitted to CO2 only: calcite refused
+    ("estimate", "--charges", ["set", "nosuch"]),  # the default set has no charges of its own
     ("predict", "--format", ["pdf"]),
     ("group", "--to", ["", "C99", "-1"]),
     ("lower", "--observed", ["nu1:ir=abc", "nu9:raman=2", "nu1=2", "nu1:uv=1", "nu1:ir=-3"]),

@@ -22,7 +22,9 @@ distributed charges on the atoms and bond centres fitted to the measured quadrup
 published hexadecapole (``charges="distributed"``, tests/test_dynamics_sites.py; the
 hexadecapole, -4.0 x 10^-42 esu cm^4, from C. G. Gray and K. E. Gubbins, Theory of
 Molecular Fluids, vol. 1 (1984), its table of multipole moments, from memory); that is
-recorded as a strict xfail, for all three.
+recorded as a strict xfail, for all three.  With a parameter set fitted to CO2 (the
+Lennard-Jones sets ``epm2`` and ``trappe`` with their own charges) the goal is met
+(tests/test_dynamics_co2_sets.py).
 """
 
 from __future__ import annotations
@@ -158,6 +160,14 @@ def test_naphthalene_raman_lattice_modes_median_within_20_percent(naphthalene):
     ratios = _naphthalene_ratios(naphthalene)
     assert abs(np.median(ratios) - 1) < 0.2, ratios
     assert all(0.5 < r < 2.0 for r in ratios), ratios
+
+
+def test_spread_over_the_sets_that_cover_the_crystal(co2, naphthalene):
+    """The CO2 sets enter the spread of CO2 only, and the default output points to them there."""
+    assert "'gavezzotti'" in naphthalene.uncertainty_rule and "epm2" not in naphthalene.uncertainty_rule
+    assert "'epm2', 'trappe'" in co2.uncertainty_rule and "gavezzotti" not in co2.uncertainty_rule
+    assert any("sets fitted to it" in w and "epm2 or trappe" in w for w in co2.warnings)
+    assert not any("sets fitted to it" in w for w in naphthalene.warnings)
 
 
 def test_naphthalene_raman_lattice_modes_are_librations(naphthalene):

@@ -75,14 +75,20 @@ def model_options(p: argparse.ArgumentParser, prefix: str = "") -> None:
     Defaults are None (filled in by :func:`model_from`), so a command can tell a choice
     given without ``--estimate`` and refuse it.
     """
-    p.add_argument("--potential", choices=list(POTENTIAL_NAMES), help=f"{prefix}exp-6 parameter set (default williams)")
+    p.add_argument(
+        "--potential",
+        choices=list(POTENTIAL_NAMES),
+        help=f"{prefix}atom-atom parameter set (default williams, exp-6; gavezzotti exp-6 for C and H; epm2 and "
+        "trappe Lennard-Jones for CO2 only)",
+    )
     p.add_argument(
         "--charges",
-        choices=["all", "auto", "none", "quadrupole", "distributed"],
+        choices=["all", "auto", "none", "quadrupole", "distributed", "set"],
         help=f"{prefix}point charges: every atom's tight-binding charge (default), only charged units, none, "
         "quadrupole (tight-binding charges, those of a unit with a bundled measured quadrupole moment, e.g. CO2, "
-        "scaled to reproduce it) or distributed (tight-binding charges, a unit with a bundled distributed-charge "
-        "model, e.g. CO2, given charges on its atoms and bond centres fitted to its quadrupole and hexadecapole)",
+        "scaled to reproduce it), distributed (tight-binding charges, a unit with a bundled distributed-charge "
+        "model, e.g. CO2, given charges on its atoms and bond centres fitted to its quadrupole and hexadecapole) "
+        "or set (the charges published with the --potential set, e.g. epm2)",
     )
     p.add_argument("--charge", action="append", metavar="FORMULA=Q", help=f"{prefix}total charge of a unit; repeatable")
     p.add_argument(

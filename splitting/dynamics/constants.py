@@ -14,6 +14,8 @@ HARTREE = 27.211386245988
 KCAL_MOL = 0.0433641043
 #: 1 kJ/mol in eV
 KJ_MOL = 0.0103642688
+#: Boltzmann constant in eV/K (an energy given as eps/k in kelvin)
+KELVIN = 8.617333262e-5
 #: Coulomb constant e^2 / (4 pi eps0) in eV angstrom
 COULOMB = 14.3996454784
 #: sqrt(eV / (angstrom^2 amu)) expressed as a wavenumber in cm-1

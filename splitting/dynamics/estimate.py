@@ -22,7 +22,7 @@ from .coulomb import COULOMB_METHODS
 from .dynmat import build_cell_model, dynamical_matrix
 from .freeunit import METHOD
 from .neutron import neutron_weight
-from .potential import DEFAULT_CUTOFF, PARAMETER_SETS
+from .potential import DEFAULT_CUTOFF, PARAMETER_SETS, sets_covering
 from .results import BandEstimate, Estimate, Line
 from .species import atom_permutations, origin_weights, species_bases, split_by_species
 
@@ -38,7 +38,7 @@ LATTICE_RULE = 0.20
 #: uncertain by about half its size (common practice)
 INTERNAL_RULE = 0.5
 #: the point-charge choices (``EstimateOptions.charges``)
-CHARGE_CHOICES = ("all", "auto", "none", "quadrupole", "distributed")
+CHARGE_CHOICES = ("all", "auto", "none", "quadrupole", "distributed", "set")
 #: imaginary lines larger than this (cm-1) refuse the structure
 IMAGINARY_LIMIT = 3.0
 #: how the model text names each Coulomb sum
@@ -52,7 +52,7 @@ class EstimateOptions:
     Attributes
     ----------
     potential : str
-        Name of the exp-6 parameter set (see ``PARAMETER_SETS``).
+        Name of the atom-atom parameter set (see ``PARAMETER_SETS``).
     charges : str
         ``"all"`` (tight-binding partial charges of every atom, Ewald sum; the default, as
         Williams and Cox fitted their N and O parameters with charges), ``"auto"`` (only
@@ -61,7 +61,8 @@ class EstimateOptions:
         reproduce it; :mod:`splitting.dynamics.quadrupole`), or ``"distributed"`` (as ``"all"``,
         with a unit that has a bundled distributed-charge model, so far CO2, given charges on
         its atoms and on sites off them fitted to its quadrupole and hexadecapole;
-        :mod:`splitting.dynamics.sites`).
+        :mod:`splitting.dynamics.sites`), or ``"set"`` (the charges published with the
+        parameter set, on the atoms of the units it was fitted to; only for a set that has them).
     cutoff : float
         Lattice-sum cut-off (angstrom).
     scale_to_measured : bool
@@ -136,7 +137,7 @@ def estimate_atoms(
     opts = options or Options()
     mo = model or EstimateOptions()
     if mo.potential not in PARAMETER_SETS:
-        raise InputError(f"no exp-6 parameter set {mo.potential!r}; sets: {', '.join(PARAMETER_SETS)}")
+        raise InputError(f"no atom-atom parameter set {mo.potential!r}; sets: {', '.join(PARAMETER_SETS)}")
     if mo.charges not in CHARGE_CHOICES:
         raise InputError(
             f"charges must be {', '.join(CHARGE_CHOICES[:-1])} or {CHARGE_CHOICES[-1]}, not {mo.charges!r}"
@@ -146,6 +147,12 @@ def estimate_atoms(
     if not mo.cutoff > 0:
         raise InputError("the lattice-sum cut-off must be positive")
     params = PARAMETER_SETS[mo.potential]
+    if mo.charges == "set" and not params.charges:
+        with_charges = [name for name, ps in PARAMETER_SETS.items() if ps.charges]
+        raise InputError(
+            f"the {params.label} has no charges of its own; --charges set needs a set that has them "
+            f"({', '.join(with_charges)}) or another --charges"
+        )
     cell = analyse_cell(
         atoms.cell[:],
         atoms.get_scaled_positions(wrap=True),
@@ -156,14 +163,7 @@ def estimate_atoms(
     units = units_of(cell, opts)
     prediction = _predict(cell, units, opts, source)
     orbits = _orbits(cell, units)
-    for u in units:
-        for e in sorted(set(u.symbols)):
-            if e not in params.like:
-                raise InputError(
-                    f"unit {u.formula}: element {e} is not covered by the exp-6 set {params.name!r} "
-                    f"(it covers {', '.join(sorted(params.like))}); no estimate can be made for this crystal "
-                    "(the symmetry analysis needs no potential: predict, compare or explain without --estimate)"
-                )
+    _check_coverage(params, units)
     if progress:
         progress(f"{source}: {prediction.space_group.symbol}, {len(cell.numbers)} atoms, {len(units)} units")
     cm = build_cell_model(
@@ -188,8 +188,8 @@ def estimate_atoms(
             + "; give the charge of each ion with --charge FORMULA=Q"
         )
     charged = any(abs(float(np.sum(cm.charges[cm.unit_of == k]))) > 0.5 for k in range(len(units)))
-    use_charges = mo.charges in ("all", "quadrupole", "distributed") or (mo.charges == "auto" and charged)
-    cm, scaled_charges = _with_charge_model(cm, units, mo.charges)
+    use_charges = mo.charges in ("all", "quadrupole", "distributed", "set") or (mo.charges == "auto" and charged)
+    cm, scaled_charges = _with_charge_model(cm, units, mo.charges, params)
     relaxation = None
     if mo.relax or mo.relax_cell:
         from .relax import relax_structure
@@ -215,20 +215,27 @@ def estimate_atoms(
             scale_to_measured=mo.scale_to_measured,
             turns=turns,
         )
-        cm, scaled_charges = _with_charge_model(cm, units, mo.charges)
+        cm, scaled_charges = _with_charge_model(cm, units, mo.charges, params)
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     perms = atom_permutations(cell, cm.positions)
     bases = species_bases(cell, factor, perms, prediction.gamma_3n)
 
     def solve(ps):
         if progress:
-            progress(f"dynamical matrix with the exp-6 set {ps.name!r}")
-        dmat, energy = dynamical_matrix(cm, ps, cutoff=mo.cutoff, use_charges=use_charges, coulomb=mo.coulomb)
+            progress(f"dynamical matrix with the {ps.label}")
+        own = _set_charges(cm, units, ps)[0] if mo.charges == "set" else cm
+        dmat, energy = dynamical_matrix(own, ps, cutoff=mo.cutoff, use_charges=use_charges, coulomb=mo.coulomb)
         return split_by_species(dmat, cell, factor, perms, prediction.gamma_3n, bases), energy
 
     blocks, energy = solve(params)
+    # the spread: every other set that covers these elements and units (with --charges set, its own charges)
     elements = {e for u in units for e in u.symbols}
-    others = [ps for ps in PARAMETER_SETS.values() if ps.name != params.name and ps.covers(elements)]
+    formulas = {u.formula for u in units}
+    others = [
+        ps
+        for ps in PARAMETER_SETS.values()
+        if ps.name != params.name and ps.covers(elements, formulas) and (mo.charges != "set" or ps.charges)
+    ]
     alt = [solve(ps)[0] for ps in others]
     lines = _lines(cm, blocks, alt, prediction, units)
     acoustic = [line for line in lines if line.origin == "acoustic"]
@@ -242,8 +249,8 @@ def estimate_atoms(
         worst = min(bad, key=lambda line: line.wavenumber_cm1)
         raise InputError(
             f"unit {worst.unit}: the model has {len(bad)} imaginary line(s), down to {-worst.wavenumber_cm1:.0f}i "
-            f"cm-1 ({worst.origin}, {worst.species}): the structure is far from a minimum of the exp-6 set "
-            f"{params.name!r}; check the structure or try another --potential or --charges"
+            f"cm-1 ({worst.origin}, {worst.species}): the structure is far from a minimum of the "
+            f"{params.label}; check the structure or try another --potential or --charges"
             + ("" if relaxation else ", or relax it first (--relax, --relax-cell)")
             + " (--allow-imaginary shows the lines anyway)"
         )
@@ -252,6 +259,7 @@ def estimate_atoms(
         from .relax import warnings_of
 
         warnings += warnings_of(relaxation)
+    warnings += _fitted_sets_note(params, formulas)
     if bad:
         warnings.append(f"{len(bad)} imaginary line(s): the structure is not at a minimum of the model")
     slight = [ln for ln in lines if ln.origin != "acoustic" and -IMAGINARY_LIMIT <= ln.wavenumber_cm1 < -ZERO_CM1]
@@ -273,7 +281,7 @@ def estimate_atoms(
     model_text = (
         f"model: harmonic k = 0 lattice dynamics; free units {METHOD} (tblite)"
         + (" scaled to measured gas-phase fundamentals" if mo.scale_to_measured else "")
-        + f"; exp-6 set {params.name!r}, {mo.cutoff:g} Å cut-off"
+        + f"; {params.label}, {mo.cutoff:g} Å cut-off"
         + (_COULOMB_TEXT[mo.coulomb] if use_charges else "")
         + "".join(f"; {text}" for text in scaled_charges)
         + (
@@ -303,10 +311,68 @@ def estimate_atoms(
     )
 
 
-def _with_charge_model(cm, units, choice: str):
+def _check_coverage(params, units) -> None:
+    """Refuse a unit the set was not fitted to or has no parameters for, naming the sets that cover the crystal."""
+    elements = {e for u in units for e in u.symbols}
+    formulas = {u.formula for u in units}
+    for u in units:
+        missing = sorted(set(u.symbols) - set(params.like))
+        fitted = not params.units or u.formula in params.units
+        if not missing and fitted:
+            continue
+        covering = sets_covering(elements, formulas)
+        instead = (
+            f"sets that cover this crystal: {', '.join(covering)} (--potential)"
+            if covering
+            else "no estimate can be made for this crystal (the symmetry analysis needs no potential: "
+            "predict, compare or explain without --estimate)"
+        )
+        if not fitted:
+            raise InputError(
+                f"unit {u.formula}: the {params.label} was fitted to {', '.join(params.units)} only; {instead}"
+            )
+        raise InputError(
+            f"unit {u.formula}: element {missing[0]} is not covered by the {params.label} "
+            f"(it covers {', '.join(sorted(params.like))}); {instead}"
+        )
+
+
+def _fitted_sets_note(params, formulas: set[str]) -> list[str]:
+    """A note when a general set is used on units that have sets fitted to them (so far CO2; docs/estimate.md)."""
+    if params.units:
+        return []
+    fitted = [ps.name for ps in PARAMETER_SETS.values() if ps.units and formulas <= set(ps.units)]
+    if not fitted:
+        return []
+    return [
+        f"{', '.join(sorted(formulas))}: sets fitted to it come closer to measured lattice modes "
+        f"(--potential {' or '.join(fitted)})"
+    ]
+
+
+def _set_charges(cm, units, params):
+    """The cell model with the charges published with the set on the atoms of its units, and the text naming them."""
+    import dataclasses
+
+    charges = np.array(cm.charges, dtype=float)
+    done: dict[str, str] = {}
+    for k, u in enumerate(units):
+        own = params.charges.get(u.formula)
+        if own is None:
+            continue
+        idx = np.flatnonzero(cm.unit_of == k)
+        charges[idx] = [own[cm.symbols[a]] for a in idx]
+        shown = ", ".join(f"{e} {q:+g}" for e, q in own.items())
+        done.setdefault(u.formula, f"charges of the set {params.name!r} on {u.formula} ({shown} e)")
+    return dataclasses.replace(cm, charges=charges), list(done.values())
+
+
+def _with_charge_model(cm, units, choice: str, params):
     """The cell model with the charges of the choice (see .quadrupole and .sites) and the text naming them."""
     import dataclasses
 
+    if choice == "set":
+        return _set_charges(cm, units, params)
     if choice == "quadrupole":
         from .quadrupole import quadrupole_charges
 

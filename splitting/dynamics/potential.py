@@ -1,10 +1,15 @@
-"""Atom-atom exp-6 (Buckingham) potential between atoms of different units: parameters and force constants.
+"""Atom-atom potential between atoms of different units: parameters and force constants.
 
-``E(r) = -A / r^6 + B exp(-C r)`` for every pair of atoms that belong to different units
-(or to different periodic images of one unit), summed to a stated cut-off.  Pairs of unlike
-elements follow the usual combining rules of these sets: ``A_ij = sqrt(A_ii A_jj)``,
-``B_ij = sqrt(B_ii B_jj)``, ``C_ij = (C_ii + C_jj) / 2`` (common practice), except where a set
-gives the unlike pair itself.
+``E(r) = -A / r^6 + B exp(-C r) + D / r^12`` for every pair of atoms that belong to different
+units (or to different periodic images of one unit), summed to a stated cut-off: the exp-6
+(Buckingham) sets have D = 0, the Lennard-Jones 12-6 sets B = 0 (``A = 4 eps sigma^6``,
+``D = 4 eps sigma^12``).  Pairs of unlike elements of the exp-6 sets follow their usual
+combining rules: ``A_ij = sqrt(A_ii A_jj)``, ``B_ij = sqrt(B_ii B_jj)``, ``C_ij = (C_ii + C_jj) / 2``
+(common practice), except where a set gives the unlike pair itself; the Lennard-Jones sets
+give every unlike pair (their own combining rule applied when the set is built).
+
+A set fitted to one kind of molecule only (the CO2 models) names the units it is for
+(``units``) and may carry the point charges published with it (``charges``).
 
 Neighbours are found with a k-d tree over the periodic images inside the cut-off, so the
 cost grows linearly with the number of atoms at fixed density.
@@ -12,20 +17,31 @@ cost grows linearly with the number of atoms at fixed density.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
 from ..defaults import DEFAULT_CUTOFF
 from ..errors import InputError
-from .constants import KCAL_MOL, KJ_MOL
+from .constants import KCAL_MOL, KELVIN, KJ_MOL
 
-__all__ = ["DEFAULT_CUTOFF", "PARAMETER_SETS", "ParameterSet", "exp6_force_constants", "neighbour_pairs"]
+__all__ = [
+    "DEFAULT_CUTOFF",
+    "PARAMETER_SETS",
+    "ParameterSet",
+    "exp6_force_constants",
+    "neighbour_pairs",
+    "pair_terms",
+    "sets_covering",
+]
+
+#: (A, B, C, D) of one pair: A in eV angstrom^6, B in eV, C in 1/angstrom, D in eV angstrom^12
+Pair = tuple[float, float, float, float]
 
 
 @dataclass(frozen=True)
 class ParameterSet:
-    """One published exp-6 parameter set.
+    """One published atom-atom parameter set (exp-6 or Lennard-Jones 12-6).
 
     Attributes
     ----------
@@ -34,42 +50,109 @@ class ParameterSet:
     source : str
         Where the numbers come from (and whether they were recalled from memory).
     like : dict
-        ``element -> (A, B, C)``: A in eV angstrom^6, B in eV, C in 1/angstrom.
+        ``element -> (A, B, C, D)`` (see :data:`Pair`).
     unlike : dict
-        ``(element, element) -> (A, B, C)`` given by the set itself (sorted pair).
+        ``(element, element) -> (A, B, C, D)`` given by the set itself (sorted pair).
+    form : str
+        The functional form, for messages and the model text (``"exp-6"``, ``"Lennard-Jones 12-6"``).
+    units : tuple of str
+        Hill formulas of the only units the set was fitted to (empty: any unit of its elements).
+    charges : dict
+        ``formula -> {element: charge (e)}``: the point charges published with the set.
     """
 
     name: str
     source: str
-    like: dict[str, tuple[float, float, float]]
-    unlike: dict[tuple[str, str], tuple[float, float, float]]
+    like: dict[str, Pair]
+    unlike: dict[tuple[str, str], Pair]
+    form: str = "exp-6"
+    units: tuple[str, ...] = ()
+    charges: dict[str, dict[str, float]] = field(default_factory=dict)
 
-    def covers(self, elements) -> bool:
-        """True when every element has parameters."""
-        return all(e in self.like for e in elements)
+    @property
+    def label(self) -> str:
+        """How messages name the set: ``exp-6 set 'williams'``."""
+        return f"{self.form} set {self.name!r}"
 
-    def pair(self, a: str, b: str) -> tuple[float, float, float]:
-        """(A, B, C) of the pair a-b (eV angstrom^6, eV, 1/angstrom)."""
+    def covers(self, elements, formulas=()) -> bool:
+        """True when every element has parameters and the set is for every unit formula given."""
+        return all(e in self.like for e in elements) and (not self.units or set(formulas) <= set(self.units))
+
+    def pair(self, a: str, b: str) -> Pair:
+        """(A, B, C, D) of the pair a-b (eV angstrom^6, eV, 1/angstrom, eV angstrom^12)."""
         key = tuple(sorted((a, b)))
         if key in self.unlike:
             return self.unlike[key]
         for e in (a, b):
             if e not in self.like:
                 raise InputError(
-                    f"element {e} is not covered by the exp-6 set {self.name!r} "
+                    f"element {e} is not covered by the {self.label} "
                     f"(it covers {', '.join(sorted(self.like))}); choose another --potential"
                 )
-        (a1, b1, c1), (a2, b2, c2) = self.like[a], self.like[b]
-        return (float(np.sqrt(a1 * a2)), float(np.sqrt(b1 * b2)), (c1 + c2) / 2)
+        (a1, b1, c1, d1), (a2, b2, c2, d2) = self.like[a], self.like[b]
+        return (float(np.sqrt(a1 * a2)), float(np.sqrt(b1 * b2)), (c1 + c2) / 2, float(np.sqrt(d1 * d2)))
 
 
-def _kcal(a: float, b: float, c: float) -> tuple[float, float, float]:
-    return (a * KCAL_MOL, b * KCAL_MOL, c)
+def sets_covering(elements, formulas) -> list[str]:
+    """Names of the bundled sets that cover these elements and unit formulas.
+
+    Examples
+    --------
+    >>> sets_covering({"C", "O"}, {"CO2"})
+    ['williams', 'epm2', 'trappe']
+    >>> sets_covering({"C", "H"}, {"C10H8"})
+    ['williams', 'gavezzotti']
+    """
+    return [name for name, ps in PARAMETER_SETS.items() if ps.covers(elements, formulas)]
 
 
-def _kj(a: float, b: float, c: float) -> tuple[float, float, float]:
+def pair_terms(abcd: np.ndarray, r: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Energy, first and second radial derivatives of ``-A/r^6 + B exp(-C r) + D/r^12``.
+
+    ``abcd`` (m, 4) holds the pair parameters of every distance in ``r`` (m,).
+
+    Examples
+    --------
+    A Lennard-Jones pair at its minimum, ``2^(1/6) sigma`` (sigma = eps = 1), has energy -eps and no force:
+
+    >>> import numpy as np
+    >>> e, d1, d2 = pair_terms(np.array([[4.0, 0.0, 0.0, 4.0]]), np.array([2 ** (1 / 6)]))
+    >>> round(float(e[0]), 9), round(float(d1[0]), 9)
+    (-1.0, 0.0)
+    """
+    a, b, c, d = abcd[:, 0], abcd[:, 1], abcd[:, 2], abcd[:, 3]
+    ex = b * np.exp(-c * r)
+    r6 = r**-6
+    r12 = r6 * r6
+    energy = -a * r6 + ex + d * r12
+    d1 = (6 * a * r6 - 12 * d * r12) / r - c * ex
+    d2 = (-42 * a * r6 + 156 * d * r12) / r**2 + c * c * ex
+    return energy, d1, d2
+
+
+def _kcal(a: float, b: float, c: float) -> Pair:
+    return (a * KCAL_MOL, b * KCAL_MOL, c, 0.0)
+
+
+def _kj(a: float, b: float, c: float) -> Pair:
     """Gavezzotti's order (A exp(-B r) - C / r^6) into ours."""
-    return (c * KJ_MOL, a * KJ_MOL, b)
+    return (c * KJ_MOL, a * KJ_MOL, b, 0.0)
+
+
+def _lj(sigma: float, eps_kelvin: float) -> Pair:
+    """Lennard-Jones ``4 eps ((sigma/r)^12 - (sigma/r)^6)``, sigma in angstrom and eps/k in K."""
+    eps = eps_kelvin * KELVIN
+    return (4 * eps * sigma**6, 0.0, 0.0, 4 * eps * sigma**12)
+
+
+def _lorentz_berthelot(like: dict[str, tuple[float, float]]) -> dict[tuple[str, str], Pair]:
+    """Every unlike pair of ``element -> (sigma, eps/k)`` by the Lorentz-Berthelot rule (common practice)."""
+    names = sorted(like)
+    return {
+        (a, b): _lj((like[a][0] + like[b][0]) / 2, float(np.sqrt(like[a][1] * like[b][1])))
+        for k, a in enumerate(names)
+        for b in names[k + 1 :]
+    }
 
 
 WILLIAMS = ParameterSet(
@@ -93,8 +176,35 @@ GAVEZZOTTI = ParameterSet(
     {("C", "H"): _kj(120000.0, 4.10, 472.8)},
 )
 
+#: EPM2 (sigma in angstrom, eps/k in K), with its own cross term
+_EPM2 = {"C": (2.757, 28.129), "O": (3.033, 80.507)}
+EPM2 = ParameterSet(
+    "epm2",
+    "CO2 only: J. G. Harris and K. H. Yung, J. Phys. Chem. 99, 12021 (1995), their EPM2 model "
+    "(Lennard-Jones, C-O cross term given; charges C +0.6512, O -0.3256 e; fitted with C=O 1.149 Å); "
+    "every number from memory",
+    {e: _lj(*p) for e, p in _EPM2.items()},
+    {("C", "O"): _lj(2.892, 47.588)},
+    form="Lennard-Jones 12-6",
+    units=("CO2",),
+    charges={"CO2": {"C": 0.6512, "O": -0.3256}},
+)
+
+_TRAPPE = {"C": (2.80, 27.0), "O": (3.05, 79.0)}
+TRAPPE = ParameterSet(
+    "trappe",
+    "CO2 only: J. J. Potoff and J. I. Siepmann, AIChE J. 47, 1676 (2001) (Lennard-Jones, "
+    "Lorentz-Berthelot combining; charges C +0.70, O -0.35 e; fitted with C=O 1.16 Å); "
+    "every number from memory",
+    {e: _lj(*p) for e, p in _TRAPPE.items()},
+    _lorentz_berthelot(_TRAPPE),
+    form="Lennard-Jones 12-6",
+    units=("CO2",),
+    charges={"CO2": {"C": 0.70, "O": -0.35}},
+)
+
 #: the published sets, first one the default
-PARAMETER_SETS: dict[str, ParameterSet] = {s.name: s for s in (WILLIAMS, GAVEZZOTTI)}
+PARAMETER_SETS: dict[str, ParameterSet] = {s.name: s for s in (WILLIAMS, GAVEZZOTTI, EPM2, TRAPPE)}
 
 
 def neighbour_pairs(
@@ -201,13 +311,9 @@ def exp6_force_constants(
     r = np.linalg.norm(vec, axis=1)
     elements = sorted(set(symbols))
     code = np.array([elements.index(s) for s in symbols])
-    table = np.array([[params.pair(a, b) for b in elements] for a in elements])  # (k, k, 3)
-    abc = table[code[i], code[j]]
-    a, b, c = abc[:, 0], abc[:, 1], abc[:, 2]
-    ex = b * np.exp(-c * r)
-    energy = float(np.sum(-a / r**6 + ex) / 2)
-    d1 = 6 * a / r**7 - c * ex
-    d2 = -42 * a / r**8 + c * c * ex
+    table = np.array([[params.pair(a, b) for b in elements] for a in elements])  # (k, k, 4)
+    e, d1, d2 = pair_terms(table[code[i], code[j]], r)
+    energy = float(np.sum(e) / 2)
     if sparse:
         from .pairs import pair_force_constants
 

@@ -1,6 +1,6 @@
 """Relaxing the lattice within its space group: rigid units (and optionally the cell) at the model's minimum.
 
-The model's lattice energy (the exp-6 atom-atom sum and the point charges between units,
+The model's lattice energy (the atom-atom sum (exp-6 or Lennard-Jones) and the point charges between units,
 the same terms as the dynamical matrix) is minimised over the degrees of freedom the space
 group leaves free, with the units kept rigid (their internal geometry as given):
 
@@ -17,7 +17,7 @@ group leaves free, with the units kept rigid (their internal geometry as given):
 
 This is the usual route of rigid-molecule lattice dynamics (compute the frequencies at the
 minimum of the potential used for them; e.g. D. E. Williams, Acta Cryst. A30, 71 (1974),
-from memory).  The exp-6 terms are shifted to zero at the cut-off for the minimisation
+from memory).  The atom-atom terms are shifted to zero at the cut-off for the minimisation
 (no jumps when a pair crosses it; the force constants are unchanged); the Coulomb energy is
 the Ewald sum without the G = 0 term, as for the force constants.  The minimiser is
 L-BFGS-B with central-difference gradients, inside bounds: a minimum on a bound is a
@@ -35,7 +35,7 @@ from scipy.special import erf, erfc
 from ..errors import InputError
 from .constants import COULOMB
 from .ewald import REACH, half_sphere
-from .potential import ParameterSet, neighbour_pairs
+from .potential import ParameterSet, neighbour_pairs, pair_terms
 
 __all__ = ["Relaxation", "lattice_energy", "relax_structure"]
 
@@ -130,7 +130,7 @@ class Relaxation:
 
 # ----------------------------------------------------------------------------- the energy
 class _Energy:
-    """Model lattice energy per cell (eV) between rigid units: exp-6 shifted at the cut-off, plus Ewald.
+    """Model lattice energy per cell (eV) between rigid units: atom-atom terms shifted at the cut-off, plus Ewald.
 
     With ``sites`` (:class:`splitting.dynamics.sites.ChargeSites`) the point charges sit on
     the sites, which follow the atoms, instead of on the atoms.
@@ -147,11 +147,11 @@ class _Energy:
         elements = sorted(set(symbols))
         self.code = np.array([elements.index(s) for s in symbols])
         self.table = np.array([[params.pair(a, b) for b in elements] for a in elements])
-        a, b, c = self.table[..., 0], self.table[..., 1], self.table[..., 2]
-        self.shift = -a / cutoff**6 + b * np.exp(-c * cutoff)
+        flat = self.table.reshape(-1, 4)
+        self.shift = pair_terms(flat, np.full(len(flat), self.cutoff))[0].reshape(self.table.shape[:2])
         # the exp-6 form has a spurious maximum at short range and falls to -infinity inside
         # it; a pair inside the maximum means the structure collapsed (the minimiser backs off)
-        self.collapse = np.array([[_hump(*p) for p in row] for row in self.table])
+        self.collapse = np.array([[_hump(p) for p in row] for row in self.table])
         self.q = np.asarray(charges, dtype=float) if use_charges else None
         if self.q is not None and not np.any(np.abs(self.q) > 1e-6):
             self.q = None
@@ -177,8 +177,7 @@ class _Energy:
         ci, cj = self.code[i], self.code[j]
         if np.any(r < self.collapse[ci, cj]):
             return _COLLAPSED
-        abc = self.table[ci, cj]
-        e6 = -abc[:, 0] / r**6 + abc[:, 1] * np.exp(-abc[:, 2] * r) - self.shift[ci, cj]
+        e6 = pair_terms(self.table[ci, cj], r)[0] - self.shift[ci, cj]
         energy = float(np.sum(e6) / 2)
         if self.q is None:
             return energy
@@ -209,12 +208,14 @@ class _Energy:
 _COLLAPSED = 1e6
 
 
-def _hump(a: float, b: float, c: float) -> float:
-    """Distance (angstrom) of the short-range maximum of -a/r^6 + b exp(-c r), 10 % padded."""
+def _hump(abcd: np.ndarray) -> float:
+    """Distance (angstrom) of the short-range maximum of a pair function (exp-6), 10 % padded; 0 if none."""
     from scipy.optimize import brentq
 
+    row = np.asarray(abcd, dtype=float)[None, :]
+
     def slope(r: float) -> float:
-        return 6 * a / r**7 - c * b * np.exp(-c * r)
+        return float(pair_terms(row, np.array([r]))[1][0])
 
     lo, hi = 0.05, 1.0
     while slope(hi) > 0 and hi < 5:  # beyond the hump the force is repulsive (slope < 0)
@@ -236,7 +237,7 @@ def lattice_energy(
     use_charges: bool = True,
     sites=None,
 ) -> float:
-    """Model lattice energy per cell (eV) between units: exp-6 (shifted to zero at the cut-off) plus Ewald.
+    """Model lattice energy per cell (eV) between units: atom-atom terms (shifted to zero at the cut-off) plus Ewald.
 
     Examples
     --------
@@ -476,7 +477,7 @@ def relax_structure(
         raise InputError(
             f"the relaxation within the space group ran away ({what} to the limit of "
             f"{limit[kind]:g} {'A' if kind == 'shift' else 'rad' if kind == 'turn' else 'strain'}): the structure "
-            f"is far from any minimum of the exp-6 set {params.name!r}; check the structure or try another "
+            f"is far from any minimum of the {params.label}; check the structure or try another "
             "--potential or --charges"
         )
     lattice, pos, turns = structure.build(x)

@@ -135,7 +135,7 @@ class Estimate:
     model : str
         One sentence naming the model (shown next to every number).
     parameter_set : str
-        Name of the exp-6 set used for the lines.
+        Name of the atom-atom parameter set used for the lines.
     parameter_source : str
     cutoff_angstrom : float
     charges : bool
@@ -149,7 +149,7 @@ class Estimate:
     uncertainty_rule : str
         How ``uncertainty_cm1`` was obtained.
     lattice_energy_ev : float
-        exp-6 lattice energy per primitive cell (eV).
+        Atom-atom (exp-6 or Lennard-Jones) lattice energy per primitive cell (eV), without the charges.
     warnings : tuple of str
     relaxation : Relaxation or None
         How far the structure moved when it was relaxed within its space group first

@@ -16,7 +16,7 @@ def estimate_text(est: Estimate, *, internal: bool = True) -> str:
     out = [
         f"{est.source}: factor group {est.factor_group}",
         f"  {est.model}",
-        f"  exp-6 parameters: {est.parameter_source}",
+        f"  parameters: {est.parameter_source}",
         f"  uncertainty: {est.uncertainty_rule}",
         *([f"  {est.relaxation.summary}"] if est.relaxation else []),
         "",
