@@ -245,7 +245,7 @@ _TEXT_OPTIONS = [
     ("predict", "--geometry", ["abc", "x(yz)x", ""]),
     ("predict", "--potential", ["nosuch"]),
     ("estimate", "--potential", ["epm2", "trappe"]),  # fitted to CO2 only: calcite refused
-    ("estimate", "--charges", ["set", "nosuch"]),  # the default set has no charges of its own
+    ("estimate", "--charges", ["set"]),  # the default set has no charges of its own
     ("predict", "--format", ["pdf"]),
     ("group", "--to", ["", "C99", "-1"]),
     ("lower", "--observed", ["nu1:ir=abc", "nu9:raman=2", "nu1=2", "nu1:uv=1", "nu1:ir=-3"]),

@@ -176,31 +176,38 @@ GAVEZZOTTI = ParameterSet(
     {("C", "H"): _kj(120000.0, 4.10, 472.8)},
 )
 
-#: EPM2 (sigma in angstrom, eps/k in K), with its own cross term
-_EPM2 = {"C": (2.757, 28.129), "O": (3.033, 80.507)}
-EPM2 = ParameterSet(
+
+def _lj_set(name: str, source: str, like: dict[str, tuple[float, float]], cross, charges) -> ParameterSet:
+    """A Lennard-Jones set for CO2 only: ``element -> (sigma, eps/k)``, cross terms given or Lorentz-Berthelot."""
+    return ParameterSet(
+        name,
+        source,
+        {e: _lj(*p) for e, p in like.items()},
+        {pair: _lj(*p) for pair, p in cross.items()} if cross else _lorentz_berthelot(like),
+        form="Lennard-Jones 12-6",
+        units=("CO2",),
+        charges={"CO2": charges},
+    )
+
+
+EPM2 = _lj_set(
     "epm2",
     "CO2 only: J. G. Harris and K. H. Yung, J. Phys. Chem. 99, 12021 (1995), their EPM2 model "
     "(Lennard-Jones, C-O cross term given; charges C +0.6512, O -0.3256 e; fitted with C=O 1.149 Å); "
     "every number from memory",
-    {e: _lj(*p) for e, p in _EPM2.items()},
-    {("C", "O"): _lj(2.892, 47.588)},
-    form="Lennard-Jones 12-6",
-    units=("CO2",),
-    charges={"CO2": {"C": 0.6512, "O": -0.3256}},
+    {"C": (2.757, 28.129), "O": (3.033, 80.507)},
+    {("C", "O"): (2.892, 47.588)},
+    {"C": 0.6512, "O": -0.3256},
 )
 
-_TRAPPE = {"C": (2.80, 27.0), "O": (3.05, 79.0)}
-TRAPPE = ParameterSet(
+TRAPPE = _lj_set(
     "trappe",
     "CO2 only: J. J. Potoff and J. I. Siepmann, AIChE J. 47, 1676 (2001) (Lennard-Jones, "
     "Lorentz-Berthelot combining; charges C +0.70, O -0.35 e; fitted with C=O 1.16 Å); "
     "every number from memory",
-    {e: _lj(*p) for e, p in _TRAPPE.items()},
-    _lorentz_berthelot(_TRAPPE),
-    form="Lennard-Jones 12-6",
-    units=("CO2",),
-    charges={"CO2": {"C": 0.70, "O": -0.35}},
+    {"C": (2.80, 27.0), "O": (3.05, 79.0)},
+    None,
+    {"C": 0.70, "O": -0.35},
 )
 
 #: the published sets, first one the default
