@@ -352,3 +352,52 @@ def test_lower_candidates_in_the_files_axes(aragonite) -> None:
         )
 
     assert counts(found) == counts(std)
+
+
+def test_lower_candidates_of_a_centred_parent_in_the_files_axes() -> None:
+    """A t-subgroup of a centred parent keeps every translation, so the file's cell is a cell of it:
+    below fcc C60 (Fm-3, cubic F cell) Fmmm, F23, F222 and Fmm2 are named in settings written on the
+    cube and labelled along a, b, c, the monoclinic t-subgroup in the cube's B-centred setting
+    B 1 1 2/m (ITA Vol. A, settings of No. 12, from memory), and the three-fold axis of R-3 is written
+    as a body diagonal of the cube (not in the indices of the primitive cell, which the file never gave)."""
+    from splitting.phases.lower import lower
+
+    found = lower(ROOT / "structures" / "c60_fcc_Fm-3.cif", max_index=8)
+    by_name = {c.name: c for c in found.candidates}
+    for name, setting in (("Fmmm (69)", "F m m m"), ("F23 (196)", "F 2 3"), ("F222 (22)", "F 2 2 2")):
+        pred = by_name[name].prediction
+        assert pred.setting.file_symbol == setting
+        assert pred.factor_axes == {"x": "a", "y": "b", "z": "c"}, name
+    polar = by_name["Fmm2 (42)"].prediction
+    assert polar.setting.file_symbol == "F m m 2" and polar.factor_axes["z"] == "c"
+    assert by_name["B2/m (12, C2/m)"].prediction.setting.file_symbol == "B 1 1 2/m"
+    for c in found.candidates:
+        if c.point_group in ("S6", "C3"):
+            axis = c.prediction.factor_axes["z"]
+            assert re.fullmatch(r"\[-?1,-?1,-?1\]", axis), (c.name, axis)
+    # the same subgroups and counts in the standard axes; two orthorhombic subgroups that are not
+    # conjugate in Th (Cmce and Ccme, a and b exchanged) merge there, and stay apart in the cube
+    std = lower(ROOT / "structures" / "c60_fcc_Fm-3.cif", max_index=8, options=Options(standard_axes=True))
+
+    def counts(result):
+        return {
+            (c.space_group[0], tuple(sorted((s.dimension, s.optical) for s in c.prediction.species)))
+            for c in result.candidates
+        }
+
+    assert counts(found) == counts(std)
+    assert sum(c.variants for c in found.candidates) == sum(c.variants for c in std.candidates)
+    assert {"Ccme (64, Cmce)", "Cmce (64)"} <= set(by_name)
+
+
+def test_lower_candidates_of_a_rhombohedral_parent_on_its_hexagonal_cell() -> None:
+    """Calcite's file gives the hexagonal cell of R-3c: the t-subgroups R3c, R32 and R-3 are named in
+    their obverse hexagonal settings and labelled with z along c, the monoclinic C2/c with its two-fold
+    axis along a (a two-fold axis of R-3c, ITA Vol. A No. 167, from memory)."""
+    from splitting.phases.lower import lower
+
+    found = lower(ROOT / "structures" / "calcite.cif", max_index=4)
+    t = {c.name: c.prediction for c in found.candidates if c.kind == "t"}
+    for name, setting in (("R3c (161)", "R 3 c"), ("R32 (155)", "R 3 2"), ("R-3 (148)", "R -3")):
+        assert t[name].setting.file_symbol == setting and t[name].factor_axes["z"] == "c", name
+    assert t["C2/c (15)"].factor_axes["z"] == "a"

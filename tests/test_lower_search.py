@@ -131,11 +131,13 @@ def test_known_group_prediction_is_the_full_search_prediction(name: str, index: 
     known = 0
     for m, ops, _mult, _i in lowering.subgroups_of(cell, factor, index):
         realised, fixed, shift = lowering._realise(cell, m, ops, 1)
-        short = lowering._predict_known(cell, m, ops, realised, fixed, shift, opts, cache, "candidate")
+        label = lowering._label_cell(cell, m)
+        short = lowering._predict_known(cell, m, ops, realised, fixed, shift, opts, cache, "candidate", label)
         if short is None:
             continue
         known += 1
-        full = lowering.predict_atoms(realised, opts, source="candidate", free_cache=cache)
+        full = lowering._predict_searched(realised, opts, cache, "candidate", label)
+        assert short.symbol == full.symbol and short.factor_axes == full.factor_axes
         assert short.space_group.number == full.space_group.number
         assert short.space_group.hall_number == full.space_group.hall_number
         assert short.factor_group == full.factor_group and short.atoms_primitive == full.atoms_primitive

@@ -27,7 +27,7 @@ import numpy as np
 from .._display import Summarised
 from ..correlation import FactorGroup
 from ..crystal.freeunits import FreeUnitCache
-from ..crystal.predict import Options, predict_atoms, predict_with_cell
+from ..crystal.predict import Options, predict_with_cell
 from ..crystal.read import load_structure
 from ..crystal.results import CrystalPrediction
 from ..crystal.spacegroup import CellSymmetry
@@ -728,55 +728,84 @@ def _candidate(
     seed: int,
 ) -> Candidate:
     m = _along_file_axes(cell, m)
+    label = _label_cell(cell, m)
     atoms, fixed, shift = _realise(cell, m, ops, seed)
     kind = "t" if mult == 1 else ("k" if point_index == 1 else "t+k")
     supercell = tuple(tuple(int(x) for x in r) for r in m)
-    pred = _predict_known(cell, m, ops, atoms, fixed, shift, opts, cache, f"{source} (candidate)")
+    pred = _predict_known(cell, m, ops, atoms, fixed, shift, opts, cache, f"{source} (candidate)", label)
     if pred is None:
-        pred = predict_atoms(atoms, opts, source=f"{source} (candidate)", free_cache=cache, scan=False)
+        pred = _predict_searched(atoms, opts, cache, f"{source} (candidate)", label)
     realised = point_group(pred.factor_group).order * pred.atoms_primitive == len(ops) * len(atoms)
     if not realised:
         # the atoms cannot show this subgroup (they sit where no displacement breaks the parent
         # symmetry): predict from the candidate's own operations on the undisplaced supercell
-        pred = _predict_from_operations(cell, m, ops, opts, cache, source)
+        pred = _predict_from_operations(cell, m, ops, opts, cache, source, label)
     sg = pred.space_group
     return Candidate(
         kind, point_index * mult, pred.factor_group, mult, supercell, (sg.number, sg.symbol), pred, realised=realised
     )
 
 
+def _label_cell(cell: CellSymmetry, m: np.ndarray) -> np.ndarray | None:
+    """Rows n_a a, n_b b, n_c c: the smallest multiples of the file's axes that are lattice vectors of
+    the supercell ``m`` (rows in the parent's primitive basis); None with ``--standard-axes``, for a
+    parent without a file cell, or when an axis has no multiple in the supercell's lattice.
+
+    The candidate's labels, components and site symbols are written in this cell.  For a
+    t-subgroup (every translation kept) it is the file's own cell, also where the candidate is
+    built on the parent's primitive cell (a centred parent: Fmmm below Fm-3 is labelled in the cube).
+    """
+    if cell.given_lattice is None or cell.standard_axes:
+        return None
+    from fractions import Fraction
+    from math import lcm
+
+    inv = np.linalg.inv(m @ cell.lattice)
+    steps = []
+    for axis in np.asarray(cell.given_lattice, dtype=float):
+        den = 1
+        for x in axis @ inv:  # the file's axis in the supercell's basis
+            f = Fraction(float(x)).limit_denominator(64)
+            if abs(float(f) - x) > 1e-6:
+                return None
+            den = lcm(den, f.denominator)
+        steps.append(den)
+    return np.array(steps, dtype=float)[:, None] * np.asarray(cell.given_lattice, dtype=float)
+
+
 def _along_file_axes(cell: CellSymmetry, m: np.ndarray) -> np.ndarray:
     """Another basis of the supercell ``m`` (rows in the parent's primitive basis) whose vectors run
     along the file's a, b, c (multiples of them), when the supercell has one; else ``m`` itself.
 
-    The candidate is then described, and its labels, components and site symbols written, in the
-    axes of the file; a supercell that is no multiple of the file's cell (half of a centred cell, a
-    rotated cell) keeps the parent's primitive axes.
+    The candidate is then built in the axes of the file; a supercell that is no multiple of the
+    file's cell (half of a centred cell, a rotated cell) is built on ``m`` and only labelled in
+    the axes of the file (:func:`_label_cell`).
     """
-    if cell.given_lattice is None or cell.standard_axes:
+    label = _label_cell(cell, m)
+    if label is None:
         return m
-    from fractions import Fraction
-    from math import lcm
-
-    lat = m @ cell.lattice
-    inv = np.linalg.inv(lat)
-    steps = []
-    for axis in np.asarray(cell.given_lattice, dtype=float):
-        coeffs = axis @ inv  # the file's axis in the supercell's basis
-        den = 1
-        for x in coeffs:
-            f = Fraction(float(x)).limit_denominator(64)
-            if abs(float(f) - x) > 1e-6:
-                return m
-            den = lcm(den, f.denominator)
-        steps.append(den)
-    new = np.array(steps, dtype=float)[:, None] * np.asarray(cell.given_lattice, dtype=float)
-    if abs(abs(np.linalg.det(new)) - abs(np.linalg.det(lat))) > 1e-6 * abs(np.linalg.det(lat)):
+    t = label @ np.linalg.inv(m @ cell.lattice)
+    if abs(abs(np.linalg.det(t)) - 1) > 1e-6 or np.abs(t - np.rint(t)).max() > 1e-6:
         return m  # the multiples of the file's axes span a smaller lattice than the supercell
-    t = new @ inv
-    if np.abs(t - np.rint(t)).max() > 1e-6:
-        return m
     return np.rint(t).astype(int) @ np.asarray(m, dtype=int)
+
+
+def _labelled_on(sub: CellSymmetry, label: np.ndarray | None, lattice: np.ndarray) -> CellSymmetry:
+    """The candidate's cell ``sub`` (searched from atoms in the supercell ``lattice``) with its labels in
+    the cell ``label`` (rows: lattice vectors of the candidate, see :func:`_label_cell`).
+
+    Only the cell the labels refer to changes: the file-cell rows and spglib's transformation P
+    to the standard setting, (a_s b_s c_s) = (a b c) P^-1, the origin staying where it is.
+    """
+    if label is None or sub.given_lattice is None or sub.standard_axes:
+        return sub
+    t = label @ np.linalg.inv(lattice)
+    given = np.rint(t) @ np.asarray(sub.given_lattice, dtype=float)
+    p = None if sub.transformation is None else np.linalg.inv(np.asarray(sub.conventional).T) @ given.T
+    for arr in (given, p):
+        if arr is not None:
+            arr.setflags(write=False)
+    return replace(sub, given_lattice=given, transformation=p)
 
 
 def _predict_known(
@@ -789,6 +818,7 @@ def _predict_known(
     opts: Options,
     cache: FreeUnitCache,
     source: str,
+    label: np.ndarray | None = None,
 ) -> CrystalPrediction | None:
     """The prediction of a realised candidate whose space group is exactly its operations, without a
     search of all its atoms (:func:`~splitting.crystal.spacegroup.cell_of_known_group`); None when that
@@ -818,6 +848,7 @@ def _predict_known(
     )
     if known is None:
         return None
+    known = _labelled_on(known, label, atoms.cell[:])
     try:
         pred = _predict(known, units_of(known, opts), opts, source, cache)
     except BookkeepingError:
@@ -825,8 +856,38 @@ def _predict_known(
     return replace(pred, cell_parameters=tuple(float(v) for v in atoms.cell.cellpar()))
 
 
+def _predict_searched(
+    atoms, opts: Options, cache: FreeUnitCache, source: str, label: np.ndarray | None
+) -> CrystalPrediction:
+    """A realised candidate searched atom by atom (as :func:`~splitting.crystal.predict.predict_atoms`),
+    labelled in the cell ``label``."""
+    from ..crystal.predict import _predict, _tolerances_that_pass, units_of
+    from ..crystal.spacegroup import analyse_cell
+    from ..errors import BookkeepingError
+
+    sub = analyse_cell(
+        atoms.cell[:],
+        atoms.get_scaled_positions(wrap=True),
+        atoms.numbers,
+        tolerance=opts.tolerance,
+        standard_axes=opts.standard_axes,
+    )
+    sub = _labelled_on(sub, label, atoms.cell[:])
+    try:
+        pred = _predict(sub, units_of(sub, opts), opts, source, cache)
+    except BookkeepingError as exc:
+        raise BookkeepingError(f"{exc}; {_tolerances_that_pass(atoms, opts)}") from None
+    return replace(pred, cell_parameters=tuple(float(v) for v in atoms.cell.cellpar()))
+
+
 def _predict_from_operations(
-    cell: CellSymmetry, m: np.ndarray, ops, opts: Options, cache: FreeUnitCache, source: str
+    cell: CellSymmetry,
+    m: np.ndarray,
+    ops,
+    opts: Options,
+    cache: FreeUnitCache,
+    source: str,
+    label: np.ndarray | None = None,
 ) -> CrystalPrediction:
     from ..crystal.predict import _predict, units_of
     from ..crystal.spacegroup import cell_from_operations
@@ -846,7 +907,7 @@ def _predict_from_operations(
         rots,
         trans,
         cell.conventional,
-        given_lattice=cell.given_lattice,
+        given_lattice=cell.given_lattice if label is None else label,
         standard_axes=cell.standard_axes,
     )
     return _predict(sub, units_of(sub, opts), opts, f"{source} (candidate, from its operations)", cache)

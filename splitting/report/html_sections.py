@@ -18,7 +18,7 @@ from ..crystal.names import unit_name
 from ..plot.mulliken import formula_html, hermann_mauguin_html, schoenflies_html
 from ..plot.mulliken import html as species_html
 from ._htmlkit import MARK_IR, MARK_RAMAN, geometry_html, rep_html, table
-from .text import CANDIDATE_AXES
+from .text import candidate_axes
 
 if TYPE_CHECKING:  # pragma: no cover
     from ..crystal.results import CrystalPrediction, UnitOrbit
@@ -67,9 +67,6 @@ def _number(x: Any) -> str:
         return f"{float(x):g}"
     except (TypeError, ValueError):
         return escape(str(x))
-
-
-_CANDIDATE_AXES = "Candidates are " + escape(CANDIDATE_AXES) + "."
 
 
 def standard_beside_html(pred) -> str:
@@ -444,7 +441,8 @@ def candidates_section(lowering: Lowering | None, *, limit: int = 12) -> str:
         f"<p>Subgroups of {hermann_mauguin_html(parent.symbol)} (No. {parent.space_group.number}"
         f"{standard_beside_html(parent)}) "
         f"of {escape(file_name(parent.source))} up to index {lowering.max_index}: t (same cell, fewer "
-        f"rotations), k (same rotations, larger cell or no centring) or both. {_CANDIDATE_AXES}{obs}{tail}</p>"
+        f"rotations), k (same rotations, larger cell or no centring) or both. "
+        f"Candidates are {escape(candidate_axes(parent))}.{obs}{tail}</p>"
         + table(
             ["rank", "space group", "factor group", "kind", "index", "cell &times;", "misfit", "where it disagrees"],
             rows,

@@ -429,9 +429,18 @@ def lowering_rows(result, *, limit: int = 40) -> list[list[object]]:
 
 #: how candidate phases are named and labelled (text and HTML)
 CANDIDATE_AXES = (
-    "named and labelled in the file's axes where the cell is a multiple of the file's "
-    "(else in the parent's primitive axes; standard symbol beside); Wyckoff letters of the standard setting"
+    "named and labelled in the file's axes (in multiples of a, b, c where a candidate's cell is "
+    "larger; standard symbol beside); Wyckoff letters of the standard setting"
 )
+#: the same with ``--standard-axes``
+CANDIDATE_STANDARD_AXES = "named and labelled in the axes of their standard settings"
+
+
+def candidate_axes(parent) -> str:
+    """How the candidates below ``parent`` are named and labelled (:data:`CANDIDATE_AXES` or the
+    standard-axes wording, after the parent's labels)."""
+    st = parent.setting
+    return CANDIDATE_STANDARD_AXES if st is not None and st.labels == "standard" else CANDIDATE_AXES
 
 
 def lowering_text(result, *, limit: int = 40) -> str:
@@ -444,7 +453,7 @@ def lowering_text(result, *, limit: int = 40) -> str:
     import textwrap
 
     if result.candidates:
-        lines += textwrap.wrap(f"Candidates: {CANDIDATE_AXES}", width=96, subsequent_indent="  ")
+        lines += textwrap.wrap(f"Candidates: {candidate_axes(p)}", width=96, subsequent_indent="  ")
 
     from ..phases.disorder import STATE_MEANING
 
