@@ -136,7 +136,7 @@ def test_known_group_prediction_is_the_full_search_prediction(name: str, index: 
         if short is None:
             continue
         known += 1
-        full = lowering._predict_searched(realised, opts, cache, "candidate", label)
+        full, _ = predict_with_cell(realised, opts, source="candidate", free_cache=cache, label_cell=label)
         assert short.symbol == full.symbol and short.factor_axes == full.factor_axes
         assert short.space_group.number == full.space_group.number
         assert short.space_group.hall_number == full.space_group.hall_number

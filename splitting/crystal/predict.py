@@ -120,13 +120,18 @@ def predict_with_cell(
     source: str = "structure",
     free_cache: FreeUnitCache | None = None,
     scan: bool = False,
+    label_cell: np.ndarray | None = None,
 ) -> tuple[CrystalPrediction, CellSymmetry]:
     """As :func:`predict_atoms`, also returning the cell of the one symmetry search (for callers
-    that go on from it, such as the search for lower-symmetry candidates)."""
+    that go on from it, such as the search for lower-symmetry candidates).  ``label_cell`` (rows,
+    angstrom: lattice vectors of ``atoms``) is the cell the labels refer to instead of the atoms'
+    own (see :meth:`~splitting.crystal.spacegroup.CellSymmetry.labelled_on`)."""
     opts = options or Options()
     check_atom_count(len(atoms), opts.max_atoms)
     lattice, frac, numbers = atoms.cell[:], atoms.get_scaled_positions(wrap=True), atoms.numbers
     cell = analyse_cell(lattice, frac, numbers, tolerance=opts.tolerance, scan=scan, standard_axes=opts.standard_axes)
+    if label_cell is not None:
+        cell = cell.labelled_on(np.rint(np.asarray(label_cell, dtype=float) @ np.linalg.inv(lattice)))
     try:
         pred = _predict(cell, units_of(cell, opts), opts, source, free_cache)
     except BookkeepingError as exc:

@@ -358,6 +358,23 @@ class CellSymmetry:
             out.append((f"{round(size * ratio)}{wyck[k]}", sites[k]))
         return out
 
+    def labelled_on(self, multiple: np.ndarray) -> CellSymmetry:
+        """This cell with its labels referring to another cell of its lattice, the origin kept.
+
+        ``multiple`` (integer, 3 x 3) gives the rows of that cell in the basis of the cell as given
+        (``multiple @ given_lattice``).  Only the cell the labels refer to changes: the given
+        cell and spglib's transformation P to the standard setting, (a_s b_s c_s) = (a b c) P^-1;
+        the origin shift p stays.  With ``standard_axes``, or without a cell as given, nothing changes.
+        """
+        if self.given_lattice is None or self.standard_axes:
+            return self
+        given = np.asarray(multiple, dtype=float) @ np.asarray(self.given_lattice, dtype=float)
+        p = None if self.transformation is None else np.linalg.inv(np.asarray(self.conventional).T) @ given.T
+        for arr in (given, p):
+            if arr is not None:
+                arr.setflags(write=False)
+        return replace(self, given_lattice=given, transformation=p)
+
     def apply(self, k: int, cart: np.ndarray) -> np.ndarray:
         """Operation k applied to Cartesian points (angstrom)."""
         return np.asarray(cart) @ self.rotations[k].T + self.translations[k]

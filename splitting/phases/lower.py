@@ -734,7 +734,7 @@ def _candidate(
     supercell = tuple(tuple(int(x) for x in r) for r in m)
     pred = _predict_known(cell, m, ops, atoms, fixed, shift, opts, cache, f"{source} (candidate)", label)
     if pred is None:
-        pred = _predict_searched(atoms, opts, cache, f"{source} (candidate)", label)
+        pred, _ = predict_with_cell(atoms, opts, source=f"{source} (candidate)", free_cache=cache, label_cell=label)
     realised = point_group(pred.factor_group).order * pred.atoms_primitive == len(ops) * len(atoms)
     if not realised:
         # the atoms cannot show this subgroup (they sit where no displacement breaks the parent
@@ -790,24 +790,6 @@ def _along_file_axes(cell: CellSymmetry, m: np.ndarray) -> np.ndarray:
     return np.rint(t).astype(int) @ np.asarray(m, dtype=int)
 
 
-def _labelled_on(sub: CellSymmetry, label: np.ndarray | None, lattice: np.ndarray) -> CellSymmetry:
-    """The candidate's cell ``sub`` (searched from atoms in the supercell ``lattice``) with its labels in
-    the cell ``label`` (rows: lattice vectors of the candidate, see :func:`_label_cell`).
-
-    Only the cell the labels refer to changes: the file-cell rows and spglib's transformation P
-    to the standard setting, (a_s b_s c_s) = (a b c) P^-1, the origin staying where it is.
-    """
-    if label is None or sub.given_lattice is None or sub.standard_axes:
-        return sub
-    t = label @ np.linalg.inv(lattice)
-    given = np.rint(t) @ np.asarray(sub.given_lattice, dtype=float)
-    p = None if sub.transformation is None else np.linalg.inv(np.asarray(sub.conventional).T) @ given.T
-    for arr in (given, p):
-        if arr is not None:
-            arr.setflags(write=False)
-    return replace(sub, given_lattice=given, transformation=p)
-
-
 def _predict_known(
     cell: CellSymmetry,
     m: np.ndarray,
@@ -848,35 +830,12 @@ def _predict_known(
     )
     if known is None:
         return None
-    known = _labelled_on(known, label, atoms.cell[:])
+    if label is not None:
+        known = known.labelled_on(np.rint(label @ np.linalg.inv(atoms.cell[:])))
     try:
         pred = _predict(known, units_of(known, opts), opts, source, cache)
     except BookkeepingError:
         return None
-    return replace(pred, cell_parameters=tuple(float(v) for v in atoms.cell.cellpar()))
-
-
-def _predict_searched(
-    atoms, opts: Options, cache: FreeUnitCache, source: str, label: np.ndarray | None
-) -> CrystalPrediction:
-    """A realised candidate searched atom by atom (as :func:`~splitting.crystal.predict.predict_atoms`),
-    labelled in the cell ``label``."""
-    from ..crystal.predict import _predict, _tolerances_that_pass, units_of
-    from ..crystal.spacegroup import analyse_cell
-    from ..errors import BookkeepingError
-
-    sub = analyse_cell(
-        atoms.cell[:],
-        atoms.get_scaled_positions(wrap=True),
-        atoms.numbers,
-        tolerance=opts.tolerance,
-        standard_axes=opts.standard_axes,
-    )
-    sub = _labelled_on(sub, label, atoms.cell[:])
-    try:
-        pred = _predict(sub, units_of(sub, opts), opts, source, cache)
-    except BookkeepingError as exc:
-        raise BookkeepingError(f"{exc}; {_tolerances_that_pass(atoms, opts)}") from None
     return replace(pred, cell_parameters=tuple(float(v) for v in atoms.cell.cellpar()))
 
 
