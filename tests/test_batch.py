@@ -151,6 +151,11 @@ def test_command(folder: Path, tmp_path: Path, cluster: str, run_cli) -> None:
         (["missing.cif"], "no such file or folder"),
         (["{s}", "--timeout", "-1"], "--timeout: -1 is out of range: give a number at least 0 and at most"),
         (["{s}", "--part-size", "0"], "--part-size: 0 is out of range: give a whole number at least 1 and at most"),
+        # addresses that cannot be one are refused at once, before any connection is tried
+        (["{s}", "--scheduler", "tcp://256.0.0.1:1"], "256.0.0.1 is not an IPv4 address"),
+        (["{s}", "--scheduler", "nonsense"], "the address needs a host and a port 1-65535"),
+        (["{s}", "--scheduler", "tcp://localhost:70000"], "the address needs a host and a port 1-65535"),
+        (["{s}", "--scheduler", "http://localhost:8786"], "unknown transport 'http'"),
     ],
 )
 def test_bad_input(argv: list[str], message: str, tmp_path: Path, structures_dir: Path, run_cli) -> None:
@@ -160,3 +165,14 @@ def test_bad_input(argv: list[str], message: str, tmp_path: Path, structures_dir
     assert code != 0 and stdout == ""
     assert stderr.startswith("error: ") and message in stderr and stderr.count("\n") == 1
     assert not out.exists()
+
+
+def test_scheduler_address_refused_before_connecting(tmp_path: Path, structures_dir: Path) -> None:
+    """An address that cannot exist is refused by its syntax (the message says which part is wrong),
+    not after the connection's 30 s wait (whose message says no scheduler answers)."""
+    from splitting.errors import InputError
+
+    with pytest.raises(InputError, match="not an IPv4 address") as info:
+        screen(structures_dir / "calcite.cif", tmp_path / "out", scheduler="tcp://256.0.0.1:1")
+    assert "answers" not in str(info.value)
+    assert not (tmp_path / "out").exists()

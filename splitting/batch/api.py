@@ -158,6 +158,10 @@ def screen(
         raise InputError("the part size must be at least 1")
     if workers is not None and workers < 1:
         raise InputError("the number of workers must be at least 1")
+    if scheduler:
+        from .runner import check_scheduler_address
+
+        check_scheduler_address(scheduler)
     if isinstance(sources, str | os.PathLike):
         sources = [sources]
     paths = collect(sources)

@@ -120,6 +120,52 @@ def _reason(answer: Any) -> str:
     return repr(answer)
 
 
+#: transports a Dask scheduler listens on (the scheme of its address)
+SCHEMES = ("tcp", "tls", "ws", "wss", "ucx", "inproc")
+
+
+def check_scheduler_address(address: str) -> None:
+    """Refuse, at once, a scheduler address that cannot be one: [SCHEME://]HOST:PORT with a known
+    scheme (tcp when none is given), a host (one written in digits must be an IPv4 address) and a
+    port 1-65535.  Whether a scheduler answers there is only known by connecting.
+
+    Examples
+    --------
+    >>> check_scheduler_address("tcp://10.0.0.5:8786")
+    >>> check_scheduler_address("10.0.0.5:8786")
+    >>> try:
+    ...     check_scheduler_address("tcp://256.0.0.1:1")
+    ... except Exception as exc:
+    ...     print(str(exc).split(";")[0])
+    --scheduler tcp://256.0.0.1:1: 256.0.0.1 is not an IPv4 address (four numbers 0-255)
+    """
+    import ipaddress
+    import re
+
+    from ..errors import InputError
+
+    hint = "give the scheduler as tcp://HOST:PORT"
+    scheme, sep, rest = address.partition("://")
+    if not sep:
+        scheme, rest = "tcp", address
+    if scheme not in SCHEMES:
+        known = ", ".join(SCHEMES)
+        raise InputError(f"--scheduler {address}: unknown transport {scheme!r} (one of {known}); {hint}")
+    if scheme == "inproc":
+        return
+    host, colon, port = rest.rpartition(":")
+    host = host.strip("[]")
+    if not colon or not host or not port.isdigit() or not 1 <= int(port) <= 65535:
+        raise InputError(f"--scheduler {address}: the address needs a host and a port 1-65535; {hint}")
+    if re.fullmatch(r"[0-9.]+", host):
+        try:
+            ipaddress.IPv4Address(host)
+        except ValueError:
+            raise InputError(
+                f"--scheduler {address}: {host} is not an IPv4 address (four numbers 0-255); {hint}"
+            ) from None
+
+
 def _connect(scheduler: str | None, workers: int | None):
     """A client and, without an address, the local cluster it talks to."""
     from distributed import Client, LocalCluster
