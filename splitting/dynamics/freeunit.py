@@ -16,6 +16,7 @@ Route:
 
 from __future__ import annotations
 
+import functools
 import hashlib
 import io
 import os
@@ -212,8 +213,19 @@ def _hessian(engine: _Engine, pos: np.ndarray, sym: MoleculeSymmetry, progress: 
     return (h + h.T) / 2, len(sets)
 
 
+@functools.lru_cache(maxsize=1)
+def _engine_version() -> str:
+    """The installed tblite's version: a cached Hessian is reused only with the engine that made it."""
+    from importlib.metadata import PackageNotFoundError, version
+
+    try:
+        return version("tblite")
+    except PackageNotFoundError:  # pragma: no cover - tblite is a dependency
+        return "unknown"
+
+
 def _key(formula: str, numbers: np.ndarray, positions: np.ndarray, charge: int) -> str:
-    text = f"{_CACHE_VERSION}|{METHOD}|{STEP}|{charge}|{formula}|{list(map(int, numbers))}|"
+    text = f"{_CACHE_VERSION}|{METHOD}|tblite {_engine_version()}|{STEP}|{charge}|{formula}|{list(map(int, numbers))}|"
     text += ",".join(f"{x:.4f}" for x in np.round(positions, 4).ravel() + 0.0)
     return hashlib.sha256(text.encode()).hexdigest()[:24]
 
@@ -243,7 +255,7 @@ def free_hessian(
         Free-unit symmetry tolerance (angstrom).
     cache : path, optional
         Folder for cached results (one ``.npz`` file per unit, named by a hash of
-        method, charge and geometry).
+        method, tblite version, charge and geometry).
     progress : callable, optional
         Called with one line of text per step.
 
