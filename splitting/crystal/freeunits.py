@@ -52,7 +52,17 @@ class _Shape:
     numbers: list[np.ndarray] = field(default_factory=list)
     radii: list[np.ndarray] = field(default_factory=list)
     free: list[FreeUnit] = field(default_factory=list)
+    trees: dict[int, object] = field(default_factory=dict)
     _stack: np.ndarray | None = None
+
+    def tree(self, k: int):
+        """k-d tree of stored shape k's atoms (built once, for matching atoms by proximity)."""
+        found = self.trees.get(k)
+        if found is None:
+            from scipy.spatial import cKDTree
+
+            found = self.trees[k] = cKDTree(self.ideal[k])
+        return found
 
     def candidates(self, radii: np.ndarray, tolerance: float) -> np.ndarray:
         """Stored shapes whose sorted radii are all within ``tolerance`` of ``radii`` (a necessary
@@ -90,7 +100,15 @@ class FreeUnitCache:
         radii = _radii(unit.numbers, centred)
         if shape is not None and shape.radii:
             for k in shape.candidates(radii, self.tolerance):
-                moved = _carry(shape.ideal[k], shape.numbers[k], centred, unit.numbers, shape.free[k], self.tolerance)
+                moved = _carry(
+                    shape.ideal[k],
+                    shape.numbers[k],
+                    centred,
+                    unit.numbers,
+                    shape.free[k],
+                    self.tolerance,
+                    shape.tree(k),
+                )
                 if moved is not None:
                     return moved
         try:
@@ -147,7 +165,13 @@ def _radii(numbers, centred: np.ndarray) -> np.ndarray:
 
 
 def _carry(
-    ideal: np.ndarray, ideal_numbers: np.ndarray, new: np.ndarray, numbers, free: FreeUnit, tolerance: float
+    ideal: np.ndarray,
+    ideal_numbers: np.ndarray,
+    new: np.ndarray,
+    numbers,
+    free: FreeUnit,
+    tolerance: float,
+    tree=None,
 ) -> FreeUnit | None:
     """The stored analysis moved onto a unit close to its symmetrised shape, or None if none is.
 
@@ -164,7 +188,7 @@ def _carry(
         if dev > tolerance:
             r = None
     if r is None:
-        found = _align_by_proximity(ideal, ideal_numbers, new, numbers, tolerance)
+        found = _align_by_proximity(ideal, ideal_numbers, new, numbers, tolerance, tree)
         if found is None:
             return None
         r, dev = found
@@ -181,12 +205,17 @@ def _align(a: np.ndarray, b: np.ndarray) -> np.ndarray:
 
 
 def _align_by_proximity(
-    ideal: np.ndarray, ideal_numbers: np.ndarray, new: np.ndarray, numbers: np.ndarray, tolerance: float
+    ideal: np.ndarray, ideal_numbers: np.ndarray, new: np.ndarray, numbers: np.ndarray, tolerance: float, tree=None
 ) -> tuple[np.ndarray, float] | None:
-    """Match each new atom to the nearest stored atom (same orientation) and align; None if that fails."""
-    from scipy.spatial import cKDTree
+    """Match each new atom to the nearest stored atom (same orientation) and align; None if that fails.
 
-    _, j = cKDTree(ideal).query(new)
+    ``tree`` is a k-d tree of ``ideal`` built before (one is built here if not given).
+    """
+    if tree is None:
+        from scipy.spatial import cKDTree
+
+        tree = cKDTree(ideal)
+    _, j = tree.query(new)
     if len(set(j.tolist())) != len(j) or not np.array_equal(ideal_numbers[j], numbers):
         return None
     a = ideal[j]

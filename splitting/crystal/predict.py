@@ -283,7 +283,8 @@ def _classes_in(free: OrientedGroup, ops: np.ndarray) -> np.ndarray | bool | Non
 
 
 def _axes_text(cell: CellSymmetry, og: OrientedGroup) -> dict[str, str]:
-    return {k: cell.direction_text(v) for k, v in og.axes().items()}
+    axes = og.axes()
+    return dict(zip(axes, cell.direction_texts(list(axes.values())), strict=True))
 
 
 def _warnings(cell: CellSymmetry, units: tuple[Unit, ...]) -> list[str]:
@@ -353,6 +354,7 @@ def _predict(
     orbit_results: list[UnitOrbit] = []
     sites: dict[tuple[int, ...], _Site] = {}
     species_done: dict[tuple, tuple[Representation, Representation]] = {}
+    orbits_done: dict[tuple, tuple[list[Correlation], Representation]] = {}
     axes_text = _AxesText(cell)
     site_ops_of = _site_ops_all(cell, [units[orbit[0][0]].centre for orbit in orbits])
     setting = _setting(cell)
@@ -400,8 +402,15 @@ def _predict(
             else:
                 lib = st.librations
             orbit_key = tuple(h for _, h in orbit)
+            vib_key = tuple(info.vibrations)
+            # the correlation of an orbit follows from the site, the orbit's operations, the free group
+            # and where the site operations fall in it: orbits alike in all four share it
+            memo_key = None if classes is True else (key, orbit_key, free.name, classes.tobytes(), vib_key)
+            memo = orbits_done.get(memo_key) if memo_key is not None else None
+            if memo is not None:
+                correlation, internal = memo
             pairs = None
-            for label, n in info.vibrations:
+            for label, n in info.vibrations if memo is None else ():
                 if classes is True:
                     chars = np.array([free.character(label, op) for op in site.operations])
                 else:
@@ -420,6 +429,8 @@ def _predict(
                 dim = free.group.get_species(label).dimension
                 correlation.append(Correlation(label, dim, n, site_rep, fac))
                 internal = internal + fac * n
+            if memo is None and memo_key is not None:
+                orbits_done[memo_key] = (correlation, internal)
         site_to_factor = st.site_to_factor
         orbit_results.append(
             UnitOrbit(
@@ -443,7 +454,7 @@ def _predict(
                 translations=trans,
                 librations=lib,
                 symbols=tuple(u0.symbols),
-                geometry=tuple(tuple(float(c) for c in p) for p in (u0.positions - centre)),
+                geometry=tuple(map(tuple, (u0.positions - centre).tolist())),
                 site_to_factor=site_to_factor,
             )
         )

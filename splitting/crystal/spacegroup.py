@@ -270,24 +270,33 @@ class CellSymmetry:
 
     def direction_text(self, v: np.ndarray) -> str:
         """A Cartesian direction as crystal-axis text: ``"a"``, ``"c"``, ``"[1,1,0]"`` (of :attr:`label_basis`)."""
-        v = np.asarray(v, dtype=float)
+        return self.direction_texts([v])[0]
+
+    def direction_texts(self, vs) -> list[str]:
+        """:meth:`direction_text` of several directions at once (one array operation for all)."""
+        vs = np.asarray(vs, dtype=float).reshape(-1, 3)
         inv, rn, oblique = _label_frame(np.ascontiguousarray(self.label_basis, dtype=float).tobytes())
-        recip = inv.T  # rows: a*, b*, c* (without 2 pi)
-        cosang = (recip @ v) / (np.linalg.norm(v) * rn)
-        for k in range(3):
-            if abs(abs(float(cosang[k])) - 1) < 1e-6 and oblique[k]:
-                return ("-" if cosang[k] < 0 else "") + "abc"[k] + "*"
-        uvw = v @ inv
-        m = np.max(np.abs(uvw))
-        for scale in (1, 2, 3, 4, 6):
-            w = uvw / m * scale
-            if np.max(np.abs(w - np.round(w))) <= 2e-3:
-                ints = [round(x) for x in w]
+        cosang = (vs @ inv) / (np.linalg.norm(vs, axis=1)[:, None] * rn[None])  # along a*, b*, c*
+        star = (np.abs(np.abs(cosang) - 1) < 1e-6) & oblique[None]
+        uvw = vs @ inv
+        unit = uvw / np.max(np.abs(uvw), axis=1)[:, None]
+        scaled = unit[:, None, :] * np.array([1.0, 2.0, 3.0, 4.0, 6.0])[None, :, None]
+        whole = np.max(np.abs(scaled - np.round(scaled)), axis=2) <= 2e-3  # (directions, scales)
+        out = []
+        for n in range(len(vs)):
+            if star[n].any():
+                k = int(np.argmax(star[n]))
+                out.append(("-" if cosang[n, k] < 0 else "") + "abc"[k] + "*")
+            elif whole[n].any():
+                ints = [round(x) for x in scaled[n, int(np.argmax(whole[n]))]]
                 if sorted(np.abs(ints)) == [0, 0, 1]:
                     k = int(np.argmax(np.abs(ints)))
-                    return ("-" if ints[k] < 0 else "") + "abc"[k]
-                return "[" + ",".join(str(i) for i in ints) + "]"
-        return "[" + ",".join(f"{x:.3f}" for x in uvw / m) + "]"
+                    out.append(("-" if ints[k] < 0 else "") + "abc"[k])
+                else:
+                    out.append("[" + ",".join(str(i) for i in ints) + "]")
+            else:
+                out.append("[" + ",".join(f"{x:.3f}" for x in unit[n]) + "]")
+        return out
 
     def orbit_of(self, point: np.ndarray) -> np.ndarray:
         """Distinct images (Cartesian, inside the primitive cell) of a point under the space group."""
@@ -308,54 +317,83 @@ class CellSymmetry:
     ) -> list[tuple[str, str]]:
         """Wyckoff position (multiplicity and letter, e.g. ``"4a"``) and oriented site symbol of points.
 
-        Where no atom sits at a point, a dummy atom of a new kind is placed on its orbit and
-        spglib's tables are read once for all points, on the idealised cell (exact symmetry,
-        so this makes no tolerance decision; the ``tolerance`` argument is kept for callers).
+        A point on an atom (within 0.05 angstrom) or on the general position (when some atom is
+        there) takes that atom's names.  For the others, a dummy atom of a new kind is placed on
+        the orbit of each, and spglib's tables are read once for all of them from a search of a
+        skeleton of the same space group (:func:`_skeleton_names`), on the idealised cell (exact
+        symmetry, so this makes no tolerance decision; the ``tolerance`` argument is kept for
+        callers).
         """
-        inv = np.linalg.inv(self.lattice)
-        ratio = abs(np.linalg.det(self.conventional) / np.linalg.det(self.lattice))
         if not self.sites_named:
             return [("?", "?") for _ in points]
-        base_frac, base_numbers = (self.frac, self.numbers) if self.skeleton is None else self.skeleton
-        frac, numbers, slot, sizes = [base_frac], [base_numbers], [], []
-        count = len(base_numbers)
-        kind = int(np.max(base_numbers)) + 1000
+        pts = np.asarray(points, dtype=float).reshape(-1, 3)
+        ratio = abs(np.linalg.det(self.conventional) / np.linalg.det(self.lattice))
+        sizes = self._orbit_sizes(pts)
+        on_atom = self._atom_at(pts)
         # an atom on the general position names every point on it (no look-up needed)
         general = next((k for k, sym in enumerate(self.site_symbols) if sym.replace(".", "") == "1"), None)
-        for n, p in enumerate(points):
-            orbit = self.orbit_of(p)
-            sizes.append(len(orbit))
-            d = self.frac - p @ inv
+        names: list[tuple[str, str] | None] = []
+        missing = []
+        for n in range(len(pts)):
+            i = int(on_atom[n])
+            if i < 0 and general is not None and sizes[n] == len(self.rotations):
+                i = general
+            if i >= 0:
+                names.append((self.wyckoffs[i], self.site_symbols[i]))
+            else:
+                names.append(None)
+                missing.append(n)
+        if missing:  # one search names the missing points and, from the same search, the atoms
+            atom_names, found = _skeleton_names(self, pts[missing])
+            names = [atom_names[int(on_atom[n])] if on_atom[n] >= 0 else name for n, name in enumerate(names)]
+            for n, name in zip(missing, found, strict=True):
+                names[n] = name
+        return [(f"{round(size * ratio)}{w}", site) for size, (w, site) in zip(sizes, names, strict=True)]
+
+    def _orbit_sizes(self, pts: np.ndarray) -> list[int]:
+        """Number of distinct images of each point, as :meth:`orbit_of` counts them (many points at once)."""
+        inv = np.linalg.inv(self.lattice)
+        m = len(self.rotations)
+        out: list[int] = []
+        step = max(1, 200_000 // (m * m))
+        for lo in range(0, len(pts), step):
+            f = (np.einsum("nj,kij->nki", pts[lo : lo + step], self.rotations) + self.translations[None]) @ inv
+            f -= np.floor(f + 1e-9)
+            d = f[:, :, None] - f[:, None]
+            d -= np.round(d)
+            same = np.linalg.norm(d @ self.lattice, axis=3) < 1e-2  # (points, ops, ops)
+            kept = np.zeros((len(f), m), dtype=bool)
+            for k in range(m):
+                kept[:, k] = ~np.any(same[:, k] & kept, axis=1)
+            out.extend(kept.sum(axis=1).tolist())
+        return out
+
+    def _atom_at(self, pts: np.ndarray, *, tol: float = 0.05) -> np.ndarray:
+        """Index of the primitive-cell atom within ``tol`` angstrom of each point (modulo the lattice), or -1."""
+        from scipy.spatial import cKDTree
+
+        inv = np.linalg.inv(self.lattice)
+        out = np.full(len(pts), -1, dtype=int)
+        if not len(pts) or not len(self.frac):
+            return out
+
+        def box(f: np.ndarray) -> np.ndarray:
+            f = np.mod(f, 1.0)
+            f[f >= 1.0] = 0.0
+            return f
+
+        # a Cartesian distance below tol is a fractional one below tol * |inv| (spectral norm)
+        reach = tol * float(np.linalg.norm(inv, 2)) * (1 + 1e-9)
+        tree = cKDTree(box(np.array(self.frac, dtype=float)), boxsize=1.0)
+        for n, near in enumerate(tree.query_ball_point(box(pts @ inv), reach)):
+            if not near:
+                continue
+            near = np.sort(np.asarray(near, dtype=int))
+            d = self.frac[near] - pts[n] @ inv
             d -= np.round(d)
             dist = np.linalg.norm(d @ self.lattice, axis=1)
-            if dist.min() < 0.05:
-                slot.append((True, int(np.argmin(dist))))
-                continue
-            if general is not None and len(orbit) == len(self.rotations):
-                slot.append((True, general))
-                continue
-            slot.append((False, count))
-            f = orbit @ inv
-            frac.append(f)
-            numbers.append(np.full(len(f), kind + n))
-            count += len(f)
-        wyck, sites = list(self.wyckoffs), list(self.site_symbols)
-        if count > len(base_numbers):
-            ds = spglib_dataset(self.lattice, np.vstack(frac), np.concatenate(numbers), _EXACT)
-            if int(ds.number) != self.info.number:
-                raise BookkeepingError(
-                    f"unit centres placed on the idealised cell give space group No. {ds.number}, "
-                    f"not No. {self.info.number}"
-                )
-            if self.skeleton is None:  # the atoms were searched again: their names from the same search
-                wyck, sites = list(ds.wyckoffs), list(ds.site_symmetry_symbols)
-            else:
-                wyck = [*wyck, *([""] * len(base_numbers)), *list(ds.wyckoffs)[len(base_numbers) :]]
-                sites = [*sites, *([""] * len(base_numbers)), *list(ds.site_symmetry_symbols)[len(base_numbers) :]]
-        out = []
-        for (atom, i), size in zip(slot, sizes, strict=True):
-            k = i if atom or self.skeleton is None else i + len(self.numbers)
-            out.append((f"{round(size * ratio)}{wyck[k]}", sites[k]))
+            if dist.min() < tol:
+                out[n] = near[int(np.argmin(dist))]
         return out
 
     def labelled_on(self, multiple: np.ndarray) -> CellSymmetry:
@@ -398,6 +436,18 @@ def _label_frame(basis: bytes) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     for a in (inv, rn, oblique):
         a.setflags(write=False)
     return inv, rn, oblique
+
+
+def _first_of_each(mapping: np.ndarray, n: int) -> np.ndarray:
+    """Index of the first entry of ``mapping`` equal to each of 0 .. n - 1 (one sort, not n scans).
+
+    >>> _first_of_each(np.array([1, 0, 1, 2, 0]), 3).tolist()
+    [1, 0, 3]
+    """
+    values, first = np.unique(mapping, return_index=True)
+    if len(values) != n or not np.array_equal(values, np.arange(n)):  # pragma: no cover - spglib maps onto 0 .. n - 1
+        raise BookkeepingError("spglib's mapping to the primitive cell misses a primitive atom")
+    return first
 
 
 def _info(ds, tolerance: float, others, largest_shift: float = 0.0) -> SpaceGroupInfo:
@@ -469,6 +519,71 @@ def cell_from_operations(
     )
 
 
+def _general_orbits(
+    lattice: np.ndarray, w: np.ndarray, t: np.ndarray, fixed: np.ndarray, seed: int = 0
+) -> list[np.ndarray] | None:
+    """Three orbits of random general points (fractional, operations ``w``, ``t`` in the basis
+    ``lattice``), each point at least 0.5 angstrom from every other and from ``fixed`` (the
+    points of ``fixed`` may lie closer to one another); None if 30 trials do not find them."""
+    rng = np.random.default_rng(seed)
+    points: list[np.ndarray] = []
+    for _ in range(30):
+        if len(points) == 3:
+            break
+        orbit = rng.random(3) @ np.transpose(w, (0, 2, 1)) + t
+        orbit -= np.floor(orbit)
+        others = np.vstack([orbit, *points, fixed])
+        d = orbit[:, None] - others[None]
+        d -= np.round(d)
+        dist = np.linalg.norm(d @ lattice, axis=2) + np.eye(len(orbit), len(others)) * 1e3
+        if dist.min() > 0.5:
+            points.append(orbit)
+    return points if len(points) == 3 else None
+
+
+def _skeleton_names(cell: CellSymmetry, pts: np.ndarray) -> tuple[list[tuple[str, str]], list[tuple[str, str]]]:
+    """Wyckoff letters and site symbols of the primitive-cell atoms and of points that hold no atom.
+
+    spglib searches a skeleton of the cell's space group on the cell's lattice basis: three
+    orbits of random general points, the atoms on special positions and the orbit of every
+    point, each orbit its own kind.  Its operations on that basis are those of the cell, so
+    spglib names the standard setting, the origin and the letters as a search of every atom
+    with the points would (at a cost that does not grow with the atoms on general positions).
+    """
+    inv = np.linalg.inv(cell.lattice)
+    special = [i for i, sym in enumerate(cell.site_symbols) if sym.replace(".", "") != "1"]
+    orbits = [cell.orbit_of(p) @ inv for p in pts]
+    fixed = np.vstack([cell.frac[special], *orbits])
+    w, t = cell.frac_rotations, cell.frac_translations
+    general = None
+    for seed in range(3):  # a skeleton with more symmetry than the cell (never seen) tries again
+        found = _general_orbits(cell.lattice, w, t, fixed, seed)
+        if found is None:
+            continue
+        top = int(np.max(cell.numbers)) + 1000
+        kinds = [np.full(len(o), top + k) for k, o in enumerate(found)]
+        kinds += [cell.numbers[special]] + [np.full(len(o), top + 3 + k) for k, o in enumerate(orbits)]
+        frac = np.vstack([*found, fixed])
+        ds = spglib_dataset(cell.lattice, frac, np.concatenate(kinds), _EXACT)
+        exact = len(ds.rotations) == len(w) and len(set(np.asarray(ds.mapping_to_primitive).tolist())) == len(frac)
+        if int(ds.number) == cell.info.number and exact:
+            general = 3 * len(w)
+            break
+    if general is None:  # pragma: no cover - the orbits of a space group keep its symmetry
+        raise BookkeepingError(
+            f"unit centres placed on the idealised cell do not keep space group No. {cell.info.number}"
+        )
+    names = [(str(ds.wyckoffs[i]), str(ds.site_symmetry_symbols[i])) for i in range(len(frac))]
+    atoms = [names[0]] * len(cell.numbers)  # general atoms: the letter of the general position
+    for k, i in enumerate(special):
+        atoms[i] = names[general + k]
+    out, at = [], general + len(special)
+    for o in orbits:
+        out.append(names[at])
+        at += len(o)
+    return atoms, out
+
+
 def cell_of_known_group(
     lattice: np.ndarray,
     frac: np.ndarray,
@@ -498,20 +613,8 @@ def cell_of_known_group(
     frac = np.asarray(frac, dtype=float)
     numbers = np.array(numbers, dtype=int)
     special = np.flatnonzero(np.asarray(special, dtype=bool))
-    rng = np.random.default_rng(seed)
-    points: list[np.ndarray] = []
-    for _ in range(30):  # three general orbits, each at least 0.5 A from every other skeleton point
-        if len(points) == 3:
-            break
-        orbit = rng.random(3) @ np.transpose(w, (0, 2, 1)) + t
-        orbit -= np.floor(orbit)
-        trial = np.vstack([*points, orbit, frac[special]])
-        d = trial[:, None] - trial[None]
-        d -= np.round(d)
-        dist = np.linalg.norm(d @ lattice, axis=2) + np.eye(len(trial)) * 1e3
-        if dist.min() > 0.5:
-            points.append(orbit)
-    if len(points) < 3:
+    points = _general_orbits(lattice, w, t, frac[special], seed)
+    if points is None:
         return None
     skeleton = np.vstack([*points, frac[special]])
     top = int(numbers.max()) if len(numbers) else 0
@@ -616,8 +719,8 @@ def _cell_of_dataset(ds, lattice, frac, numbers, tolerance: float, others, stand
     std_map = np.asarray(ds.std_mapping_to_primitive)
     in_map = np.asarray(ds.mapping_to_primitive)
     n_prim = int(in_map.max()) + 1
-    first_std = np.array([int(np.flatnonzero(std_map == k)[0]) for k in range(n_prim)])
-    first_in = np.array([int(np.flatnonzero(in_map == k)[0]) for k in range(n_prim)])
+    first_std = _first_of_each(std_map, n_prim)
+    first_in = _first_of_each(in_map, n_prim)
     cart = (np.asarray(ds.std_positions, dtype=float)[first_std] - shift) @ conv
     pfrac = cart @ inv_plat
     pfrac -= np.floor(pfrac + 1e-9)
