@@ -20,7 +20,7 @@ import numpy as np
 from ..errors import SymmetryError
 from .catalogue import family
 from .linear import LinearGroup, linear_group
-from .operations import describe, multiplication_table, nearest_matrices
+from .operations import OperationKinds, classify, multiplication_table, nearest_matrices
 from .pointgroup import PointGroup, point_group
 from .representation import Representation
 
@@ -171,19 +171,31 @@ class _Axis:
     order: int  # highest proper rotation order about it
 
 
-def _axes(kinds) -> list[_Axis]:
-    found: list[_Axis] = []
-    for k in kinds:
-        if not k.proper or k.order < 2:
-            continue
-        for i, a in enumerate(found):
-            if abs(abs(float(np.dot(a.direction, k.axis))) - 1) < 1e-3:
-                if k.order > a.order:
-                    found[i] = _Axis(a.direction, k.order)
+def _dot_rows(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Row-wise dot products of (n, 3) arrays, summed in order (the bits of ``np.dot`` of two 3-vectors)."""
+    return a[..., 0] * b[..., 0] + a[..., 1] * b[..., 1] + a[..., 2] * b[..., 2]
+
+
+def _axes(kinds: OperationKinds) -> list[_Axis]:
+    """Rotation axes, each with the highest order of a proper rotation about it (first seen first)."""
+    sel = np.flatnonzero(kinds.proper & (kinds.order >= 2))
+    if not len(sel):
+        return []
+    dirs = kinds.axis[sel]
+    par = np.abs(np.abs(dirs @ dirs.T) - 1) < 1e-3
+    orders = kinds.order[sel]
+    reps: list[int] = []  # positions in sel of the first rotation about every axis
+    best: list[int] = []
+    for i in range(len(sel)):
+        for r, j in enumerate(reps):
+            if par[j, i]:
+                best[r] = max(best[r], int(orders[i]))
                 break
         else:
-            found.append(_Axis(k.axis / np.linalg.norm(k.axis), k.order))
-    return found
+            reps.append(i)
+            best.append(int(orders[i]))
+    rep_dirs = dirs[reps] / np.linalg.norm(dirs[reps], axis=1)[:, None]
+    return [_Axis(d, o) for d, o in zip(rep_dirs, best, strict=True)]
 
 
 def _parallel(u: np.ndarray, v: np.ndarray, tol: float = 1e-3) -> bool:
@@ -202,21 +214,29 @@ def name_of(ops: np.ndarray) -> str:
     'D3d'
     """
     ops = np.asarray(ops, dtype=float)
-    multiplication_table(ops, tol=1e-3)  # raises unless the set is closed
+    if ops.ndim != 3 or ops.shape[1:] != (3, 3) or len(ops) == 0:
+        raise SymmetryError("operations must be an array of shape (n, 3, 3)")
+    return _name(ops, classify(ops), closed=False)
+
+
+def _name(ops: np.ndarray, kinds: OperationKinds, *, closed: bool) -> str:
+    """:func:`name_of` with the operations classified; ``closed`` skips the closure check."""
+    if not closed:
+        multiplication_table(ops, tol=1e-3)  # raises unless the set is closed
     if len({np.round(o, 4).tobytes() for o in ops}) != len(ops):
         raise SymmetryError("the operations contain duplicates")
-    kinds = [describe(o) for o in ops]
-    proper = [k for k in kinds if k.proper]
+    symbols = kinds.symbol
+    n_proper = int(np.sum(kinds.proper))
     axes = _axes(kinds)
-    has_i = any(k.symbol == "i" for k in kinds)
-    improper = len(proper) != len(kinds)
+    has_i = "i" in symbols
+    improper = n_proper != len(kinds)
     high = [a for a in axes if a.order >= 3]
     if len(high) >= 2:
         orders = {a.order for a in axes}
         rot = "I" if 5 in orders else ("O" if 4 in orders else "T")
         n = 0
         principal = None
-    elif len(proper) == 1:
+    elif n_proper == 1:
         rot, n, principal = "C1", 1, None
     else:
         principal = max(axes, key=lambda a: a.order)
@@ -238,16 +258,13 @@ def name_of(ops: np.ndarray) -> str:
         else:
             name = {"T": "Th", "O": "Oh", "I": "Ih"}[rot]
     else:
-        sigma_h = principal is not None and any(
-            k.symbol == "σ" and _parallel(k.axis, principal.direction) for k in kinds
-        )
-        s2n = principal is not None and any(
-            (not k.proper)
-            and k.symbol not in ("σ", "i")
-            and _parallel(k.axis, principal.direction)
-            and k.order == 2 * n
-            for k in kinds
-        )
+        sigma_h = s2n = False
+        if principal is not None:
+            along = np.abs(np.abs(_dot_rows(kinds.axis, principal.direction[None])) - 1) < 1e-3
+            mirror = np.array([s == "σ" for s in symbols])
+            sigma_h = bool(np.any(mirror & along))
+            rotoreflection = ~kinds.proper & ~mirror & np.array([s != "i" for s in symbols])
+            s2n = bool(np.any(rotoreflection & along & (kinds.order == 2 * n)))
         if rot == "C1":
             name = "Cs"
         elif rot == "Cn":
@@ -276,62 +293,53 @@ def _perpendicular(z: np.ndarray, hint: np.ndarray | None = None) -> np.ndarray:
     raise AssertionError("unreachable")  # pragma: no cover
 
 
-def _candidate_frames(name: str, ops: np.ndarray, kinds, reference: np.ndarray) -> list[np.ndarray]:
+def _signed(vs: np.ndarray) -> np.ndarray:
+    """Rows v0, -v0, v1, -v1, ... of the rows of ``vs``."""
+    vs = np.asarray(vs, dtype=float).reshape(-1, 3)
+    return np.stack([vs, -vs], axis=1).reshape(-1, 3)
+
+
+def _pairs_perpendicular(zs: np.ndarray, lines: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Every (z, x) with x running over the signed ``lines`` perpendicular to z, z by z."""
+    if not len(zs) or not len(lines):
+        return np.zeros((0, 3)), np.zeros((0, 3))
+    perp = np.abs(zs @ lines.T) < 1e-3  # (nz, nl)
+    zi, li = np.nonzero(perp)
+    xs = _signed(lines[li])
+    return np.repeat(zs[zi], 2, axis=0), xs
+
+
+def _candidate_frames(name: str, kinds: OperationKinds, reference: np.ndarray) -> np.ndarray:
+    """Candidate standard frames, shape (n, 3, 3), in the order in which they are tried."""
     fam, _n = family(name)
+    if fam in ("C1", "Ci"):
+        return reference.copy()[None]
     axes = _axes(kinds)
     ref_x = reference[:, 0]
-    zs: list[np.ndarray] = []
-    xs_for: Callable[[np.ndarray], list[np.ndarray]]
-    mirrors = [k.axis for k in kinds if k.symbol == "σ"]
-
-    def signed(vs):
-        out = []
-        for v in vs:
-            out += [v, -v]
-        return out
-
-    if fam in ("C1", "Ci"):
-        return [reference.copy()]
+    directions = np.array([a.direction for a in axes]).reshape(-1, 3)
+    orders = np.array([a.order for a in axes], dtype=int)
+    mirrors = kinds.axis[np.array([s == "σ" for s in kinds.symbol], dtype=bool)]
     if fam in ("T", "Th", "Td", "O", "Oh", "I", "Ih"):
-        order = 4 if fam in ("O", "Oh") else 2
-        cube = [a.direction for a in axes if a.order == order]
-        zs = signed(cube)
-
-        def xs_for(z):
-            return signed([a for a in cube if abs(np.dot(a, z)) < 1e-3])
+        cube = directions[orders == (4 if fam in ("O", "Oh") else 2)]
+        z, x = _pairs_perpendicular(_signed(cube), cube)
     elif fam == "Cs":
-        zs = signed(mirrors)
-
-        def xs_for(z):
-            return [_perpendicular(z, ref_x)]
+        zs = _signed(mirrors)
+        z, x = zs, np.array([_perpendicular(v, ref_x) for v in zs]).reshape(-1, 3)
     else:
-        if name in ("D2", "D2h"):
-            zs = signed([a.direction for a in axes])
-        else:
-            top = max(a.order for a in axes)
-            zs = signed([a.direction for a in axes if a.order == top])
+        zs = _signed(directions if name in ("D2", "D2h") else directions[orders == orders.max()])
         if fam in ("Dn", "Dnh", "Dnd"):
-
-            def xs_for(z):
-                return signed([a.direction for a in axes if a.order == 2 and abs(np.dot(a.direction, z)) < 1e-3])
+            z, x = _pairs_perpendicular(zs, directions[orders == 2])
         elif fam == "Cnv":
-
-            def xs_for(z):
-                return signed(
-                    [np.cross(z, m) / np.linalg.norm(np.cross(z, m)) for m in mirrors if abs(np.dot(m, z)) < 1e-3]
-                )
+            # x along z x m for the mirror normals m perpendicular to z
+            perp = np.abs(zs @ mirrors.T) < 1e-3
+            zi, mi = np.nonzero(perp)
+            c = np.cross(zs[zi], mirrors[mi])
+            z, x = np.repeat(zs[zi], 2, axis=0), _signed(c / np.linalg.norm(c, axis=1)[:, None])
         else:
-
-            def xs_for(z):
-                return [_perpendicular(z, ref_x)]
-
-    frames = []
-    for z in zs:
-        for x in xs_for(z):
-            x = x - np.dot(x, z) * z
-            x = x / np.linalg.norm(x)
-            frames.append(np.column_stack([x, np.cross(z, x), z]))
-    return frames
+            z, x = zs, np.array([_perpendicular(v, ref_x) for v in zs]).reshape(-1, 3)
+    x = x - _dot_rows(x, z)[:, None] * z
+    x = x / np.linalg.norm(x, axis=1)[:, None]
+    return np.stack([x, np.cross(z, x), z], axis=2)
 
 
 def crystal_preference(reference: np.ndarray) -> Preference:
@@ -387,7 +395,12 @@ def molecular_preference(positions: np.ndarray, *, tol: float = 0.1) -> Preferen
 
 
 def identify(
-    ops: np.ndarray, *, prefer: Preference | None = None, reference: np.ndarray | None = None, tol: float = 0.05
+    ops: np.ndarray,
+    *,
+    prefer: Preference | None = None,
+    reference: np.ndarray | None = None,
+    tol: float = 0.05,
+    closed: bool = False,
 ) -> OrientedGroup:
     """Identify a finite group given as operations and find its standard frame.
 
@@ -402,6 +415,9 @@ def identify(
         Reference axes as columns (default the identity).
     tol : float
         Largest difference of matrix elements accepted when matching operations.
+    closed : bool
+        True when the caller has just proved that the operations form a group (the
+        free-unit search closes its atom permutations): the closure check is skipped.
 
     Returns
     -------
@@ -426,28 +442,38 @@ def identify(
         raise SymmetryError("operations must be an array of shape (n, 3, 3)")
     if np.max(np.abs(np.einsum("nij,nkj->nik", ops, ops) - np.eye(3))) > 10 * tol:
         raise SymmetryError("operations are not orthogonal matrices")
-    name = name_of(ops)
+    kinds = classify(ops)
+    name = _name(ops, kinds, closed=closed)
     group = point_group(name)
     ref = np.eye(3) if reference is None else np.asarray(reference, dtype=float)
     score = prefer or crystal_preference(ref)
-    kinds = [describe(o) for o in ops]
     flat_ops = ops.reshape(-1, 9)
     best, best_score = None, None
     fam, _ = family(name)
     unique_frame = fam in ("T", "Th", "Td", "O", "Oh", "I", "Ih", "C1", "Ci")
-    for frame in _candidate_frames(name, ops, kinds, ref):
+    may_stop = unique_frame and prefer is not None and reference is None
+    frames = _candidate_frames(name, kinds, ref)
+
+    def misfit(frame: np.ndarray) -> float:
         mapped = np.einsum("ij,njk,lk->nil", frame, group.operations, frame).reshape(-1, 9)
-        d, _ = nearest_matrices(flat_ops, mapped)
-        if np.max(d) > tol * 3:
+        return float(np.max(nearest_matrices(flat_ops, mapped)[0]))
+
+    if may_stop:  # the first frame that fits is taken: try them one by one
+        misfits = (misfit(frame) for frame in frames)
+    else:  # every frame is scored: match them all at once
+        mapped = np.einsum("fij,njk,flk->fnil", frames, group.operations, frames).reshape(-1, 9)
+        misfits = iter(nearest_matrices(flat_ops, mapped)[0].reshape(len(frames), -1).max(axis=1).tolist())
+    for frame, d in zip(frames, misfits, strict=True):
+        if d > tol * 3:
             continue
         s = score(frame)
         if best is None or s > best_score:
             best, best_score = frame, s
-            if unique_frame and prefer is not None and reference is None:
+            if may_stop:
                 break
     if best is None:
         raise SymmetryError(f"operations look like {name} but no standard frame matches them")
-    return OrientedGroup(group, best)
+    return OrientedGroup(group, best.copy())
 
 
 # ------------------------------------------------------------- crystal groups, cached

@@ -23,7 +23,7 @@ import numpy as np
 
 from ..errors import SymmetryError
 from .catalogue import GOLDEN, family
-from .operations import describe, improper_rotation, reflection, rotation
+from .operations import OperationKind, OperationKinds, classify, improper_rotation, reflection, rotation
 
 __all__ = ["class_names", "mulliken_labels"]
 
@@ -120,11 +120,10 @@ def mulliken_labels(name: str, chi: Callable[[int, np.ndarray], float | None], d
     return labels
 
 
-def _powers(ops: np.ndarray, members: np.ndarray) -> list[int]:
+def _powers(kinds: list[OperationKind]) -> list[int]:
     """k of C_n^k / S_n^k for each member, about +z when the axis is z, else the canonical axis."""
     out = []
-    for m in members:
-        d = describe(ops[m])
+    for d in kinds:
         if d.order <= 2 or d.symbol in ("E", "i", "σ"):
             out.append(1)
             continue
@@ -139,12 +138,18 @@ def _powers(ops: np.ndarray, members: np.ndarray) -> list[int]:
     return out
 
 
-def class_names(name: str, ops: np.ndarray, classes: list[np.ndarray]) -> list[str]:
-    """Names such as 'E', '2C3', "3C2'", 'σh', '2S6' for the classes of a standard group."""
+def class_names(
+    name: str, ops: np.ndarray, classes: list[np.ndarray], *, kinds: OperationKinds | None = None
+) -> list[str]:
+    """Names such as 'E', '2C3', "3C2'", 'σh', '2S6' for the classes of a standard group.
+
+    ``kinds`` is ``classify(ops)`` when the caller has it already.
+    """
     fam, _ = family(name)
+    every = classify(ops) if kinds is None else kinds
     names: list[str] = []
     for members in classes:
-        kinds = [describe(ops[m]) for m in members]
+        kinds = [every[int(m)] for m in members]
         kind = kinds[0]
         axes = [k.axis for k in kinds]
 
@@ -153,7 +158,7 @@ def class_names(name: str, ops: np.ndarray, classes: list[np.ndarray]) -> list[s
 
         sym = kind.symbol
         if kind.order > 2 and sym not in ("E", "i", "σ"):
-            powers = _powers(ops, members)
+            powers = _powers(kinds)
             on_z = [k for k, kd in zip(powers, kinds, strict=True) if abs(abs(kd.axis[2]) - 1) < 1e-6]
             k = min(on_z) if on_z else min(powers)
             letter = "C" if kind.proper else "S"

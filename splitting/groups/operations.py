@@ -13,10 +13,13 @@ import numpy as np
 from ..errors import SymmetryError
 
 __all__ = [
+    "HASH_WEIGHTS",
     "IDENTITY",
     "INVERSION",
     "MATRIX_TOL",
     "OperationKind",
+    "OperationKinds",
+    "classify",
     "close_group",
     "describe",
     "find_operation",
@@ -94,41 +97,141 @@ class OperationKind:
     symbol: str
 
 
-def _rotation_axis_angle(r: np.ndarray) -> tuple[np.ndarray, float]:
-    """Axis and angle in [0, pi] of a proper rotation matrix."""
-    c = np.clip((np.trace(r) - 1) / 2, -1.0, 1.0)
-    angle = float(np.arccos(c))
-    if angle < 1e-7:
-        return np.array([0.0, 0.0, 1.0]), 0.0
-    if np.pi - angle < 1e-5:
+@dataclass(frozen=True, eq=False)
+class OperationKinds:
+    """:class:`OperationKind` of a stack of operations, as arrays (see :func:`classify`).
+
+    Attributes
+    ----------
+    proper : numpy.ndarray of bool, shape (n,)
+    order, power : numpy.ndarray of int, shape (n,)
+    axis : numpy.ndarray, shape (n, 3)
+    angle : numpy.ndarray, shape (n,)
+    symbol : tuple of str
+    """
+
+    proper: np.ndarray
+    order: np.ndarray
+    power: np.ndarray
+    axis: np.ndarray
+    angle: np.ndarray
+    symbol: tuple[str, ...]
+
+    def __len__(self) -> int:
+        return len(self.symbol)
+
+    def __getitem__(self, i: int) -> OperationKind:
+        return OperationKind(
+            bool(self.proper[i]),
+            int(self.order[i]),
+            int(self.power[i]),
+            self.axis[i].copy(),
+            float(self.angle[i]),
+            self.symbol[i],
+        )
+
+    def __iter__(self):
+        return (self[i] for i in range(len(self)))
+
+
+def _rotation_axes_angles(r: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Axis and angle in [0, pi] of every proper rotation matrix of a stack (n, 3, 3)."""
+    n = len(r)
+    c = np.clip((np.trace(r, axis1=1, axis2=2) - 1) / 2, -1.0, 1.0)
+    angle = np.arccos(c)
+    axis = np.empty((n, 3))
+    small = angle < 1e-7
+    half = ~small & (np.pi - angle < 1e-5)
+    general = ~small & ~half
+    axis[small] = (0.0, 0.0, 1.0)
+    angle[small] = 0.0
+    if np.any(half):
         # axis from the symmetric part: R + I = 2 u u^T
-        m = (r + np.eye(3)) / 2
-        j = int(np.argmax(np.diag(m)))
-        u = m[:, j] / np.sqrt(max(m[j, j], 1e-300))
-        return _canonical_direction(u), float(np.pi)
-    u = np.array([r[2, 1] - r[1, 2], r[0, 2] - r[2, 0], r[1, 0] - r[0, 1]]) / (2 * np.sin(angle))
-    return u / np.linalg.norm(u), angle
+        m = (r[half] + np.eye(3)) / 2
+        rows = np.arange(len(m))
+        diag = np.diagonal(m, axis1=1, axis2=2)
+        j = np.argmax(diag, axis=1)
+        u = m[rows, :, j] / np.sqrt(np.maximum(diag[rows, j], 1e-300))[:, None]
+        axis[half] = _canonical_directions(u)
+        angle[half] = np.pi
+    if np.any(general):
+        g = r[general]
+        u = np.stack([g[:, 2, 1] - g[:, 1, 2], g[:, 0, 2] - g[:, 2, 0], g[:, 1, 0] - g[:, 0, 1]], axis=1)
+        u = u / (2 * np.sin(angle[general]))[:, None]
+        axis[general] = u / np.linalg.norm(u, axis=1)[:, None]
+    return axis, angle
 
 
-def _canonical_direction(u: np.ndarray) -> np.ndarray:
-    """Pick the sign of a line direction so that its first clear component is positive."""
-    u = u / np.linalg.norm(u)
-    for comp in u:
-        if abs(comp) > 1e-6:
-            return u if comp > 0 else -u
+def _canonical_directions(u: np.ndarray) -> np.ndarray:
+    """Pick the sign of line directions (rows) so that the first clear component is positive."""
+    u = u / np.linalg.norm(u, axis=1)[:, None]
+    clear = np.abs(u) > 1e-6
+    first = np.argmax(clear, axis=1)
+    lead = u[np.arange(len(u)), first]
+    flip = np.any(clear, axis=1) & (lead < 0)
+    u[flip] = -u[flip]
     return u
 
 
-def _order_power(angle: float, max_order: int = 64) -> tuple[int, int]:
-    """n, k with angle = 2 pi k / n (k coprime to n, k <= n/2)."""
-    if angle < 1e-7:
-        return 1, 0
+_ORDERS = np.arange(2, 65)
+_COPRIME = np.gcd.outer(_ORDERS, np.arange(0, 65)) == 1  # _COPRIME[n - 2, k]
+
+
+def _orders_powers(angle: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """n, k with angle = 2 pi k / n (k coprime to n, k <= n/2) for every angle; (1, 0) for ~0."""
     frac = angle / (2 * np.pi)
-    for n in range(2, max_order + 1):
-        k = round(frac * n)
-        if k > 0 and abs(frac * n - k) < 1e-5 and np.gcd(n, k) == 1:
-            return n, k
-    raise SymmetryError(f"rotation by {np.degrees(angle):.4f} degrees is not of finite order")
+    scaled = frac[:, None] * _ORDERS[None, :]
+    k = np.round(scaled)
+    ki = k.astype(np.int64)
+    ok = (k > 0) & (np.abs(scaled - k) < 1e-5) & _COPRIME[np.arange(len(_ORDERS))[None, :], np.clip(ki, 0, 64)]
+    zero = angle < 1e-7
+    bad = ~zero & ~np.any(ok, axis=1)
+    if np.any(bad):
+        worst = float(angle[np.flatnonzero(bad)[0]])
+        raise SymmetryError(f"rotation by {np.degrees(worst):.4f} degrees is not of finite order")
+    first = np.argmax(ok, axis=1)
+    rows = np.arange(len(angle))
+    order = np.where(zero, 1, _ORDERS[first])
+    power = np.where(zero, 0, ki[rows, first])
+    return order, power
+
+
+def classify(ops: np.ndarray) -> OperationKinds:
+    """:func:`describe` for a stack of orthogonal matrices at once (one numpy pass).
+
+    Examples
+    --------
+    >>> k = classify(np.array([np.eye(3), -np.eye(3), rotation([0, 0, 1], np.pi / 2)]))
+    >>> k.symbol, k.order.tolist()
+    (('E', 'i', 'C4'), [1, 2, 4])
+    """
+    ops = np.asarray(ops, dtype=float).reshape(-1, 3, 3)
+    n = len(ops)
+    proper = np.linalg.det(ops) > 0 if n else np.zeros(0, dtype=bool)
+    # improper: r = sigma_u C(phi) = -C(phi + pi) about u
+    axis, angle_p = _rotation_axes_angles(np.where(proper[:, None, None], ops, -ops))
+    inversion = ~proper & (angle_p < 1e-7)
+    angle = np.where(proper, angle_p, np.pi - angle_p)  # rotation angle of the proper part of sigma_u C(phi)
+    mirror = ~proper & ~inversion & (angle < 1e-7)
+    turn = np.where(inversion | mirror, 0.0, angle)
+    order, power = _orders_powers(turn)
+    order = np.where(inversion, 2, np.where(mirror, 1, order))
+    power = np.where(inversion | mirror, 1, power)
+    angle = np.where(inversion, np.pi, np.where(mirror | (proper & (order == 1)), 0.0, angle))
+    axis[inversion] = (0.0, 0.0, 1.0)
+    symbols = []
+    columns = (proper.tolist(), inversion.tolist(), mirror.tolist(), order.tolist(), power.tolist())
+    for p, i, m, nn, k in zip(*columns, strict=True):
+        if i:
+            symbols.append("i")
+        elif m:
+            symbols.append("σ")
+        elif p and nn == 1:
+            symbols.append("E")
+        else:
+            letter = "C" if p else "S"
+            symbols.append(f"{letter}{nn}" if k == 1 else f"{letter}{nn}^{k}")
+    return OperationKinds(proper, order, power, axis, angle, tuple(symbols))
 
 
 def describe(r: np.ndarray) -> OperationKind:
@@ -143,25 +246,7 @@ def describe(r: np.ndarray) -> OperationKind:
     >>> describe(reflection([1, 0, 0])).symbol
     'σ'
     """
-    r = np.asarray(r, dtype=float)
-    det = np.linalg.det(r)
-    if det > 0:
-        axis, angle = _rotation_axis_angle(r)
-        n, k = _order_power(angle)
-        if n == 1:
-            return OperationKind(True, 1, 0, axis, 0.0, "E")
-        sym = f"C{n}" if k == 1 else f"C{n}^{k}"
-        return OperationKind(True, n, k, axis, angle, sym)
-    # improper: r = sigma_u C(phi) = -C(phi + pi) about u
-    axis, angle_p = _rotation_axis_angle(-r)
-    phi = np.pi - angle_p  # rotation angle of the proper part of sigma_u C(phi)
-    if angle_p < 1e-7:
-        return OperationKind(False, 2, 1, np.array([0.0, 0.0, 1.0]), np.pi, "i")
-    if phi < 1e-7:
-        return OperationKind(False, 1, 1, axis, 0.0, "σ")
-    n, k = _order_power(phi)
-    sym = f"S{n}" if k == 1 else f"S{n}^{k}"
-    return OperationKind(False, n, k, axis, phi, sym)
+    return classify(np.asarray(r, dtype=float)[None])[0]
 
 
 def _key(m: np.ndarray) -> bytes:
@@ -180,23 +265,22 @@ def close_group(generators: list[np.ndarray], *, max_order: int = 240) -> np.nda
     """
     elements = [np.eye(3)]
     keys = {_key(np.eye(3))}
-    gens = [np.asarray(g, dtype=float) for g in generators]
-    frontier = [np.eye(3)]
-    while frontier:
+    gens = np.array([np.asarray(g, dtype=float) for g in generators]).reshape(-1, 3, 3)
+    frontier = np.eye(3)[None]
+    while len(frontier):
+        # every generator times every new element at once, taken in the order (element, generator)
+        prods = (gens[None] @ frontier[:, None]).reshape(-1, 3, 3)
+        rounded = np.round(prods * 1e5).astype(np.int64)
         new = []
-        for a in frontier:
-            for g in gens:
-                p = g @ a
-                k = _key(p)
-                if k not in keys:
-                    keys.add(k)
-                    elements.append(p)
-                    new.append(p)
-                    if len(elements) > max_order:
-                        raise SymmetryError(
-                            f"operations do not close into a finite group of at most {max_order} elements"
-                        )
-        frontier = new
+        for i, p in enumerate(prods):
+            k = rounded[i].tobytes()
+            if k not in keys:
+                keys.add(k)
+                elements.append(p)
+                new.append(p)
+                if len(elements) > max_order:
+                    raise SymmetryError(f"operations do not close into a finite group of at most {max_order} elements")
+        frontier = np.array(new).reshape(-1, 3, 3)
     return np.array(elements)
 
 
@@ -217,12 +301,52 @@ def multiplication_table(ops: np.ndarray, *, tol: float = 1e-5) -> np.ndarray:
     """
     n = len(ops)
     prods = np.einsum("aij,bjk->abik", ops, ops).reshape(n * n, 9)
-    flat = ops.reshape(n, 9)
-    # match by nearest neighbour on the flattened matrices
-    dist, idx = nearest_matrices(flat, prods)
-    if np.max(dist) > tol * 10:
-        raise SymmetryError("the operations are not closed under multiplication")
+    flat = np.asarray(ops, dtype=float).reshape(n, 9)
+    idx = _lookup_by_keys(flat, prods)
+    miss = np.flatnonzero(idx < 0)
+    if len(miss):
+        # match by nearest neighbour on the flattened matrices
+        dist, idx[miss] = nearest_matrices(flat, prods[miss])
+        if np.max(dist) > tol * 10:
+            raise SymmetryError("the operations are not closed under multiplication")
     return idx.reshape(n, n)
+
+
+def _splitmix(i: int) -> int:
+    """A well-mixed 62-bit number from ``i`` (the splitmix64 finaliser)."""
+    z = (i * 0x9E3779B97F4A7C15) % 2**64
+    z = ((z ^ (z >> 30)) * 0xBF58476D1CE4E5B9) % 2**64
+    z = ((z ^ (z >> 27)) * 0x94D049BB133111EB) % 2**64
+    return (z ^ (z >> 31)) >> 2
+
+
+#: weights of a hash of an integer row (wrapping in int64 is harmless: rows are compared whole after)
+HASH_WEIGHTS = np.array([_splitmix(i + 1) for i in range(16)], dtype=np.int64)
+
+
+def _lookup_by_keys(reference: np.ndarray, queries: np.ndarray) -> np.ndarray:
+    """Index of the reference whose rounded entries (1e-5) equal a query's, or -1 (flattened matrices).
+
+    Used only when the references are rounded to distinct keys and lie at least ``3 * _UNIQUE``
+    apart: a query matching a key is then within 3e-5 of that reference and farther than 0.1
+    from every other, so the index is the nearest reference's, as :func:`nearest_matrices`
+    would give it; every query left at -1 is for the caller to search.
+    """
+    out = -np.ones(len(queries), dtype=np.intp)
+    if len(reference) < 2 or not _separated(reference):
+        return out
+    ref_keys = np.round(reference * 1e5).astype(np.int64)
+    q_keys = np.round(queries * 1e5).astype(np.int64)
+    weights = HASH_WEIGHTS[: reference.shape[1]]
+    with np.errstate(over="ignore"):
+        h_ref, h_q = ref_keys @ weights, q_keys @ weights
+    order = np.argsort(h_ref, kind="stable")
+    if np.any(h_ref[order][1:] == h_ref[order][:-1]):
+        return out
+    at = order[np.clip(np.searchsorted(h_ref[order], h_q), 0, len(reference) - 1)]
+    hit = np.all(ref_keys[at] == q_keys, axis=1)  # the whole rounded row, so no hash collision passes
+    out[hit] = at[hit]
+    return out
 
 
 def nearest_matrices(reference: np.ndarray, queries: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -11,7 +11,7 @@ from ..errors import BookkeepingError, SymmetryError
 from .catalogue import HERMANN_MAUGUIN, canonical_name, generators
 from .characters import character_table, conjugacy_classes
 from .labels import class_names, mulliken_labels
-from .operations import close_group, describe, find_operation, multiplication_table
+from .operations import OperationKind, classify, close_group, find_operation, multiplication_table
 from .representation import Representation, SpeciesList
 
 __all__ = ["ConjugacyClass", "PointGroup", "Species", "point_group"]
@@ -283,13 +283,13 @@ def point_group(name: str) -> PointGroup:
     if canon != name:
         return point_group(canon)
     ops = close_group(generators(canon))
-    for a in ops:
-        if abs(abs(np.linalg.det(a)) - 1) > 1e-9:  # pragma: no cover
-            raise SymmetryError("generator is not orthogonal")
+    if np.any(np.abs(np.abs(np.linalg.det(ops)) - 1) > 1e-9):  # pragma: no cover
+        raise SymmetryError("generator is not orthogonal")
     table = multiplication_table(ops)
     classes_idx, class_of, _ = conjugacy_classes(table)
-    cnames = class_names(canon, ops, classes_idx)
-    ordering = sorted(range(len(classes_idx)), key=lambda c: _class_key(ops[classes_idx[c][0]], cnames[c]))
+    kinds = classify(ops)
+    cnames = class_names(canon, ops, classes_idx, kinds=kinds)
+    ordering = sorted(range(len(classes_idx)), key=lambda c: _class_key(kinds[int(classes_idx[c][0])], cnames[c]))
     classes_idx = [classes_idx[c] for c in ordering]
     cnames = [cnames[c] for c in ordering]
     for new_index, members in enumerate(classes_idx):
@@ -335,9 +335,8 @@ def point_group(name: str) -> PointGroup:
     )
 
 
-def _class_key(op: np.ndarray, cname: str) -> tuple:
+def _class_key(kind: OperationKind, cname: str) -> tuple:
     """Textbook order of classes: E, rotations (high order first), i, S_n, sigma_h, sigma_v, sigma_d."""
-    kind = describe(op)
     bare = cname.lstrip("0123456789")
     if kind.symbol == "E":
         return (0, 0, 0, bare)

@@ -18,6 +18,7 @@ from scipy.spatial import cKDTree
 from ..defaults import DEFAULT_TOLERANCE, MAX_UNIT_TOLERANCE
 from ..errors import InputError, SymmetryError
 from ..groups.identify import OrientedGroup, identify, molecular_preference, oriented
+from ..groups.operations import HASH_WEIGHTS as _HASH_WEIGHTS
 
 __all__ = ["DEFAULT_TOLERANCE", "MIN_SEPARATION", "MoleculeSymmetry", "find_symmetry"]
 
@@ -191,10 +192,10 @@ def find_symmetry(numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE, m
         raise SymmetryError(
             f"symmetrising moved an atom by {dev:.3f} Å, more than the tolerance {tolerance} Å; use a smaller tolerance"
         )
-    og = identify(ops, prefer=molecular_preference(sym, tol=max(0.05, min(tolerance, 0.2))), tol=1e-4)
+    og = identify(ops, prefer=molecular_preference(sym, tol=max(0.05, min(tolerance, 0.2))), tol=1e-4, closed=True)
     aligned = og.operations
     # reorder permutations to follow the group's operation order
-    index = [int(np.argmin(np.abs(ops - a[None]).reshape(len(ops), -1).max(axis=1))) for a in aligned]
+    index = np.argmin(np.abs(ops[None] - aligned[:, None]).reshape(len(aligned), len(ops), -1).max(axis=2), axis=1)
     return MoleculeSymmetry(og, centre, numbers, pos, sym, np.array(aligned), perms[index], dev, tolerance)
 
 
@@ -220,73 +221,71 @@ def _linear(numbers, pos, centre, axis, tolerance) -> MoleculeSymmetry:
     )
 
 
+def _first_by(index: np.ndarray, *keys: np.ndarray) -> int:
+    """The entry of ``index`` with the smallest ``keys`` (first key first), the earliest on a tie."""
+    return int(index[np.lexsort(tuple(k[index] for k in reversed(keys)))[0]])
+
+
 def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarray, np.ndarray]:
     radius = np.linalg.norm(pos, axis=1)
     tree = cKDTree(pos)
     n = len(pos)
-    cand = [np.flatnonzero((numbers == numbers[i]) & (np.abs(radius - radius[i]) < tol)) for i in range(n)]
+    # same[i, j]: atom j is a possible image of atom i (same element, same distance from the centre)
+    same = (numbers[:, None] == numbers[None, :]) & (np.abs(radius[None, :] - radius[:, None]) < tol)
+    counts = np.sum(same, axis=1)
     far = radius > tol
     if not np.any(far):  # pragma: no cover - all atoms at the centre is caught as overlap
         raise SymmetryError("no atom away from the centre")
-    a1 = min(np.flatnonzero(far), key=lambda i: (len(cand[i]), -radius[i]))
+    a1 = _first_by(np.flatnonzero(far), counts, -radius)
     dist1 = np.linalg.norm(pos - pos[a1], axis=1)
-
-    def angle_ok(i):
-        c = np.linalg.norm(np.cross(pos[a1], pos[i])) / (radius[a1] * radius[i] + 1e-12)
-        return far[i] and c > 0.2
-
-    second = [i for i in range(n) if i != a1 and angle_ok(i)]
-    if not second:  # pragma: no cover - handled by the linear branch
+    sine = np.linalg.norm(np.cross(pos[a1][None], pos), axis=1) / (radius[a1] * radius + 1e-12)
+    second = np.flatnonzero((np.arange(n) != a1) & far & (sine > 0.2))
+    if not len(second):  # pragma: no cover - handled by the linear branch
         raise SymmetryError("molecule is linear")
-    a2 = min(second, key=lambda i: (dist1[i], len(cand[i])))
+    a2 = _first_by(second, dist1, counts)
     normal = np.cross(pos[a1], pos[a2])
     normal /= np.linalg.norm(normal)
     vol = np.abs(pos @ normal)
-    third = [i for i in range(n) if vol[i] > max(tol, 0.3)]
-    a3 = min(third, key=lambda i: (dist1[i], len(cand[i]))) if third else None
+    third = np.flatnonzero(vol > max(tol, 0.3))
+    a3 = _first_by(third, dist1, counts) if len(third) else None
     dist = np.linalg.norm(pos[:, None, :] - pos[None, :, :], axis=2)
     d12 = dist[a1, a2]
+    c1 = np.flatnonzero(same[a1])
+    c2 = np.flatnonzero(same[a2])
+    # every pair (b1, b2) of images of (a1, a2) at their distance, b1 by b1
+    i1, i2 = np.nonzero((np.abs(dist[c1][:, c2] - d12) <= 2 * tol) & (c2[None, :] != c1[:, None]))
+    b1, b2 = c1[i1], c2[i2]
+    if a3 is None:
+        nb = np.cross(pos[b1], pos[b2])
+        size = np.linalg.norm(nb, axis=1)
+        keep = size >= 1e-6
+        b1, b2, nb = b1[keep], b2[keep], nb[keep] / size[keep][:, None]
+        src = np.array([pos[a1], pos[a2], normal * radius[a1]])
+        # each pair with both signs of the normal, +nb first
+        tips = np.stack([nb, -nb], axis=1).reshape(-1, 3) * radius[a1]
+        dsts = np.stack([np.repeat(pos[b1], 2, axis=0), np.repeat(pos[b2], 2, axis=0), tips], axis=1)
+        want = np.zeros(len(dsts))
+    else:
+        c3 = np.flatnonzero(same[a3])
+        src = np.array([pos[a1], pos[a2], pos[a3]])
+        ok = (
+            (np.abs(dist[b1][:, c3] - dist[a1, a3]) <= 2 * tol)
+            & (np.abs(dist[b2][:, c3] - dist[a2, a3]) <= 2 * tol)
+            & (c3[None, :] != b1[:, None])
+            & (c3[None, :] != b2[:, None])
+        )
+        p, k = np.nonzero(ok)
+        # both handednesses: three atoms nearly in a plane with the centre fit a rotation
+        # and a reflection almost equally well
+        trio = np.repeat(np.stack([b1[p], b2[p], c3[k]], axis=1), 2, axis=0)
+        dsts = pos[trio]
+        want = np.tile([1.0, -1.0], len(p))
     ops: list[np.ndarray] = []
     perms: list[np.ndarray] = []
     keys: set[bytes] = set()
-    c2 = np.asarray(cand[a2])
-    c3 = np.asarray(cand[a3]) if a3 is not None else None
-    srcs: list[np.ndarray] = []
-    dsts: list[np.ndarray] = []
-    want: list[float] = []
-    for b1 in cand[a1]:
-        for b2 in c2[(np.abs(dist[b1, c2] - d12) <= 2 * tol) & (c2 != b1)]:
-            if a3 is None:
-                nb = np.cross(pos[b1], pos[b2])
-                if np.linalg.norm(nb) < 1e-6:
-                    continue
-                nb /= np.linalg.norm(nb)
-                src = np.array([pos[a1], pos[a2], normal * radius[a1]])
-                for t in (nb, -nb):
-                    srcs.append(src)
-                    dsts.append(np.array([pos[b1], pos[b2], t * radius[a1]]))
-                    want.append(0.0)
-            else:
-                src = np.array([pos[a1], pos[a2], pos[a3]])
-                ok = (
-                    (np.abs(dist[b1, c3] - dist[a1, a3]) <= 2 * tol)
-                    & (np.abs(dist[b2, c3] - dist[a2, a3]) <= 2 * tol)
-                    & (c3 != b1)
-                    & (c3 != b2)
-                )
-                # both handednesses: three atoms nearly in a plane with the centre fit a rotation
-                # and a reflection almost equally well
-                for b3 in c3[ok]:
-                    for d in (1.0, -1.0):
-                        srcs.append(src)
-                        dsts.append(np.array([pos[b1], pos[b2], pos[b3]]))
-                        want.append(d)
-    ops: list[np.ndarray] = []
-    perms: list[np.ndarray] = []
-    keys: set[bytes] = set()
-    if srcs:
+    if len(dsts):
         # every trial rotation fitted and matched at once; the looser second try one by one
-        rots = _kabsch_many(np.array(srcs), np.array(dsts), np.array(want))
+        rots = _kabsch_many(np.broadcast_to(src, dsts.shape).copy(), dsts, want)
         # a few atoms spread over the unit first: a trial that moves one of them too far fails anyway
         few = np.unique(np.linspace(0, n - 1, min(n, 8)).astype(int))
         dd, _ = tree.query((pos[few][None] @ np.transpose(rots, (0, 2, 1))).reshape(-1, 3))
@@ -298,23 +297,25 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
         paired = np.all(numbers[j] == numbers[None], axis=1) & np.all(srt[:, 1:] != srt[:, :-1], axis=1)
         good = paired & (d.max(axis=1) <= tol)
         loose = paired & (d.max(axis=1) <= 3 * tol)
-        for t, r in enumerate(rots):
-            p = j[t] if good[t] else None
-            if p is None:
+        proper = np.linalg.det(rots) > 0 if len(rots) else np.zeros(0, dtype=bool)
+        for t in np.flatnonzero(loose | good).tolist():
+            r = rots[t]
+            if good[t]:
+                p_t, plus = j[t], bool(proper[t])
+            else:
                 # three nearby atoms fix the rotation only roughly when the positions are noisy:
                 # pair the atoms under a looser bound, fit the rotation to all of them, check again
-                if not loose[t]:
-                    continue
                 r = _kabsch(pos, pos[j[t]], np.linalg.det(r))
-                p = _match(r, pos, numbers, tree, tol)
-                if p is None:
+                p_t = _match(r, pos, numbers, tree, tol)
+                if p_t is None:
                     continue
-            key = p.tobytes() + (b"+" if np.linalg.det(r) > 0 else b"-")
+                plus = bool(np.linalg.det(r) > 0)
+            key = p_t.tobytes() + (b"+" if plus else b"-")
             if key in keys:
                 continue
             keys.add(key)
             ops.append(r)
-            perms.append(p)
+            perms.append(p_t)
     if not ops:  # a tolerance below the precision of the coordinates (1e-300 Å): not even the identity matches
         raise SymmetryError(
             f"no symmetry operation found at the symmetry tolerance {tol:g} Å, not even the identity; "
@@ -326,30 +327,56 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
 def _closed(perms: np.ndarray, dets: np.ndarray) -> bool:
     """True when every product of two elements (permutation, sign of det) is already an element.
 
-    Rows are found by a hash and then compared whole, so a false "closed" cannot come from a collision.
+    Checked on a few generators instead of all pairs: the set S is closed when it holds the
+    identity, S t lies in S for every generator t, and every element of S is reached from the
+    identity by multiplying with generators (then S is the group they generate).  Generators are
+    taken greedily, each the first element not yet reached.  Products are looked up by a hash
+    of the images of a few atoms and compared whole, so a false "closed" cannot come from a
+    collision (a collision between elements only sends the caller to its slower closure loop,
+    which finds the same group).
     """
-    n = perms.shape[1]
-    rows = np.column_stack([perms, dets > 0]).astype(np.int64)
-    prod = np.empty((len(perms) ** 2, n + 1), dtype=np.int64)
-    prod[:, :n] = perms[:, perms].reshape(-1, n)  # row (i, j): apply j, then i
-    prod[:, n] = ((dets[:, None] * dets[None]) > 0).reshape(-1)
-    weights = np.random.default_rng(0).integers(1, 2**62, size=n + 1, dtype=np.int64)
-    with np.errstate(over="ignore"):
-        h_rows, h_prod = rows @ weights, prod @ weights
-    order = np.argsort(h_rows)
-    at = order[np.clip(np.searchsorted(h_rows[order], h_prod), 0, len(rows) - 1)]
-    return bool(np.all(rows[at] == prod))
+    g, n = perms.shape
+    plus = dets > 0
+    start = np.flatnonzero(np.all(perms == np.arange(n)[None], axis=1) & plus)
+    if not len(start):  # a finite set closed under products holds the identity
+        return False
+    cols = np.unique(np.linspace(0, n - 1, min(n, len(_HASH_WEIGHTS) - 1)).astype(int))
+    weights, w_sign = _HASH_WEIGHTS[: len(cols)], _HASH_WEIGHTS[len(cols)]
+
+    def hashed(rows: np.ndarray, signs: np.ndarray) -> np.ndarray:
+        with np.errstate(over="ignore"):
+            return rows[:, cols] @ weights + signs * w_sign
+
+    order = np.argsort(hashed(perms, plus))
+    sorted_h = hashed(perms, plus)[order]
+    reached = np.zeros(g, dtype=bool)
+    reached[start[0]] = True
+    steps: list[np.ndarray] = []  # steps[k][s]: index of s times the k-th generator
+    while not reached.all():
+        t = int(np.argmin(reached))  # the first element not reached yet becomes a generator
+        rows, signs = perms[:, perms[t]], plus == plus[t]  # row s: apply t, then s
+        at = order[np.clip(np.searchsorted(sorted_h, hashed(rows, signs)), 0, g - 1)]
+        if not ((perms[at] == rows).all() and (plus[at] == signs).all()):
+            return False
+        steps.append(at)
+        frontier = np.flatnonzero(reached)
+        while len(frontier):
+            images = np.concatenate([step[frontier] for step in steps])
+            fresh = np.unique(images[~reached[images]])
+            reached[fresh] = True
+            frontier = fresh
+    return True
 
 
 def _refine(ops: np.ndarray, perms: np.ndarray, pos: np.ndarray, *, rounds: int = 60):
     """Close the permutations into a group and make matrices and geometry exactly symmetric."""
     # an element is (permutation, sign of det): a planar unit's own plane moves no atom
-    dets = [1.0 if np.linalg.det(r) > 0 else -1.0 for r in ops]
+    dets = np.where(np.linalg.det(ops) > 0, 1.0, -1.0).tolist()
     elements = [(p, d) for p, d in zip(perms, dets, strict=True)]
-    keys = {p.tobytes() + str(d).encode() for p, d in elements}
     changed = not _closed(perms, np.array(dets))  # the search usually finds the whole group
     if not changed and len(elements) > 240:
         raise SymmetryError("tolerance is too loose: the atom permutations do not form a point group")
+    keys = {p.tobytes() + str(d).encode() for p, d in elements} if changed else set()
     while changed:
         changed = False
         for p, d in list(elements):
