@@ -111,3 +111,13 @@ def test_closure_on_generators_is_closure_of_all_pairs(name):
         if len({(r.tobytes(), x) for r, x in zip(p, d, strict=True)}) != len(p):
             continue
         assert _closed(p, d) == _closed_by_definition(p, d)
+
+
+@pytest.mark.parametrize("name", ALL)
+def test_table_read_off_the_closure_is_the_multiplication_table(name):
+    from splitting.groups.catalogue import generators
+    from splitting.groups.operations import close_group_with_table
+
+    ops, table = close_group_with_table(generators(name))
+    assert np.array_equal(table, _table_by_nearest(ops))
+    assert np.array_equal(point_group(name).table, table)

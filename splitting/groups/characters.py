@@ -72,11 +72,10 @@ def character_table(table: np.ndarray, classes: list[np.ndarray], class_of: np.n
     k = len(classes)
     sizes = np.array([len(c) for c in classes])
     # c[i, j, l] = number of (x in C_i, y in C_j) with x y = fixed z in C_l
-    coeff = np.zeros((k, k, k))
-    for i, ci in enumerate(classes):
-        for j, cj in enumerate(classes):
-            prod_classes = class_of[table[np.ix_(ci, cj)].ravel()]
-            coeff[i, j] = np.bincount(prod_classes, minlength=k) / sizes
+    # counted for all pairs (x, y) at once by (class of x, class of y, class of x y)
+    cls = np.asarray(class_of)
+    triple = (cls[:, None] * k + cls[None, :]) * k + cls[np.asarray(table)]
+    coeff = np.bincount(triple.ravel(), minlength=k**3).reshape(k, k, k) / sizes
     rng = np.random.default_rng(seed)
     for _attempt in range(5):
         weights = rng.normal(size=k)

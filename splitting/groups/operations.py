@@ -21,6 +21,7 @@ __all__ = [
     "OperationKinds",
     "classify",
     "close_group",
+    "close_group_with_table",
     "describe",
     "find_operation",
     "improper_rotation",
@@ -263,25 +264,50 @@ def close_group(generators: list[np.ndarray], *, max_order: int = 240) -> np.nda
     SymmetryError
         If the generators do not generate a finite group of at most ``max_order`` elements.
     """
+    return close_group_with_table(generators, max_order=max_order)[0]
+
+
+def close_group_with_table(generators: list[np.ndarray], *, max_order: int = 240) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`close_group` and the group's multiplication table, read off the closure.
+
+    Every element after the identity is first found as ``g @ a`` (a generator times an earlier
+    element), and every generator times every element is looked up on the way, so the table
+    ``T[a, b]`` (see :func:`multiplication_table`) follows row by row without multiplying
+    matrices again: ``T[g a, b] = L_g[T[a, b]]`` with ``L_g`` the left multiplication by g.
+    """
     elements = [np.eye(3)]
-    keys = {_key(np.eye(3))}
+    index = {_key(np.eye(3)): 0}
     gens = np.array([np.asarray(g, dtype=float) for g in generators]).reshape(-1, 3, 3)
-    frontier = np.eye(3)[None]
-    while len(frontier):
+    n_gen = len(gens)
+    left: dict[tuple[int, int], int] = {}  # (generator, element) -> index of the product
+    parent, via = [0], [0]
+    frontier = [0]
+    while frontier:
         # every generator times every new element at once, taken in the order (element, generator)
-        prods = (gens[None] @ frontier[:, None]).reshape(-1, 3, 3)
+        prods = (gens[None] @ np.array([elements[i] for i in frontier])[:, None]).reshape(-1, 3, 3)
         rounded = np.round(prods * 1e5).astype(np.int64)
         new = []
-        for i, p in enumerate(prods):
-            k = rounded[i].tobytes()
-            if k not in keys:
-                keys.add(k)
+        for t, p in enumerate(prods):
+            k = rounded[t].tobytes()
+            j = index.get(k)
+            a, g = frontier[t // n_gen], t % n_gen
+            if j is None:
+                j = index[k] = len(elements)
                 elements.append(p)
-                new.append(p)
+                parent.append(a)
+                via.append(g)
+                new.append(j)
                 if len(elements) > max_order:
                     raise SymmetryError(f"operations do not close into a finite group of at most {max_order} elements")
-        frontier = np.array(new).reshape(-1, 3, 3)
-    return np.array(elements)
+            left[g, a] = j
+        frontier = new
+    n = len(elements)
+    lmul = np.array([[left[g, b] for b in range(n)] for g in range(n_gen)], dtype=np.intp).reshape(n_gen, n)
+    table = np.empty((n, n), dtype=np.intp)
+    table[0] = np.arange(n)
+    for j in range(1, n):
+        table[j] = lmul[via[j], table[parent[j]]]
+    return np.array(elements), table
 
 
 def find_operation(ops: np.ndarray, m: np.ndarray, *, tol: float = MATRIX_TOL) -> int:
@@ -299,9 +325,10 @@ def multiplication_table(ops: np.ndarray, *, tol: float = 1e-5) -> np.ndarray:
     SymmetryError
         If the set is not closed under multiplication.
     """
+    ops = np.asarray(ops, dtype=float)
     n = len(ops)
-    prods = np.einsum("aij,bjk->abik", ops, ops).reshape(n * n, 9)
-    flat = np.asarray(ops, dtype=float).reshape(n, 9)
+    prods = (ops[:, None] @ ops[None]).reshape(n * n, 9)
+    flat = ops.reshape(n, 9)
     idx = _lookup_by_keys(flat, prods)
     miss = np.flatnonzero(idx < 0)
     if len(miss):
@@ -324,6 +351,12 @@ def _splitmix(i: int) -> int:
 HASH_WEIGHTS = np.array([_splitmix(i + 1) for i in range(16)], dtype=np.int64)
 
 
+def _rounded(m: np.ndarray) -> np.ndarray:
+    """Entries times 1e5, rounded to integers (the keys of :func:`close_group`)."""
+    scaled = np.multiply(m, 1e5)
+    return np.rint(scaled, out=scaled).astype(np.int64)
+
+
 def _lookup_by_keys(reference: np.ndarray, queries: np.ndarray) -> np.ndarray:
     """Index of the reference whose rounded entries (1e-5) equal a query's, or -1 (flattened matrices).
 
@@ -335,8 +368,8 @@ def _lookup_by_keys(reference: np.ndarray, queries: np.ndarray) -> np.ndarray:
     out = -np.ones(len(queries), dtype=np.intp)
     if len(reference) < 2 or not _separated(reference):
         return out
-    ref_keys = np.round(reference * 1e5).astype(np.int64)
-    q_keys = np.round(queries * 1e5).astype(np.int64)
+    ref_keys = _rounded(reference)
+    q_keys = _rounded(queries)
     weights = HASH_WEIGHTS[: reference.shape[1]]
     with np.errstate(over="ignore"):
         h_ref, h_q = ref_keys @ weights, q_keys @ weights

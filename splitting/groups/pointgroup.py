@@ -11,7 +11,7 @@ from ..errors import BookkeepingError, SymmetryError
 from .catalogue import HERMANN_MAUGUIN, canonical_name, generators
 from .characters import character_table, conjugacy_classes
 from .labels import class_names, mulliken_labels
-from .operations import OperationKind, classify, close_group, find_operation, multiplication_table
+from .operations import OperationKind, classify, close_group_with_table, find_operation
 from .representation import Representation, SpeciesList
 
 __all__ = ["ConjugacyClass", "PointGroup", "Species", "point_group"]
@@ -282,10 +282,9 @@ def point_group(name: str) -> PointGroup:
         raise SymmetryError(f"{canon} is a linear group; use linear_group({canon!r})")
     if canon != name:
         return point_group(canon)
-    ops = close_group(generators(canon))
+    ops, table = close_group_with_table(generators(canon))  # the table as multiplication_table(ops) gives it
     if np.any(np.abs(np.abs(np.linalg.det(ops)) - 1) > 1e-9):  # pragma: no cover
         raise SymmetryError("generator is not orthogonal")
-    table = multiplication_table(ops)
     classes_idx, class_of, _ = conjugacy_classes(table)
     kinds = classify(ops)
     cnames = class_names(canon, ops, classes_idx, kinds=kinds)
