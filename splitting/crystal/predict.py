@@ -24,6 +24,7 @@ from ..molecule.analysis import hill_formula
 from ..molecule.symmetry import DEFAULT_TOLERANCE
 from .freeunits import FreeUnitCache
 from .limits import DEFAULT_MAX_ATOMS, check_atom_count
+from .origin import canonical_names
 from .read import load_structure
 from .results import Correlation, CrystalPrediction, FactorSpecies, UnitOrbit
 from .spacegroup import DEFAULT_CELL_TOLERANCE, CellSymmetry, analyse_cell
@@ -346,7 +347,11 @@ def _predict(
     factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     fg = factor.oriented
     orbits = _orbits(cell, units)
-    wyckoffs = cell.wyckoff_of([units[orbit[0][0]].centre for orbit in orbits], tolerance=opts.tolerance)
+    centres = [units[orbit[0][0]].centre for orbit in orbits]
+    wyckoffs = cell.wyckoff_of(centres, tolerance=opts.tolerance)
+    # letters of the first-ranked standard description (the same whatever origin the file uses)
+    ranked_by = [(-len(units[orbit[0][0]].atoms), units[orbit[0][0]].formula) for orbit in orbits]
+    wyckoffs, origin = canonical_names(cell, centres, ranked_by, wyckoffs)
     given = _given_free_groups(opts, units)
     if free_cache is None:
         free_cache = FreeUnitCache(opts.unit_tolerance, given)
@@ -356,8 +361,8 @@ def _predict(
     species_done: dict[tuple, tuple[Representation, Representation]] = {}
     orbits_done: dict[tuple, tuple[list[Correlation], Representation]] = {}
     axes_text = _AxesText(cell)
-    site_ops_of = _site_ops_all(cell, [units[orbit[0][0]].centre for orbit in orbits])
-    setting = _setting(cell)
+    site_ops_of = _site_ops_all(cell, centres)
+    setting = _setting(cell, origin)
     if setting is not None:  # oriented site symbols in the axes the labels use
         wyckoffs = [(w, setting.site_symbol(symbol)) for w, symbol in wyckoffs]
     for orbit, (wyck, site_symbol), site_idx in zip(orbits, wyckoffs, site_ops_of, strict=True):
@@ -505,13 +510,20 @@ def _predict(
     )
 
 
-def _setting(cell: CellSymmetry):
-    """The file's setting and the transformation to the standard one (None for a cell from operations)."""
+def _setting(cell: CellSymmetry, origin: np.ndarray | None = None):
+    """The file's setting and the transformation to the standard one (None for a cell from operations).
+
+    ``origin`` is the shift of the standard origin chosen for the Wyckoff letters (see
+    :func:`~splitting.crystal.origin.canonical_names`), added to spglib's origin shift.
+    """
     if cell.transformation is None or cell.origin_shift is None:
         return None
     from .setting import setting_of
 
-    return setting_of(cell.info.hall_number, cell.transformation, cell.origin_shift, standard_axes=cell.standard_axes)
+    shift = cell.origin_shift
+    if origin is not None and np.any(origin != 0):
+        shift = np.mod(shift + origin, 1.0)
+    return setting_of(cell.info.hall_number, cell.transformation, shift, standard_axes=cell.standard_axes)
 
 
 def _gamma_3n(cell: CellSymmetry, factor: FactorGroup) -> Representation:

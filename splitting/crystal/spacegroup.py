@@ -520,10 +520,10 @@ def cell_from_operations(
 
 
 def _general_orbits(
-    lattice: np.ndarray, w: np.ndarray, t: np.ndarray, fixed: np.ndarray, seed: int = 0
+    lattice: np.ndarray, w: np.ndarray, t: np.ndarray, fixed: np.ndarray, seed: int = 0, apart: float = 0.5
 ) -> list[np.ndarray] | None:
     """Three orbits of random general points (fractional, operations ``w``, ``t`` in the basis
-    ``lattice``), each point at least 0.5 angstrom from every other and from ``fixed`` (the
+    ``lattice``), each point at least ``apart`` angstrom from every other and from ``fixed`` (the
     points of ``fixed`` may lie closer to one another); None if 30 trials do not find them."""
     rng = np.random.default_rng(seed)
     points: list[np.ndarray] = []
@@ -536,7 +536,7 @@ def _general_orbits(
         d = orbit[:, None] - others[None]
         d -= np.round(d)
         dist = np.linalg.norm(d @ lattice, axis=2) + np.eye(len(orbit), len(others)) * 1e3
-        if dist.min() > 0.5:
+        if dist.min() > apart:
             points.append(orbit)
     return points if len(points) == 3 else None
 

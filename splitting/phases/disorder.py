@@ -28,6 +28,7 @@ import numpy as np
 from ..activity import activity_table
 from ..correlation import FactorGroup, induce
 from ..crystal.freeunits import FreeUnitCache
+from ..crystal.origin import canonical_names
 from ..crystal.predict import Options, predict_atoms
 from ..crystal.read import load_structure
 from ..crystal.results import CrystalPrediction
@@ -463,7 +464,8 @@ def predict_disordered(
         if state == "ordered":
             continue
         pattern, one_name = (dynamic, None) if state == "dynamic" else (static, one.name)
-        wyck = cell.wyckoff_of([centre], tolerance=opts.tolerance)[0][0]
+        named = cell.wyckoff_of([centre], tolerance=opts.tolerance)
+        wyck = canonical_names(cell, [centre], [(-len(unit.atoms), unit.formula)], named)[0][0][0]
         done[unit.formula] = DisorderedUnit(
             unit.formula,
             state,

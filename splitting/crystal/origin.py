@@ -1,0 +1,354 @@
+"""One Wyckoff description of a crystal whatever origin the file uses.
+
+Moving the origin of the standard setting by a translation ``t`` that maps the space group
+onto itself (a translation of its Euclidean normaliser, International Tables for
+Crystallography Vol. A, Part 15) gives another, equally valid standard description: the
+operations are the same, but a point's Wyckoff letter can change (naphthalene's molecules on
+2a or 2d of P2_1/c, C60 on 4a or 4b of Pa-3, NH4+ and Cl- on 1a and 1b of P-43m, or the
+other way round).  spglib's choice among these follows the input.  This module lists every
+description and keeps the one ranked first by :func:`description_key` (the rule is stated in
+docs/conventions.md), so the letters depend on the crystal only.
+
+A group pays for this only when its normaliser adds translations that are not centring
+translations (modulo the directions of a polar axis, along which every origin is standard):
+one spglib search of a skeleton (three random general orbits and one orbit per site on a
+special position, of the conventional standard cell) per description.
+"""
+
+from __future__ import annotations
+
+import functools
+import itertools
+
+import numpy as np
+
+__all__ = ["canonical_names", "description_key", "origin_shifts"]
+
+#: shifts (fractions of the conventional cell) tried, on every axis
+_GRID = np.arange(8) / 8.0
+
+
+@functools.lru_cache(maxsize=256)
+def _database(hall: int) -> tuple[np.ndarray, np.ndarray]:
+    import spglib
+
+    from .spacegroup import _quiet_spglib
+
+    with _quiet_spglib():
+        db = spglib.get_symmetry_from_database(int(hall))
+    w = np.rint(np.asarray(db["rotations"], dtype=float))
+    t = np.asarray(db["translations"], dtype=float)
+    for a in (w, t):
+        a.setflags(write=False)
+    return w, t
+
+
+def _centring(w: np.ndarray, t: np.ndarray) -> np.ndarray:
+    """Centring translations (including 0) of a conventional setting's operations."""
+    c = np.mod(t[np.all(w.reshape(len(w), 9) == np.eye(3).reshape(9), axis=1)], 1.0)
+    return np.unique(np.round(c, 9) % 1.0, axis=0)
+
+
+def _free_axes(w: np.ndarray) -> list[int]:
+    """Axes along which every operation leaves a point's coordinate alone (a polar axis)."""
+    return [i for i in range(3) if np.all(w[:, :, i] == np.eye(3)[i])]
+
+
+def _reduce(shifts: np.ndarray, centring: np.ndarray, free: list[int]) -> np.ndarray:
+    """One representative per shift modulo the lattice, the centring and the polar directions."""
+    s = np.array(shifts, dtype=float).reshape(-1, 3)
+    s[:, free] = 0.0
+    cands = np.mod(s[:, None, :] + centring[None], 1.0)  # (shifts, centrings, 3)
+    cands = np.round(cands * 8) / 8 % 1.0
+    keys = cands @ np.array([64.0, 8.0, 1.0]) * 8
+    return cands[np.arange(len(s)), np.argmin(keys, axis=1)]
+
+
+@functools.lru_cache(maxsize=256)
+def origin_shifts(hall: int) -> np.ndarray:
+    """Origin shifts of the standard setting ``hall`` that map its group onto itself, other than 0.
+
+    A shift ``t`` (fractions of the conventional cell) qualifies when ``(W - I) t`` is a lattice or
+    centring translation for every rotation part W, so that every operation (W, w) becomes
+    (W, w + (W - I) t), again an operation.  Shifts that differ by a centring translation or
+    along a polar axis give the same letters and are listed once.
+
+    Examples
+    --------
+    >>> origin_shifts(1).tolist()  # P1: every origin is standard, none gives other letters
+    []
+    >>> origin_shifts(501).tolist()  # Pa-3: 4a and 4b exchanged
+    [[0.5, 0.5, 0.5]]
+    """
+    w, t = _database(hall)
+    centring = _centring(w, t)
+    free = _free_axes(w)
+    grid = np.array(list(itertools.product(_GRID, repeat=3)))
+    grid[:, free] = 0.0
+    grid = np.unique(grid, axis=0)
+    moved = np.einsum("nij,gj->gni", w - np.eye(3), grid)  # (shifts, operations, 3)
+    gap = moved[:, :, None, :] - centring[None, None]  # must be integer for some centring
+    ok = np.all(np.any(np.all(np.abs(gap - np.round(gap)) < 1e-9, axis=3), axis=2), axis=1)
+    found = np.unique(_reduce(grid[ok], centring, free), axis=0)
+    found = found[np.any(found != 0, axis=1)]
+    found.setflags(write=False)
+    return found
+
+
+def _rank(letter: str) -> int:
+    """Order of a Wyckoff letter: a, b, ... z, then spglib's A for the 27th."""
+    return ord(letter) - ord("a") if letter.islower() else 26 + ord(letter) - ord("A")
+
+
+def description_key(point_letters, point_keys, atom_letters, atom_numbers) -> tuple:
+    """Rank of one description (smaller first): see docs/conventions.md, "Wyckoff letters".
+
+    First the unit orbits' letters, sorted; then the same letters taken unit by unit in the
+    order of ``point_keys`` (decreasing number of atoms, then formula, in the pipeline); then the
+    primitive-cell atoms' letters, heaviest element first.
+
+    >>> description_key(["b", "a"], [(-5, "H4N"), (-1, "Cl")], [], [])
+    ((0, 1), ((-5, 'H4N', 1), (-1, 'Cl', 0)), ())
+    """
+    ranks = [_rank(x) for x in point_letters]
+    units = tuple(sorted((*k, r) for k, r in zip(point_keys, ranks, strict=True)))
+    atoms = tuple(sorted((-int(z), _rank(x)) for z, x in zip(atom_numbers, atom_letters, strict=True)))
+    return tuple(sorted(ranks)), units, atoms
+
+
+def _orbit(w: np.ndarray, t: np.ndarray, x: np.ndarray) -> np.ndarray:
+    """Distinct images (fractions of the conventional cell, in [0, 1)) of one point."""
+    f = np.mod(x @ np.transpose(w, (0, 2, 1)) + t, 1.0)
+    d = f[:, None] - f[None]
+    same = np.all(np.abs(d - np.round(d)) < 1e-6, axis=2)
+    return f[~np.any(np.tril(same, -1), axis=1)]
+
+
+def _stabiliser(w: np.ndarray, t: np.ndarray, x: np.ndarray) -> np.ndarray:
+    """Rotation parts of the operations that leave the point x in place (modulo the lattice)."""
+    d = x @ np.transpose(w, (0, 2, 1)) + t - x
+    return w[np.all(np.abs(d - np.round(d)) < 1e-6, axis=1)]
+
+
+#: lattice vectors tried when a moved point is brought onto the fixed subspace of a site
+_STEPS = np.array(list(itertools.product(range(-2, 3), repeat=3)), dtype=float)
+
+
+def _same_position(w: np.ndarray, t: np.ndarray, y: np.ndarray, x: np.ndarray, site: np.ndarray) -> bool:
+    """True when the point y lies in the Wyckoff position of x, whose site operations have rotation
+    parts ``site``: some image of y differs from x by a vector every site rotation leaves alone,
+    so that it has the very site group of x (International Tables, Vol. A: a Wyckoff position is
+    the set of points whose site groups are conjugate)."""
+    if len(_stabiliser(w, t, y)) != len(site):
+        return False
+    a = (np.eye(3)[None] - site).reshape(-1, 3)
+    _, sv, vt = np.linalg.svd(a)
+    rank = int(np.sum(sv > 1e-9))
+    if rank == 0:
+        return True
+    normal = vt[:rank]  # directions in which the site's rotations move a vector
+    d = np.mod(y @ np.transpose(w, (0, 2, 1)) + t - x, 1.0)
+    cands = d[:, None, :] + _STEPS[None]  # (images, steps, 3)
+    return bool(np.any(np.all(np.abs(cands @ normal.T) < 1e-6, axis=2)))
+
+
+def _same_orbit(orbit: np.ndarray, x: np.ndarray) -> bool:
+    d = orbit - x
+    return bool(np.any(np.all(np.abs(d - np.round(d)) < 1e-6, axis=1)))
+
+
+def canonical_names(cell, points, point_keys, names):
+    """The names of ``points`` in the first-ranked standard description, and its origin shift.
+
+    ``names`` are the points' (Wyckoff position, site symbol) in the description spglib chose
+    (from :meth:`CellSymmetry.wyckoff_of`); ``point_keys`` order the points for the tie-break of
+    :func:`description_key`.  Returns the names and the shift ``s`` (fractions of the conventional
+    cell) to add to the standard coordinates (x_s = P x + p + s); ``s`` is 0 and the names are
+    returned as given when the group's normaliser adds no translation, or when the descriptions
+    cannot all be named (they are then left as spglib chose them).
+    """
+    zero = np.zeros(3)
+    if not cell.sites_named or cell.origin_shift is None or not len(points):
+        return names, zero
+    shifts = origin_shifts(cell.info.hall_number)
+    if not len(shifts):
+        return names, zero
+    found = _all_descriptions(cell, np.asarray(points, dtype=float).reshape(-1, 3), shifts)
+    if found is None:
+        return names, zero
+    # the atoms' letters came from the search of the cell as given, whose origin is shift 0
+    unshifted = found.get((0.0, 0.0, 0.0))
+    if unshifted is None or unshifted[1] != tuple(cell.wyckoffs):  # pragma: no cover - a frame mix-up
+        return names, zero
+    point_letters = [w.lstrip("0123456789") for w, _ in names]
+
+    def rank(item):
+        s, (pl, al) = item
+        return description_key(pl, point_keys, al, cell.numbers), s
+
+    best, (letters, _) = min(found.items(), key=rank)
+    out = [
+        (w[: len(w) - len(old)] + new, site) for (w, site), old, new in zip(names, point_letters, letters, strict=True)
+    ]
+    return out, np.array(best)
+
+
+def _all_descriptions(cell, points: np.ndarray, shifts: np.ndarray) -> dict | None:
+    """Letters of the points and of the primitive-cell atoms in every standard description.
+
+    Keys are the origin shifts, one per class of shifts giving the same letters (reduced as in
+    :func:`origin_shifts`, the smallest of its class); values are (letters of the points, letters
+    of the atoms).  None when no shift changes a letter, when a search does not keep exactly the
+    group in the standard setting as given, or when some description stays unnamed.
+    """
+    w, t = _database(cell.info.hall_number)
+    centring, free = _centring(w, t), _free_axes(w)
+    conv = np.asarray(cell.conventional, dtype=float)
+    to_std = np.linalg.inv(conv)
+
+    def std(cart: np.ndarray) -> np.ndarray:
+        return cart @ to_std + cell.origin_shift
+
+    general = {k for k, sym in enumerate(cell.site_symbols) if sym.replace(".", "") == "1"}
+    general_letter = cell.wyckoffs[min(general)] if general else None
+    # sites: one representative per orbit of the special atoms and of the points on no atom
+    sites: list[tuple[np.ndarray, int]] = []  # (standard position, kind)
+    orbits: list[np.ndarray] = []
+    atom_site = np.full(len(cell.numbers), -1)
+    atoms_std = std(cell.cartesian)
+    for i in range(len(cell.numbers)):
+        if i in general:
+            continue
+        k = next((j for j, o in enumerate(orbits) if _same_orbit(o, atoms_std[i])), None)
+        if k is None:
+            orbits.append(_orbit(w, t, atoms_std[i]))
+            sites.append((atoms_std[i], int(cell.numbers[i])))
+            k = len(sites) - 1
+        atom_site[i] = k
+    on_atom = cell._atom_at(points)
+    sizes = cell._orbit_sizes(points)
+    point_site: list[int | None] = []  # a site, or None: the general position
+    top = int(np.max(cell.numbers)) + 1000
+    for n, p in enumerate(points):
+        if on_atom[n] >= 0:
+            point_site.append(None if on_atom[n] in general else int(atom_site[on_atom[n]]))
+            continue
+        if general_letter is not None and sizes[n] == len(cell.rotations):
+            point_site.append(None)
+            continue
+        x = std(p)
+        k = next((j for j, o in enumerate(orbits) if _same_orbit(o, x)), None)
+        if k is None:
+            orbits.append(_orbit(w, t, x))
+            sites.append((x, top + 10 + len(sites)))
+            k = len(sites) - 1
+        point_site.append(k)
+    if general_letter is None and any(s is None for s in point_site):  # pragma: no cover
+        return None
+    # shifts that carry every site into its own Wyckoff position change no letter: they form a
+    # subgroup, and a description is needed for one shift per coset of it only
+    stabilisers = [_stabiliser(w, t, x) for x, _ in sites]
+
+    def lands(k: int, u: np.ndarray) -> int | None:
+        """The first site whose Wyckoff position holds site k moved by u (None if none does)."""
+        return next(
+            (j for j in range(len(sites)) if _same_position(w, t, sites[k][0] + u, sites[j][0], stabilisers[j])),
+            None,
+        )
+
+    steady = [np.zeros(3)] + [u for u in shifts if all(lands(k, u) == k for k in range(len(sites)))]
+    steady_r = _reduce(np.vstack(steady), centring, free)
+
+    def coset(u: np.ndarray) -> tuple:
+        reps = _reduce(u[None] + steady_r, centring, free)
+        return tuple(reps[np.lexsort(reps.T[::-1])][0].tolist())
+
+    wanted = {coset(u) for u in (np.zeros(3), *shifts)}
+    if len(wanted) == 1:  # no shift changes a letter
+        return None
+    found: dict[tuple, tuple] = {}
+    if all(kind <= top for _, kind in sites):  # every site is an atom's, named in the cell as given
+        letters = [cell.wyckoffs[int(np.flatnonzero(atom_site == k)[0])] for k in range(len(sites))]
+        for u in (np.zeros(3), *shifts):  # where each moved site lands on a site, its letter is known
+            moved = [lands(k, u) for k in range(len(sites))]
+            if coset(u) in found or any(j is None for j in moved):
+                continue
+            now = [letters[j] for j in moved]
+            found[coset(u)] = (
+                tuple(general_letter if k is None else now[k] for k in point_site),
+                tuple(general_letter if k < 0 else now[k] for k in atom_site),
+            )
+    if wanted <= set(found):
+        return found
+    # one search per missing description; spglib may name another description than the one
+    # asked for (its origin moves by some delta), so the next shift asked for allows for that
+    targets = [u for u in (np.zeros(3), *shifts) if coset(u) not in found]
+    delta, state = np.zeros(3), {}
+    for _ in range(2 * len(wanted) + 2):
+        missing = [u for u in targets if coset(u) not in found]
+        if not missing:
+            break
+        u = missing[0] - delta
+        s_found, letters = _search(cell, [x for x, _ in sites], [k for _, k in sites], u, top, state)
+        if letters is None:
+            return None
+        delta = s_found - u
+        found.setdefault(
+            coset(s_found),
+            (
+                tuple(general_letter if k is None else letters[k] for k in point_site),
+                tuple(general_letter if k < 0 else letters[k] for k in atom_site),
+            ),
+        )
+    return {k: found[k] for k in wanted} if wanted <= set(found) else None
+
+
+def _search(cell, sites: list[np.ndarray], kinds: list[int], u: np.ndarray, top: int, state: dict):
+    """The shift s of the description spglib names for the sites moved by u, and the sites' letters.
+
+    One search of three random general orbits and the orbit of every site (standard
+    coordinates) moved by u, on the cell's primitive basis; where spglib turns that basis into
+    the standard one otherwise than the cell does, on the conventional standard cell instead
+    (remembered in ``state``).  spglib gives standard coordinates x' = P f + p'; with P as the
+    cell's, the sites carry the letters of the description shifted by s = u + p' - p (p the
+    origin shift of the basis searched).  Letters None when a search does not keep exactly the
+    cell's group.
+    """
+    if not state.get("conventional"):
+        plat = np.asarray(cell.lattice, dtype=float)
+        to_prim = np.asarray(cell.conventional, dtype=float) @ np.linalg.inv(plat)  # standard -> primitive
+        origin = np.asarray(cell.origin_shift, dtype=float)
+        prim = (plat, cell.frac_rotations, cell.frac_translations, to_prim, origin)
+        found = _search_on(prim, sites, kinds, u, top, cell.info.hall_number)
+        if found[1] != "basis":
+            return found
+        state["conventional"] = True
+    w, t = _database(cell.info.hall_number)
+    conv = (np.asarray(cell.conventional, dtype=float), w, t, np.eye(3), np.zeros(3))
+    found = _search_on(conv, sites, kinds, u, top, cell.info.hall_number)
+    return (found[0], None) if found[1] == "basis" else found
+
+
+def _search_on(basis, sites, kinds, u: np.ndarray, top: int, hall: int):
+    """:func:`_search` on one basis: (s, letters), letters ``"basis"`` when spglib's P is not the cell's."""
+    from .spacegroup import _EXACT, _general_orbits, spglib_dataset
+
+    lattice, w, t, to_basis, p = basis
+    p_ref = np.linalg.inv(to_basis).T  # x_s = P f + p
+    orbits = [_orbit(w, t, (x + u - p) @ to_basis) for x in sites]
+    # searched at spglib's tightest tolerance, so the points need only be told apart
+    skeleton = _general_orbits(lattice, w, t, np.vstack(orbits), seed=0, apart=0.05)
+    if skeleton is None:  # pragma: no cover - a cell crowded with special positions
+        return u, None
+    ops = len(w)
+    species = np.concatenate(
+        [np.full(len(o), top + k) for k, o in enumerate(skeleton)]
+        + [np.full(len(o), kind) for o, kind in zip(orbits, kinds, strict=True)]
+    ).astype(int)
+    ds = spglib_dataset(lattice, np.vstack([*skeleton, *orbits]), species, _EXACT)
+    if int(ds.hall_number) != hall or len(ds.rotations) != ops:
+        return u, None
+    if not np.allclose(ds.transformation_matrix, p_ref, atol=1e-6):
+        return u, "basis"
+    first = np.cumsum([0, *[len(o) for o in orbits]])[:-1] + 3 * ops
+    return u + np.asarray(ds.origin_shift, dtype=float) - p, [str(ds.wyckoffs[i]) for i in first]
