@@ -18,11 +18,12 @@ Python process (imports done before the clock starts), so the peak resident memo
 or, without pytest, ``.venv/bin/python benchmarks/bench_scaling.py [max_atoms]``.
 The goal is predict <= 1.5 x the floor at every size.
 
-Measured ratios predict / floor, median of three on a quiet machine (full table in
-benchmarks/README.md): c60 240 / 1,920 / 6,480 / 14,400 atoms: 2.12 / 1.71 / 1.13 / 1.05;
-naph 288 / 2,304 / 6,480 / 14,112: 1.54 / 1.18 / 1.03 / 1.02; naph-jitter at the same sizes:
-1.70 / 1.64 / 1.26 / 1.19 (the small cells pay a fixed per-process cost, chiefly the free
-unit's point-group search).
+Measured ratios predict / floor (full tables in benchmarks/README.md), median of six passes at
+load average 2-3 (main at 134fd87): c60 240 / 1,920 atoms: 1.71 / 1.29; naph 288 / 2,304: 1.80 /
+1.37; naph-jitter 288 / 2,304: 1.56 / 1.21; fastest of ten, same machine: c60 240 1.61, naph 288
+1.54, naph-jitter 288 / 2,304 1.64 / 1.32 (the small cells pay a fixed per-process cost, chiefly
+the free unit's point-group search). On a quiet machine before this round: c60 6,480 / 14,400
+1.13 / 1.05; naph 6,480 / 14,112 1.03 / 1.02; naph-jitter 6,480 / 14,112 1.26 / 1.19.
 """
 
 from __future__ import annotations
