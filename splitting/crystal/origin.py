@@ -280,19 +280,8 @@ def _all_descriptions(cell, points: np.ndarray, shifts: np.ndarray) -> dict | No
             )
     if wanted <= set(found):
         return found
-    # one search per missing description; spglib may name another description than the one
-    # asked for (its origin moves by some delta), so the next shift asked for allows for that
-    targets = [u for u in (np.zeros(3), *shifts) if coset(u) not in found]
-    delta, state = np.zeros(3), {}
-    for _ in range(2 * len(wanted) + 2):
-        missing = [u for u in targets if coset(u) not in found]
-        if not missing:
-            break
-        u = missing[0] - delta
-        s_found, letters = _search(cell, [x for x, _ in sites], [k for _, k in sites], u, top, state)
-        if letters is None:
-            return None
-        delta = s_found - u
+
+    def record(s_found: np.ndarray, letters: list[str]) -> None:
         found.setdefault(
             coset(s_found),
             (
@@ -300,55 +289,108 @@ def _all_descriptions(cell, points: np.ndarray, shifts: np.ndarray) -> dict | No
                 tuple(general_letter if k < 0 else letters[k] for k in atom_site),
             ),
         )
+
+    site_x, site_kinds, state = [x for x, _ in sites], [k for _, k in sites], {}
+    # all missing descriptions from one search, the sites moved by one shift per description
+    # placed side by side (each copy its own kinds), unless moved sites would coincide
+    reps = {}
+    for u in (np.zeros(3), *shifts):
+        reps.setdefault(coset(u), u)
+    reps = [u for c, u in reps.items() if c not in found]
+    together = _search(cell, site_x, site_kinds, reps, top, state) if len(reps) > 1 else "overlap"
+    if together is None:
+        return None
+    if together != "overlap":
+        for s_found, letters in together:
+            record(s_found, letters)
+        return {k: found[k] for k in wanted} if wanted <= set(found) else None
+    # else one search per missing description; spglib may name another description than the one
+    # asked for (its origin moves by some delta), so the next shift asked for allows for that
+    targets = [u for u in (np.zeros(3), *shifts) if coset(u) not in found]
+    delta = np.zeros(3)
+    for _ in range(2 * len(wanted) + 2):
+        missing = [u for u in targets if coset(u) not in found]
+        if not missing:
+            break
+        u = missing[0] - delta
+        one = _search(cell, site_x, site_kinds, [u], top, state)
+        if one is None or one == "overlap":
+            return None
+        s_found, letters = one[0]
+        delta = s_found - u
+        record(s_found, letters)
     return {k: found[k] for k in wanted} if wanted <= set(found) else None
 
 
-def _search(cell, sites: list[np.ndarray], kinds: list[int], u: np.ndarray, top: int, state: dict):
-    """The shift s of the description spglib names for the sites moved by u, and the sites' letters.
+#: kind offset between the copies of the sites searched together
+_COPY = 100_000
 
-    One search of three random general orbits and the orbit of every site (standard
-    coordinates) moved by u, on the cell's primitive basis; where spglib turns that basis into
-    the standard one otherwise than the cell does, on the conventional standard cell instead
-    (remembered in ``state``).  spglib gives standard coordinates x' = P f + p'; with P as the
-    cell's, the sites carry the letters of the description shifted by s = u + p' - p (p the
-    origin shift of the basis searched).  Letters None when a search does not keep exactly the
-    cell's group.
+
+def _search(cell, sites: list[np.ndarray], kinds: list[int], us: list[np.ndarray], top: int, state: dict):
+    """For the sites moved by each shift u: the shift s of the description spglib names, and the
+    sites' letters in it.
+
+    One search of three random general orbits and the orbits of every site (standard
+    coordinates) moved by each u (a copy of its own kinds per shift), on the cell's primitive
+    basis; where spglib turns that basis into the standard one otherwise than the cell does, on
+    the conventional standard cell instead (remembered in ``state``).  spglib gives standard
+    coordinates x' = P f + p'; with P as the cell's, the sites moved by u carry the letters of
+    the description shifted by s = u + p' - p (p the origin shift of the basis searched).
+    Returns a list of (s, letters), ``"overlap"`` when moved sites of two copies coincide, None
+    when the search does not keep exactly the cell's group.
     """
     if not state.get("conventional"):
         plat = np.asarray(cell.lattice, dtype=float)
         to_prim = np.asarray(cell.conventional, dtype=float) @ np.linalg.inv(plat)  # standard -> primitive
         origin = np.asarray(cell.origin_shift, dtype=float)
         prim = (plat, cell.frac_rotations, cell.frac_translations, to_prim, origin)
-        found = _search_on(prim, sites, kinds, u, top, cell.info.hall_number)
-        if found[1] != "basis":
+        found = _search_on(prim, sites, kinds, us, top, cell.info.hall_number)
+        if found != "basis":
             return found
         state["conventional"] = True
     w, t = _database(cell.info.hall_number)
     conv = (np.asarray(cell.conventional, dtype=float), w, t, np.eye(3), np.zeros(3))
-    found = _search_on(conv, sites, kinds, u, top, cell.info.hall_number)
-    return (found[0], None) if found[1] == "basis" else found
+    found = _search_on(conv, sites, kinds, us, top, cell.info.hall_number)
+    return None if found == "basis" else found
 
 
-def _search_on(basis, sites, kinds, u: np.ndarray, top: int, hall: int):
-    """:func:`_search` on one basis: (s, letters), letters ``"basis"`` when spglib's P is not the cell's."""
+def _search_on(basis, sites, kinds, us: list[np.ndarray], top: int, hall: int):
+    """:func:`_search` on one basis; ``"basis"`` when spglib's P is not the cell's."""
     from .spacegroup import _EXACT, _general_orbits, spglib_dataset
 
     lattice, w, t, to_basis, p = basis
     p_ref = np.linalg.inv(to_basis).T  # x_s = P f + p
-    orbits = [_orbit(w, t, (x + u - p) @ to_basis) for x in sites]
+    copies = [[_orbit(w, t, (x + u - p) @ to_basis) for x in sites] for u in us]
+    points = np.vstack([o for c in copies for o in c])
+    if len(us) > 1:
+        d = points[:, None] - points[None]
+        d -= np.round(d)
+        if (np.linalg.norm(d @ lattice, axis=2) + np.eye(len(points))).min() < 0.01:
+            return "overlap"
     # searched at spglib's tightest tolerance, so the points need only be told apart
-    skeleton = _general_orbits(lattice, w, t, np.vstack(orbits), seed=0, apart=0.05)
+    skeleton = _general_orbits(lattice, w, t, points, seed=0, apart=0.05)
     if skeleton is None:  # pragma: no cover - a cell crowded with special positions
-        return u, None
+        return None
     ops = len(w)
     species = np.concatenate(
         [np.full(len(o), top + k) for k, o in enumerate(skeleton)]
-        + [np.full(len(o), kind) for o, kind in zip(orbits, kinds, strict=True)]
+        + [
+            np.full(len(o), kind + _COPY * c)
+            for c, orbits in enumerate(copies)
+            for o, kind in zip(orbits, kinds, strict=True)
+        ]
     ).astype(int)
-    ds = spglib_dataset(lattice, np.vstack([*skeleton, *orbits]), species, _EXACT)
+    ds = spglib_dataset(lattice, np.vstack([*skeleton, points]), species, _EXACT)
     if int(ds.hall_number) != hall or len(ds.rotations) != ops:
-        return u, None
+        return None
     if not np.allclose(ds.transformation_matrix, p_ref, atol=1e-6):
-        return u, "basis"
-    first = np.cumsum([0, *[len(o) for o in orbits]])[:-1] + 3 * ops
-    return u + np.asarray(ds.origin_shift, dtype=float) - p, [str(ds.wyckoffs[i]) for i in first]
+        return "basis"
+    moved = np.asarray(ds.origin_shift, dtype=float) - p
+    out, at = [], 3 * ops
+    for u, orbits in zip(us, copies, strict=True):
+        letters = []
+        for o in orbits:
+            letters.append(str(ds.wyckoffs[at]))
+            at += len(o)
+        out.append((u + moved, letters))
+    return out
