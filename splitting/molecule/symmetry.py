@@ -287,9 +287,10 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
         # every trial rotation fitted and matched at once; the looser second try one by one
         rots = _kabsch_many(np.broadcast_to(src, dsts.shape).copy(), dsts, want)
         # a few atoms spread over the unit first: a trial that moves one of them too far fails anyway
-        few = np.unique(np.linspace(0, n - 1, min(n, 8)).astype(int))
-        dd, _ = tree.query((pos[few][None] @ np.transpose(rots, (0, 2, 1))).reshape(-1, 3))
-        rots = rots[dd.reshape(len(rots), -1).max(axis=1) <= 3 * tol]
+        # (one atom at a time, each on the trials still standing)
+        for atom in np.unique(np.linspace(0, n - 1, min(n, 8)).astype(int)):
+            dd, _ = tree.query(rots @ pos[atom])
+            rots = rots[dd <= 3 * tol]
         moved = pos[None] @ np.transpose(rots, (0, 2, 1))
         d, j = tree.query(moved.reshape(-1, 3))
         d, j = d.reshape(len(rots), n), j.reshape(len(rots), n)  # no trial left: (0, n), not an error
