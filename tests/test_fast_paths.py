@@ -121,3 +121,15 @@ def test_table_read_off_the_closure_is_the_multiplication_table(name):
     ops, table = close_group_with_table(generators(name))
     assert np.array_equal(table, _table_by_nearest(ops))
     assert np.array_equal(point_group(name).table, table)
+
+
+def test_one_decomposition_fits_both_handednesses():
+    from splitting.molecule.symmetry import _kabsch_both, _kabsch_many
+
+    rng = np.random.default_rng(4)
+    a = rng.normal(size=(1, 3, 3)).repeat(50, axis=0)
+    b = rng.normal(size=(50, 3, 3))
+    both = _kabsch_both(a, b)
+    for k, det in enumerate((1.0, -1.0)):
+        assert np.array_equal(both[:, k], _kabsch_many(a, b, np.full(50, det)))
+        assert np.allclose(np.linalg.det(both[:, k]), det)

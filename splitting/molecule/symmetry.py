@@ -122,6 +122,19 @@ def _kabsch_many(a: np.ndarray, b: np.ndarray, det: np.ndarray) -> np.ndarray:
     return r
 
 
+def _kabsch_both(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """:func:`_kabsch_many` of every pair of point sets with det +1 and with det -1, shape (m, 2, 3, 3).
+
+    One singular-value decomposition serves both (the fits of one pair differ only in the sign
+    given to the smallest singular direction).
+    """
+    u, _, vt = np.linalg.svd(np.transpose(b, (0, 2, 1)) @ a)
+    r = u @ vt
+    other = u @ np.diag([1.0, 1.0, -1.0]) @ vt
+    det = np.linalg.det(r)[:, None, None]
+    return np.stack([np.where(det < 0, other, r), np.where(det > 0, other, r)], axis=1)
+
+
 def _match(r: np.ndarray, pos: np.ndarray, numbers: np.ndarray, tree: cKDTree, tol: float) -> np.ndarray | None:
     moved = pos @ r.T
     d, j = tree.query(moved)
@@ -277,15 +290,17 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
         p, k = np.nonzero(ok)
         # both handednesses: three atoms nearly in a plane with the centre fit a rotation
         # and a reflection almost equally well
-        trio = np.repeat(np.stack([b1[p], b2[p], c3[k]], axis=1), 2, axis=0)
-        dsts = pos[trio]
-        want = np.tile([1.0, -1.0], len(p))
+        dsts = pos[np.stack([b1[p], b2[p], c3[k]], axis=1)]
     ops: list[np.ndarray] = []
     perms: list[np.ndarray] = []
     keys: set[bytes] = set()
     if len(dsts):
         # every trial rotation fitted and matched at once; the looser second try one by one
-        rots = _kabsch_many(np.broadcast_to(src, dsts.shape).copy(), dsts, want)
+        srcs = np.broadcast_to(src, dsts.shape).copy()
+        if a3 is None:
+            rots = _kabsch_many(srcs, dsts, want)
+        else:  # each trio as a rotation, then as a rotoreflection
+            rots = _kabsch_both(srcs, dsts).reshape(-1, 3, 3)
         # a few atoms spread over the unit first: a trial that moves one of them too far fails anyway
         # (one atom at a time, each on the trials still standing)
         for atom in np.unique(np.linspace(0, n - 1, min(n, 8)).astype(int)):
