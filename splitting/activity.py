@@ -28,6 +28,7 @@ _AXES = "xyz"
 _PAIRS = [(0, 0), (1, 1), (2, 2), (0, 1), (0, 2), (1, 2)]
 _PAIR_NAMES = ["xx", "yy", "zz", "xy", "xz", "yz"]
 _POLY_NAMES = ["x²", "y²", "z²", "xy", "xz", "yz"]
+_ZERO_TENSOR = (("0",) * 3,) * 3
 
 
 @dataclass(frozen=True)
@@ -106,6 +107,19 @@ def _projector(group: PointGroup, species_index: int, mats: np.ndarray) -> np.nd
         d = group.irreps[i][0].real
         out += d / group.order * np.einsum("n,nab->ab", chi.conj(), mats)
     return out.real
+
+
+def _carriers(group: PointGroup, vec_mats: np.ndarray, quad_mats: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Which species occur in the vector and in the quadratic representation, from the characters.
+
+    The multiplicity of a species in a representation is ``sum_g chi_s(g) chi(g) / |G|``
+    (for a merged complex-conjugate pair, twice that of each irrep), with ``chi(g)`` the
+    trace of the representation's matrix of ``g``: only the species that occur are projected.
+    """
+    chars = group.characters_at_operations()
+    traces = np.stack([np.trace(vec_mats, axis1=1, axis2=2), np.trace(quad_mats, axis1=1, axis2=2)], axis=1)
+    counts = chars @ traces / group.order
+    return counts[:, 0] > 0.5, counts[:, 1] > 0.5
 
 
 def _rref(m: np.ndarray, tol: float = 1e-8) -> np.ndarray:
@@ -218,10 +232,16 @@ def activity_table(name: str) -> tuple[SpeciesActivity, ...]:
     g = point_group(name)
     vec_mats = g.operations
     quad_mats = _quadratic_matrices(g.operations)
+    carries_vector, carries_quadratic = _carriers(g, vec_mats, quad_mats)
     out = []
     for k, s in enumerate(g.species):
-        pv = _projector(g, k, vec_mats)
-        ir = tuple(_AXES[i] for i in range(3) if np.linalg.norm(pv[:, i]) > 1e-8)
+        ir: tuple[str, ...] = ()
+        if carries_vector[k]:
+            pv = _projector(g, k, vec_mats)
+            ir = tuple(_AXES[i] for i in range(3) if np.linalg.norm(pv[:, i]) > 1e-8)
+        if not carries_quadratic[k]:  # no projection: nothing of the quadratic forms lies in the species
+            out.append(SpeciesActivity(s.label, s.dimension, ir, (), _ZERO_TENSOR))
+            continue
         pq = _projector(g, k, quad_mats)
         image = _rref(pq.T.copy())  # rows span the image (in orthonormal coordinates)
         poly = image.copy()
@@ -232,7 +252,7 @@ def activity_table(name: str) -> tuple[SpeciesActivity, ...]:
         raman = tuple(_polynomial(v) for v in poly)
         tensor_rows = image.copy()
         tensor_rows[:, 3:] /= np.sqrt(2)
-        tensor = _tensor_pattern(_rref(tensor_rows)) if len(image) else tuple(("0",) * 3 for _ in range(3))
+        tensor = _tensor_pattern(_rref(tensor_rows)) if len(image) else _ZERO_TENSOR
         out.append(SpeciesActivity(s.label, s.dimension, ir, raman, tensor))
     return tuple(out)
 
@@ -243,16 +263,15 @@ def _linear_table(name: str) -> tuple[SpeciesActivity, ...]:
     lin: LinearGroup = linear_group(name)
     proxy = {a.label: a for a in activity_table("C8v")}
     core = {"Σ+": "A1", "Σ-": "A2", "Π": "E1", "Δ": "E2", "Φ": "E3"}
-    zero = tuple(("0",) * 3 for _ in range(3))
     out = []
     for s in lin.species:
         key = ("Σ" + s.label[-1]) if s.m == 0 else s.label[0]
         a = proxy.get(core.get(key, ""))
         if a is None:
-            out.append(SpeciesActivity(s.label, s.dimension, (), (), zero))
+            out.append(SpeciesActivity(s.label, s.dimension, (), (), _ZERO_TENSOR))
             continue
         ir = a.ir if s.parity in (0, -1) else ()
-        raman, tensor = (a.raman, a.raman_tensor) if s.parity in (0, 1) else ((), zero)
+        raman, tensor = (a.raman, a.raman_tensor) if s.parity in (0, 1) else ((), _ZERO_TENSOR)
         out.append(SpeciesActivity(s.label, s.dimension, ir, raman, tensor))
     return tuple(out)
 

@@ -59,7 +59,7 @@ class FactorGroup:
         if cached is not None:
             return cached
         og = identify_in_crystal(rotations, reference, tol=1e-3)
-        idx = np.array([og.locate(r, tol=1e-3) for r in rotations])
+        idx = og.locate_all(rotations, tol=1e-3)
         if len(set(idx.tolist())) != len(idx):
             raise BookkeepingError("two cell operations map onto one factor-group element")
         idx.setflags(write=False)
