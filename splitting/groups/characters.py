@@ -85,14 +85,10 @@ def character_table(table: np.ndarray, classes: list[np.ndarray], class_of: np.n
             break
     else:  # pragma: no cover - would need a pathological random draw five times
         raise SymmetryError("could not separate the irreducible characters")
-    rows = []
-    for col in range(k):
-        w = vecs[:, col] / vecs[0, col]
-        dim2 = order / np.sum(np.abs(w) ** 2 / sizes)
-        dim = np.sqrt(dim2.real)
-        chi = w * dim / sizes
-        rows.append(clean(chi))
-    chars = np.array(rows)
+    # one row per eigenvector (column of vecs), normalised so that the identity's entry is 1
+    w = np.ascontiguousarray((vecs / vecs[0]).T)
+    dim = np.sqrt(order / np.sum(np.abs(w) ** 2 / sizes, axis=1))
+    chars = clean(w * dim[:, None] / sizes)
     # validate: orthogonality and dimensions
     gram = (chars * sizes) @ chars.conj().T / order
     if not np.allclose(gram, np.eye(k), atol=1e-8):
@@ -100,6 +96,7 @@ def character_table(table: np.ndarray, classes: list[np.ndarray], class_of: np.n
     dims = chars[:, 0].real
     if not np.allclose(dims, np.round(dims)) or round(np.sum(dims**2)) != order:
         raise SymmetryError("character table dimensions do not add up to the group order")
-    sort_key = [(round(float(r[0].real)), -float(np.sum(r.real)), -float(np.sum(r.imag))) for r in chars]
+    sums = np.sum(chars.real, axis=1).tolist(), np.sum(chars.imag, axis=1).tolist()
+    sort_key = [(round(float(dims[i])), -sums[0][i], -sums[1][i]) for i in range(k)]
     ordering = sorted(range(k), key=lambda i: sort_key[i])
     return chars[ordering]

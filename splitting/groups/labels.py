@@ -18,6 +18,7 @@ P. C. Cross, *Molecular Vibrations*, 1955, Appendix X):
 from __future__ import annotations
 
 from collections.abc import Callable
+from functools import cache
 
 import numpy as np
 
@@ -51,6 +52,24 @@ def _principal(name: str) -> tuple[np.ndarray | None, int]:
     return None, 1
 
 
+@cache
+def _fixed(name: str) -> np.ndarray:
+    """The operations of the standard orientation that the labelling rules test (read-only)."""
+    m = {
+        "i": lambda: -np.eye(3),
+        "σh": lambda: reflection(Z),
+        "σxz": lambda: reflection(Y),
+        "C2x": lambda: rotation(X, np.pi),
+        "C2y": lambda: rotation(Y, np.pi),
+        "C2z": lambda: rotation(Z, np.pi),
+        "C4z": lambda: rotation(Z, np.pi / 2),
+        "S4z": lambda: improper_rotation(Z, np.pi / 2),
+        "C5": lambda: rotation([0.0, 1.0, GOLDEN], 2 * np.pi / 5),
+    }[name]()
+    m.setflags(write=False)
+    return m
+
+
 def mulliken_labels(name: str, chi: Callable[[int, np.ndarray], float | None], dims: list[int]) -> list[str]:
     """Label the species of group ``name``.
 
@@ -66,10 +85,11 @@ def mulliken_labels(name: str, chi: Callable[[int, np.ndarray], float | None], d
     """
     fam, _n = family(name)
     principal, big_n = _principal(name)
-    has_i = chi(0, -np.eye(3)) is not None
-    has_sh = chi(0, reflection(Z)) is not None
-    c2x = rotation(X, np.pi)
-    sig_xz = reflection(Y)
+    inversion, sigma_h = _fixed("i"), _fixed("σh")
+    has_i = chi(0, inversion) is not None
+    has_sh = chi(0, sigma_h) is not None
+    c2x = _fixed("C2x")
+    sig_xz = _fixed("σxz")
     labels = []
     for s, d in enumerate(dims):
         letter = _LETTERS.get(d)
@@ -78,13 +98,13 @@ def mulliken_labels(name: str, chi: Callable[[int, np.ndarray], float | None], d
         sub = ""
         if d == 1:
             if name in ("D2", "D2h"):
-                axes = [(Z, "1"), (Y, "2"), (X, "3")]
-                sym = [chi(s, rotation(ax, np.pi)) for ax, _ in axes]
+                tags = ["1", "2", "3"]  # symmetric under C2(z), C2(y), C2(x)
+                sym = [chi(s, _fixed(op)) for op in ("C2z", "C2y", "C2x")]
                 if all(v > 0 for v in sym):
                     letter = "A"
                 else:
                     letter = "B"
-                    sub = next(tag for (ax, tag), v in zip(axes, sym, strict=True) if v > 0)
+                    sub = next(tag for tag, v in zip(tags, sym, strict=True) if v > 0)
             elif principal is not None:
                 letter = "A" if chi(s, principal) > 0 else "B"
             else:
@@ -96,11 +116,11 @@ def mulliken_labels(name: str, chi: Callable[[int, np.ndarray], float | None], d
             elif fam == "Cnv" and d == 1:
                 ref = chi(s, sig_xz)
             elif fam in ("O", "Oh"):
-                ref = chi(s, rotation(Z, np.pi / 2))
+                ref = chi(s, _fixed("C4z"))
             elif fam == "Td":
-                ref = chi(s, improper_rotation(Z, np.pi / 2))
+                ref = chi(s, _fixed("S4z"))
             elif fam in ("I", "Ih") and d == 3:
-                c5 = chi(s, rotation([0.0, 1.0, GOLDEN], 2 * np.pi / 5))
+                c5 = chi(s, _fixed("C5"))
                 ref = 1.0 if abs(c5 - GOLDEN) < 1e-6 else -1.0
             if ref is not None:
                 sub = "1" if ref > 0 else "2"
@@ -111,31 +131,28 @@ def mulliken_labels(name: str, chi: Callable[[int, np.ndarray], float | None], d
             sub = str(k)
         label = letter + sub
         if has_i:
-            label += "g" if chi(s, -np.eye(3)) > 0 else "u"
+            label += "g" if chi(s, inversion) > 0 else "u"
         elif has_sh and fam not in ("C1",):
-            label += "'" if chi(s, reflection(Z)) > 0 else "''"
+            label += "'" if chi(s, sigma_h) > 0 else "''"
         labels.append(label)
     if len(set(labels)) != len(labels):
         raise SymmetryError(f"{name}: Mulliken labelling is ambiguous: {labels}")
     return labels
 
 
-def _powers(kinds: list[OperationKind]) -> list[int]:
-    """k of C_n^k / S_n^k for each member, about +z when the axis is z, else the canonical axis."""
-    out = []
-    for d in kinds:
-        if d.order <= 2 or d.symbol in ("E", "i", "σ"):
-            out.append(1)
-            continue
-        axis = d.axis
-        ang = d.angle
-        if abs(abs(axis[2]) - 1) < 1e-6:
-            ang = ang if axis[2] > 0 else -ang
-        k = round(ang / (2 * np.pi / d.order)) % d.order
-        if not d.proper and d.order % 2 == 1 and k % 2 == 0:
-            k += d.order  # S_n^k with n odd is written with k odd: sigma C_n^2 = S_n^(n+2)
-        out.append(k)
-    return out
+def _powers(kind: OperationKind, axes: np.ndarray, angles: np.ndarray) -> np.ndarray:
+    """k of C_n^k / S_n^k for the members of one class (all of ``kind``), given their axes and angles.
+
+    About +z when the axis is z, else about the canonical axis.
+    """
+    if kind.order <= 2 or kind.symbol in ("E", "i", "σ"):
+        return np.ones(len(axes), dtype=int)
+    on_z = np.abs(np.abs(axes[:, 2]) - 1) < 1e-6
+    ang = np.where(on_z & (axes[:, 2] <= 0), -angles, angles)
+    k = np.rint(ang / (2 * np.pi / kind.order)).astype(int) % kind.order
+    if not kind.proper and kind.order % 2 == 1:
+        k = np.where(k % 2 == 0, k + kind.order, k)  # S_n^k with n odd is written with k odd: sigma C_n^2 = S_n^(n+2)
+    return k
 
 
 def class_names(
@@ -149,18 +166,18 @@ def class_names(
     every = classify(ops) if kinds is None else kinds
     names: list[str] = []
     for members in classes:
-        kinds = [every[int(m)] for m in members]
-        kind = kinds[0]
-        axes = [k.axis for k in kinds]
+        members = np.asarray(members, dtype=int)
+        kind = every[int(members[0])]  # conjugate operations are of one kind
+        axes = every.axis[members]
 
         def has_axis(v: np.ndarray, axes=axes) -> bool:
-            return any(abs(abs(float(np.dot(a, v))) - 1) < 1e-6 for a in axes)
+            return bool(np.any(np.abs(np.abs(axes @ v) - 1) < 1e-6))
 
         sym = kind.symbol
         if kind.order > 2 and sym not in ("E", "i", "σ"):
-            powers = _powers(kinds)
-            on_z = [k for k, kd in zip(powers, kinds, strict=True) if abs(abs(kd.axis[2]) - 1) < 1e-6]
-            k = min(on_z) if on_z else min(powers)
+            powers = _powers(kind, axes, every.angle[members])
+            on_z = powers[np.abs(np.abs(axes[:, 2]) - 1) < 1e-6]
+            k = int(on_z.min()) if len(on_z) else int(powers.min())
             letter = "C" if kind.proper else "S"
             sym = f"{letter}{kind.order}" if k == 1 else f"{letter}{kind.order}^{k}"
             base = f"{len(members)}{sym}" if len(members) > 1 else sym

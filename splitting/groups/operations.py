@@ -279,34 +279,38 @@ def close_group_with_table(generators: list[np.ndarray], *, max_order: int = 240
     index = {_key(np.eye(3)): 0}
     gens = np.array([np.asarray(g, dtype=float) for g in generators]).reshape(-1, 3, 3)
     n_gen = len(gens)
-    left: dict[tuple[int, int], int] = {}  # (generator, element) -> index of the product
+    lmul = np.zeros((n_gen, max_order + 1), dtype=np.intp)  # lmul[g, a]: index of generator g times element a
     parent, via = [0], [0]
+    levels = []  # the elements found from each frontier, in the order found
     frontier = [0]
     while frontier:
         # every generator times every new element at once, taken in the order (element, generator)
         prods = (gens[None] @ np.array([elements[i] for i in frontier])[:, None]).reshape(-1, 3, 3)
-        rounded = np.round(prods * 1e5).astype(np.int64)
+        keys = np.round(prods * 1e5).astype(np.int64).reshape(len(prods), 9).view(np.dtype((np.void, 72)))
+        found = []
         new = []
-        for t, p in enumerate(prods):
-            k = rounded[t].tobytes()
+        for t, k in enumerate(keys.ravel().tolist()):
             j = index.get(k)
-            a, g = frontier[t // n_gen], t % n_gen
             if j is None:
                 j = index[k] = len(elements)
-                elements.append(p)
-                parent.append(a)
-                via.append(g)
+                elements.append(prods[t])
+                parent.append(frontier[t // n_gen])
+                via.append(t % n_gen)
                 new.append(j)
                 if len(elements) > max_order:
                     raise SymmetryError(f"operations do not close into a finite group of at most {max_order} elements")
-            left[g, a] = j
+            found.append(j)
+        lmul[:, frontier] = np.array(found, dtype=np.intp).reshape(len(frontier), n_gen).T
+        levels.append(new)
         frontier = new
     n = len(elements)
-    lmul = np.array([[left[g, b] for b in range(n)] for g in range(n_gen)], dtype=np.intp).reshape(n_gen, n)
+    lmul = lmul[:, :n]
     table = np.empty((n, n), dtype=np.intp)
     table[0] = np.arange(n)
-    for j in range(1, n):
-        table[j] = lmul[via[j], table[parent[j]]]
+    parent_arr, via_arr = np.array(parent, dtype=np.intp), np.array(via, dtype=np.intp)
+    for level in levels[:-1]:  # the parents of a level all lie in earlier levels
+        rows = np.array(level, dtype=np.intp)
+        table[rows] = lmul[via_arr[rows][:, None], table[parent_arr[rows]]]
     return np.array(elements), table
 
 

@@ -310,14 +310,17 @@ def point_group(name: str) -> PointGroup:
     chars = [np.sum(irr[list(g)], axis=0).real for g in groups]
     dims = [round(c[0]) for c in chars]
 
+    found: dict[bytes, int] = {}  # the labelling rules ask for the same few operations species by species
+
     def chi(s: int, m: np.ndarray) -> float | None:
-        j = find_operation(ops, m, tol=1e-6)
+        key = np.asarray(m, dtype=float).tobytes()
+        j = found.get(key)
+        if j is None:
+            j = found[key] = find_operation(ops, m, tol=1e-6)
         return None if j < 0 else float(chars[s][class_of[j]])
 
     labels = mulliken_labels(canon, chi, dims)
-    species = [
-        Species(lab, d, tuple(float(x) for x in c), g) for lab, d, c, g in zip(labels, dims, chars, groups, strict=True)
-    ]
+    species = [Species(lab, d, tuple(c.tolist()), g) for lab, d, c, g in zip(labels, dims, chars, groups, strict=True)]
     order_key = _species_order(canon)
     species.sort(key=order_key)
     ops.setflags(write=False)
@@ -327,7 +330,7 @@ def point_group(name: str) -> PointGroup:
         name=canon,
         operations=ops,
         table=table,
-        classes=tuple(ConjugacyClass(n, tuple(int(i) for i in c)) for n, c in zip(cnames, classes_idx, strict=True)),
+        classes=tuple(ConjugacyClass(n, tuple(c.tolist())) for n, c in zip(cnames, classes_idx, strict=True)),
         class_of=class_of,
         irreps=irr,
         species=tuple(species),
