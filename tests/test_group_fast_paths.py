@@ -3,15 +3,24 @@
 The activity table projects only the species that occur in the vector or the quadratic
 representation (multiplicities from the characters); a species that does not occur must
 project to zero, so the general route (projecting every species) gives the same table.
+Rotation axes are joined into lines all at once, and crystal frames scored all at once,
+as one by one.
 """
 
 from __future__ import annotations
+
+import importlib
 
 import numpy as np
 import pytest
 
 from splitting import activity
 from splitting.groups import all_group_names, point_group
+from splitting.groups.identify import crystal_preference
+from splitting.groups.operations import classify, rotation
+
+# the package exports a function of the same name as the module
+identify_mod = importlib.import_module("splitting.groups.identify")
 
 ALL = all_group_names()
 
@@ -25,3 +34,34 @@ def test_species_left_unprojected_project_to_zero(name: str) -> None:
         for mats, carries in ((g.operations, vector[k]), (quad, quadratic[k])):
             size = np.abs(activity._projector(g, k, mats)).max()
             assert (size > 1e-8) == bool(carries), (g.species[k].label, size)
+
+
+ROTATIONS = [rotation([0.3, -1.0, 2.0], 1.1), rotation([1.0, 1.0, 0.2], 0.4)]
+
+
+def _rotated(name: str, r: np.ndarray) -> np.ndarray:
+    return np.einsum("ij,njk,lk->nil", r, point_group(name).operations, r)
+
+
+@pytest.mark.parametrize("name", ALL)
+def test_axes_joined_at_once_as_one_by_one(name: str) -> None:
+    for r in ROTATIONS:
+        kinds = classify(_rotated(name, r))
+        sel = np.flatnonzero(kinds.proper & (kinds.order >= 2))
+        if not len(sel):
+            continue
+        dirs = kinds.axis[sel]
+        par = np.abs(np.abs(dirs @ dirs.T) - 1) < 1e-3
+        reps, best = identify_mod._join_axes(par, kinds.order[sel])
+        reps1, best1 = identify_mod._join_one_by_one(par, kinds.order[sel])
+        assert reps.tolist() == reps1.tolist() and best == best1
+
+
+@pytest.mark.parametrize("name", ALL)
+def test_crystal_preference_scores_frames_at_once_as_one_by_one(name: str) -> None:
+    for r in ROTATIONS:
+        ops = _rotated(name, r)
+        kinds = classify(ops)
+        frames = identify_mod._candidate_frames(identify_mod.name_of(ops), kinds, r)
+        score = crystal_preference(r)
+        assert score.many(frames) == [score(f) for f in frames]

@@ -183,10 +183,31 @@ def _axes(kinds: OperationKinds) -> list[_Axis]:
         return []
     dirs = kinds.axis[sel]
     par = np.abs(np.abs(dirs @ dirs.T) - 1) < 1e-3
-    orders = kinds.order[sel]
-    reps: list[int] = []  # positions in sel of the first rotation about every axis
+    reps, best = _join_axes(par, kinds.order[sel])
+    rep_dirs = dirs[reps] / np.linalg.norm(dirs[reps], axis=1)[:, None]
+    return [_Axis(d, o) for d, o in zip(rep_dirs, best, strict=True)]
+
+
+def _join_axes(par: np.ndarray, orders: np.ndarray) -> tuple[np.ndarray, list[int]]:
+    """The first rotation about every axis and the highest order about it, as :func:`_join_one_by_one`.
+
+    When "parallel" (``par[j, i]``) sorts the rotations into classes, every rotation joins the
+    first rotation parallel to it, found for all at once.
+    """
+    first = np.argmax(par, axis=0)  # first[i]: the first rotation about an axis parallel to that of i
+    if not np.all(first[first] == first):  # pragma: no cover - nearly parallel axes of different lines
+        return _join_one_by_one(par, orders)
+    reps = np.flatnonzero(first == np.arange(len(first)))
+    best = np.zeros(len(first), dtype=int)
+    np.maximum.at(best, first, orders)
+    return reps, best[reps].tolist()
+
+
+def _join_one_by_one(par: np.ndarray, orders: np.ndarray) -> tuple[np.ndarray, list[int]]:
+    """Rotations in turn join the first axis already found parallel to theirs, or start a new one."""
+    reps: list[int] = []  # positions of the first rotation about every axis
     best: list[int] = []
-    for i in range(len(sel)):
+    for i in range(len(orders)):
         for r, j in enumerate(reps):
             if par[j, i]:
                 best[r] = max(best[r], int(orders[i]))
@@ -194,8 +215,7 @@ def _axes(kinds: OperationKinds) -> list[_Axis]:
         else:
             reps.append(i)
             best.append(int(orders[i]))
-    rep_dirs = dirs[reps] / np.linalg.norm(dirs[reps], axis=1)[:, None]
-    return [_Axis(d, o) for d, o in zip(rep_dirs, best, strict=True)]
+    return np.array(reps, dtype=int), best
 
 
 def _parallel(u: np.ndarray, v: np.ndarray, tol: float = 1e-3) -> bool:
@@ -219,15 +239,19 @@ def name_of(ops: np.ndarray) -> str:
     return _name(ops, classify(ops), closed=False)
 
 
-def _name(ops: np.ndarray, kinds: OperationKinds, *, closed: bool) -> str:
-    """:func:`name_of` with the operations classified; ``closed`` skips the closure check."""
+def _name(ops: np.ndarray, kinds: OperationKinds, *, closed: bool, axes: list[_Axis] | None = None) -> str:
+    """:func:`name_of` with the operations classified; ``closed`` skips the closure check.
+
+    ``axes`` is ``_axes(kinds)`` when the caller has it already.
+    """
     if not closed:
         multiplication_table(ops, tol=1e-3)  # raises unless the set is closed
-    if len({np.round(o, 4).tobytes() for o in ops}) != len(ops):
+    rounded = np.ascontiguousarray(np.round(ops, 4)).reshape(len(ops), 9).view(np.dtype((np.void, 72)))
+    if len(set(rounded.ravel().tolist())) != len(ops):
         raise SymmetryError("the operations contain duplicates")
     symbols = kinds.symbol
     n_proper = int(np.sum(kinds.proper))
-    axes = _axes(kinds)
+    axes = _axes(kinds) if axes is None else axes
     has_i = "i" in symbols
     improper = n_proper != len(kinds)
     high = [a for a in axes if a.order >= 3]
@@ -309,12 +333,17 @@ def _pairs_perpendicular(zs: np.ndarray, lines: np.ndarray) -> tuple[np.ndarray,
     return np.repeat(zs[zi], 2, axis=0), xs
 
 
-def _candidate_frames(name: str, kinds: OperationKinds, reference: np.ndarray) -> np.ndarray:
-    """Candidate standard frames, shape (n, 3, 3), in the order in which they are tried."""
+def _candidate_frames(
+    name: str, kinds: OperationKinds, reference: np.ndarray, *, axes: list[_Axis] | None = None
+) -> np.ndarray:
+    """Candidate standard frames, shape (n, 3, 3), in the order in which they are tried.
+
+    ``axes`` is ``_axes(kinds)`` when the caller has it already.
+    """
     fam, _n = family(name)
     if fam in ("C1", "Ci"):
         return reference.copy()[None]
-    axes = _axes(kinds)
+    axes = _axes(kinds) if axes is None else axes
     ref_x = reference[:, 0]
     directions = np.array([a.direction for a in axes]).reshape(-1, 3)
     orders = np.array([a.order for a in axes], dtype=int)
@@ -359,6 +388,14 @@ def crystal_preference(reference: np.ndarray) -> Preference:
             float(np.dot(frame[:, 0], ref[:, 0])),
         )
 
+    def many(frames: np.ndarray) -> list[tuple]:
+        """``[score(f) for f in frames]`` in one pass over the frames (the same floats)."""
+        dz, dx, dy = (_dot_rows(frames[:, :, k], ref[None, :, k]).tolist() for k in (2, 0, 1))
+        return [
+            (round(abs(z), 6), round(abs(x), 6), round(abs(y), 6), z, x) for z, x, y in zip(dz, dx, dy, strict=True)
+        ]
+
+    score.many = many  # type: ignore[attr-defined]
     return score
 
 
@@ -443,7 +480,8 @@ def identify(
     if np.max(np.abs(np.einsum("nij,nkj->nik", ops, ops) - np.eye(3))) > 10 * tol:
         raise SymmetryError("operations are not orthogonal matrices")
     kinds = classify(ops)
-    name = _name(ops, kinds, closed=closed)
+    axes = _axes(kinds)
+    name = _name(ops, kinds, closed=closed, axes=axes)
     group = point_group(name)
     ref = np.eye(3) if reference is None else np.asarray(reference, dtype=float)
     score = prefer or crystal_preference(ref)
@@ -452,21 +490,24 @@ def identify(
     fam, _ = family(name)
     unique_frame = fam in ("T", "Th", "Td", "O", "Oh", "I", "Ih", "C1", "Ci")
     may_stop = unique_frame and prefer is not None and reference is None
-    frames = _candidate_frames(name, kinds, ref)
+    frames = _candidate_frames(name, kinds, ref, axes=axes)
 
     def misfit(frame: np.ndarray) -> float:
         mapped = np.einsum("ij,njk,lk->nil", frame, group.operations, frame).reshape(-1, 9)
         return float(np.max(nearest_matrices(flat_ops, mapped)[0]))
 
+    scores = None
     if may_stop:  # the first frame that fits is taken: try them one by one
         misfits = (misfit(frame) for frame in frames)
     else:  # every frame is scored: match them all at once
         mapped = np.einsum("fij,njk,flk->fnil", frames, group.operations, frames).reshape(-1, 9)
         misfits = iter(nearest_matrices(flat_ops, mapped)[0].reshape(len(frames), -1).max(axis=1).tolist())
-    for frame, d in zip(frames, misfits, strict=True):
+        many = getattr(score, "many", None)  # a preference may score all frames in one pass
+        scores = None if many is None else many(frames)
+    for k, (frame, d) in enumerate(zip(frames, misfits, strict=True)):
         if d > tol * 3:
             continue
-        s = score(frame)
+        s = score(frame) if scores is None else scores[k]
         if best is None or s > best_score:
             best, best_score = frame, s
             if may_stop:
