@@ -141,6 +141,7 @@ def _rref(m: np.ndarray, tol: float = 1e-8) -> np.ndarray:
     return a[:r]
 
 
+@cache  # the same few coefficients (1, -1, 1/2, 2 ...) recur from species to species
 def _fmt_coeff(c: float, first: bool) -> str:
     f = Fraction(c).limit_denominator(12)
     sign = "-" if f < 0 else ("" if first else "+")
@@ -152,8 +153,11 @@ def _fmt_coeff(c: float, first: bool) -> str:
     return f"{sign}{mag}"
 
 
+_Z2 = np.array([-1.0, -1.0, 2.0, 0.0, 0.0, 0.0])  # 2z²-x²-y²
+
+
 def _polynomial(vec: np.ndarray) -> str:
-    if np.allclose(vec, (-1, -1, 2, 0, 0, 0)):
+    if np.all(np.abs(vec - _Z2) <= 1e-8 + 1e-5 * np.abs(_Z2)):  # np.allclose(vec, _Z2)
         return "2z²-x²-y²"  # the usual spelling, the positive term first
     parts = []
     for c, name in zip(vec, _POLY_NAMES, strict=True):
@@ -172,6 +176,7 @@ _USUAL_FORMS = (
     (0, 0, 0, 0, 1, 0),
     (0, 0, 0, 0, 0, 1),
 )
+_USUAL = np.array(_USUAL_FORMS, dtype=float)
 
 
 def _usual_basis(poly: np.ndarray) -> np.ndarray:
@@ -184,14 +189,9 @@ def _usual_basis(poly: np.ndarray) -> np.ndarray:
     if len(poly) < 2:
         return poly
     q, _ = np.linalg.qr(poly.T)  # orthonormal columns spanning the species
-    chosen: list[np.ndarray] = []
-    for c in _USUAL_FORMS:
-        v = np.array(c, dtype=float)
-        if np.linalg.norm(v - q @ (q.T @ v)) > 1e-8:
-            continue
-        trial = np.array([*chosen, v])
-        if np.linalg.matrix_rank(trial, tol=1e-8) == len(trial):
-            chosen.append(v)
+    # the usual forms are orthogonal to one another: each one in the span is independent of those before
+    outside = np.linalg.norm(_USUAL - (_USUAL @ q) @ q.T, axis=1) > 1e-8
+    chosen: list[np.ndarray] = [v for v, out in zip(_USUAL, outside.tolist(), strict=True) if not out]
     for row in poly:
         if len(chosen) == len(poly):
             break

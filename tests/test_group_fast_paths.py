@@ -65,3 +65,9 @@ def test_crystal_preference_scores_frames_at_once_as_one_by_one(name: str) -> No
         frames = identify_mod._candidate_frames(identify_mod.name_of(ops), kinds, r)
         score = crystal_preference(r)
         assert score.many(frames) == [score(f) for f in frames]
+
+
+def test_usual_quadratic_forms_are_orthogonal() -> None:
+    # _usual_basis keeps every usual form that lies in a species without a rank test
+    gram = activity._USUAL @ activity._USUAL.T
+    assert np.array_equal(gram, np.diag(np.diag(gram)))

@@ -177,25 +177,27 @@ def generators(name: str) -> list[np.ndarray]:
         return [INVERSION]
     if fam == "Cs":
         return [reflection(z)]
-    cn = rotation(z, 2 * np.pi / n)
-    c2x = rotation([1.0, 0.0, 0.0], np.pi)
-    sigma_h = reflection(z)
-    if fam == "Cn":
-        return [cn]
-    if fam == "Cnv":
-        return [cn, reflection([0.0, 1.0, 0.0])]
-    if fam == "Cnh":
-        return [cn, sigma_h]
-    if fam == "Dn":
-        return [cn, c2x]
-    if fam == "Dnh":
-        return [cn, c2x, sigma_h]
-    if fam == "Dnd":
-        t = np.pi / (2 * n)
-        return [cn, c2x, reflection([-np.sin(t), np.cos(t), 0.0])]
     if fam == "S2n":
         return [improper_rotation(z, 2 * np.pi / n)]
+    if fam in ("Cn", "Cnv", "Cnh", "Dn", "Dnh", "Dnd"):
+        cn = rotation(z, 2 * np.pi / n)
+        if fam == "Cn":
+            return [cn]
+        if fam == "Cnv":
+            return [cn, reflection([0.0, 1.0, 0.0])]
+        if fam == "Cnh":
+            return [cn, reflection(z)]
+        c2x = rotation([1.0, 0.0, 0.0], np.pi)
+        if fam == "Dn":
+            return [cn, c2x]
+        if fam == "Dnh":
+            return [cn, c2x, reflection(z)]
+        t = np.pi / (2 * n)
+        return [cn, c2x, reflection([-np.sin(t), np.cos(t), 0.0])]
     c3 = rotation([1.0, 1.0, 1.0], 2 * np.pi / 3)
+    if fam in ("O", "Oh"):
+        c4z = rotation(z, np.pi / 2)
+        return [c4z, c3] if fam == "O" else [c4z, c3, INVERSION]
     c2z = rotation(z, np.pi)
     if fam == "T":
         return [c2z, c3]
@@ -203,11 +205,6 @@ def generators(name: str) -> list[np.ndarray]:
         return [c2z, c3, INVERSION]
     if fam == "Td":
         return [c2z, c3, reflection([1.0, -1.0, 0.0])]
-    c4z = rotation(z, np.pi / 2)
-    if fam == "O":
-        return [c4z, c3]
-    if fam == "Oh":
-        return [c4z, c3, INVERSION]
     c5 = rotation([0.0, 1.0, GOLDEN], 2 * np.pi / 5)
     if fam == "I":
         return [c2z, c3, c5]

@@ -300,7 +300,10 @@ def close_group_with_table(generators: list[np.ndarray], *, max_order: int = 240
                 if len(elements) > max_order:
                     raise SymmetryError(f"operations do not close into a finite group of at most {max_order} elements")
             found.append(j)
-        lmul[:, frontier] = np.array(found, dtype=np.intp).reshape(len(frontier), n_gen).T
+        if len(frontier) == 1:
+            lmul[:, frontier[0]] = found
+        else:
+            lmul[:, frontier] = np.array(found, dtype=np.intp).reshape(len(frontier), n_gen).T
         levels.append(new)
         frontier = new
     n = len(elements)
@@ -309,8 +312,12 @@ def close_group_with_table(generators: list[np.ndarray], *, max_order: int = 240
     table[0] = np.arange(n)
     parent_arr, via_arr = np.array(parent, dtype=np.intp), np.array(via, dtype=np.intp)
     for level in levels[:-1]:  # the parents of a level all lie in earlier levels
-        rows = np.array(level, dtype=np.intp)
-        table[rows] = lmul[via_arr[rows][:, None], table[parent_arr[rows]]]
+        if len(level) == 1:
+            j = level[0]
+            table[j] = lmul[via[j], table[parent[j]]]
+        else:
+            rows = np.array(level, dtype=np.intp)
+            table[rows] = lmul[via_arr[rows][:, None], table[parent_arr[rows]]]
     return np.array(elements), table
 
 
