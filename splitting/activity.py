@@ -19,7 +19,9 @@ import numpy as np
 
 from .errors import InputError
 from .groups import point_group
+from .groups.characters import all_close
 from .groups.linear import LinearGroup
+from .groups.operations import kronecker_squares
 from .groups.pointgroup import PointGroup
 
 __all__ = ["ScatteringGeometry", "SpeciesActivity", "activity_of", "activity_table", "parse_geometry"]
@@ -84,8 +86,8 @@ class SpeciesActivity:
         }
 
 
-def _quadratic_matrices(ops: np.ndarray) -> np.ndarray:
-    """6x6 matrices of the operations on symmetric tensors (orthonormal basis)."""
+def _quadratic_basis() -> np.ndarray:
+    """Orthonormal basis of the symmetric 3x3 tensors in the order of ``_PAIRS``, flattened (6, 9)."""
     basis = []
     for i, j in _PAIRS:
         b = np.zeros((3, 3))
@@ -94,9 +96,16 @@ def _quadratic_matrices(ops: np.ndarray) -> np.ndarray:
         else:
             b[i, j] = b[j, i] = 1 / np.sqrt(2)
         basis.append(b)
-    basis = np.array(basis)
-    moved = np.einsum("nij,bjk,nlk->nbil", ops, basis, ops)
-    return np.einsum("aij,nbij->nab", basis, moved)
+    return np.array(basis).reshape(6, 9)
+
+
+_QUADRATIC_BASIS = _quadratic_basis()
+
+
+def _quadratic_matrices(ops: np.ndarray) -> np.ndarray:
+    """6x6 matrices of the operations on symmetric tensors (orthonormal basis)."""
+    flat = _QUADRATIC_BASIS
+    return flat @ kronecker_squares(ops) @ flat.T  # basis_a : (R basis_b R^T)
 
 
 def _projector(group: PointGroup, species_index: int, mats: np.ndarray) -> np.ndarray:
@@ -157,7 +166,7 @@ _Z2 = np.array([-1.0, -1.0, 2.0, 0.0, 0.0, 0.0])  # 2z²-x²-y²
 
 
 def _polynomial(vec: np.ndarray) -> str:
-    if np.all(np.abs(vec - _Z2) <= 1e-8 + 1e-5 * np.abs(_Z2)):  # np.allclose(vec, _Z2)
+    if all_close(vec, _Z2):
         return "2z²-x²-y²"  # the usual spelling, the positive term first
     parts = []
     for c, name in zip(vec, _POLY_NAMES, strict=True):

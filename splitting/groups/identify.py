@@ -20,7 +20,7 @@ import numpy as np
 from ..errors import SymmetryError
 from .catalogue import family
 from .linear import LinearGroup, linear_group
-from .operations import OperationKinds, classify, multiplication_table, nearest_matrices
+from .operations import OperationKinds, classify, kronecker_squares, multiplication_table, nearest_matrices
 from .pointgroup import PointGroup, point_group
 from .representation import Representation
 
@@ -140,7 +140,7 @@ class OrientedGroup:
         if isinstance(self.group, LinearGroup):
             raise SymmetryError(f"{self.name} operations are not enumerable")
         ops = np.asarray(ops, dtype=float)
-        standard = np.einsum("ji,njk,kl->nil", self.frame, ops, self.frame)
+        standard = _conjugated_flat(self.frame.T[None], ops.reshape(-1, 3, 3))
         d, j = nearest_matrices(self._flat, standard.reshape(-1, 9))
         if len(d) and np.max(d) > tol:
             raise SymmetryError(f"operation is not an element of {self.name} in this orientation")
@@ -162,6 +162,15 @@ def oriented(name: str, frame: np.ndarray | None = None) -> OrientedGroup:
     canon = canonical_name(name)
     grp: PointGroup | LinearGroup = linear_group(canon) if "∞" in canon else point_group(canon)
     return OrientedGroup(grp, np.eye(3) if frame is None else np.asarray(frame, dtype=float))
+
+
+def _conjugated_flat(frames: np.ndarray, ops: np.ndarray) -> np.ndarray:
+    """``frames[f] @ ops[n] @ frames[f].T`` flattened, shape (f, n, 9), for matching (not for results).
+
+    One product of the flattened operations with the Kronecker squares of the frames; equal
+    to the triple product up to rounding.
+    """
+    return ops.reshape(len(ops), 9) @ kronecker_squares(frames).transpose(0, 2, 1)
 
 
 # --------------------------------------------------------------------------- naming
@@ -493,14 +502,14 @@ def identify(
     frames = _candidate_frames(name, kinds, ref, axes=axes)
 
     def misfit(frame: np.ndarray) -> float:
-        mapped = np.einsum("ij,njk,lk->nil", frame, group.operations, frame).reshape(-1, 9)
+        mapped = _conjugated_flat(frame[None], group.operations).reshape(-1, 9)
         return float(np.max(nearest_matrices(flat_ops, mapped)[0]))
 
     scores = None
     if may_stop:  # the first frame that fits is taken: try them one by one
         misfits = (misfit(frame) for frame in frames)
     else:  # every frame is scored: match them all at once
-        mapped = np.einsum("fij,njk,flk->fnil", frames, group.operations, frames).reshape(-1, 9)
+        mapped = _conjugated_flat(frames, group.operations).reshape(-1, 9)
         misfits = iter(nearest_matrices(flat_ops, mapped)[0].reshape(len(frames), -1).max(axis=1).tolist())
         many = getattr(score, "many", None)  # a preference may score all frames in one pass
         scores = None if many is None else many(frames)

@@ -25,6 +25,7 @@ __all__ = [
     "describe",
     "find_operation",
     "improper_rotation",
+    "kronecker_squares",
     "multiplication_table",
     "nearest_matrices",
     "reflection",
@@ -319,6 +320,22 @@ def close_group_with_table(generators: list[np.ndarray], *, max_order: int = 240
             rows = np.array(level, dtype=np.intp)
             table[rows] = lmul[via_arr[rows][:, None], table[parent_arr[rows]]]
     return np.array(elements), table
+
+
+def kronecker_squares(ops: np.ndarray) -> np.ndarray:
+    """``R x R`` (9x9) of every 3x3 matrix: ``vec(R T R^T) = (R x R) vec(T)``, rows flattened in C order.
+
+    The action of the operations on second-rank tensors, for many tensors in one matrix product.
+
+    Examples
+    --------
+    >>> r = rotation([0, 0, 1], np.pi / 2)
+    >>> t = np.arange(9.0).reshape(3, 3)
+    >>> bool(np.allclose(kronecker_squares(r[None])[0] @ t.ravel(), (r @ t @ r.T).ravel()))
+    True
+    """
+    m = np.asarray(ops, dtype=float).reshape(-1, 3, 3)
+    return (m[:, :, None, :, None] * m[:, None, :, None, :]).reshape(len(m), 9, 9)
 
 
 def find_operation(ops: np.ndarray, m: np.ndarray, *, tol: float = MATRIX_TOL) -> int:

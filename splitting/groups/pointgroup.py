@@ -9,7 +9,7 @@ import numpy as np
 
 from ..errors import BookkeepingError, SymmetryError
 from .catalogue import HERMANN_MAUGUIN, canonical_name, generators
-from .characters import character_table, conjugacy_classes
+from .characters import all_close, character_table, conjugacy_classes
 from .labels import class_names, mulliken_labels
 from .operations import OperationKind, classify, close_group_with_table, find_operation
 from .representation import Representation, SpeciesList
@@ -304,7 +304,7 @@ def point_group(name: str) -> PointGroup:
             groups.append((i,))
             used.add(i)
             continue
-        j = next(j for j in range(len(irr)) if j not in used and j != i and np.allclose(irr[j], row.conj(), atol=1e-8))
+        j = next(j for j in range(len(irr)) if j not in used and j != i and all_close(irr[j], row.conj(), atol=1e-8))
         groups.append((i, j))
         used.update((i, j))
     chars = [np.sum(irr[list(g)], axis=0).real for g in groups]
