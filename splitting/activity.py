@@ -143,9 +143,8 @@ def _rref(m: np.ndarray, tol: float = 1e-8) -> np.ndarray:
             continue
         a[[r, p]] = a[[p, r]]
         a[r] /= a[r, c]
-        for k in range(rows):
-            if k != r:
-                a[k] -= a[k, c] * a[r]
+        others = np.arange(rows) != r
+        a[others] -= a[others, c][:, None] * a[r]  # every other row at once, as row by row
         r += 1
     return a[:r]
 

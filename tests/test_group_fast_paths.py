@@ -3,8 +3,8 @@
 The activity table projects only the species that occur in the vector or the quadratic
 representation (multiplicities from the characters); a species that does not occur must
 project to zero, so the general route (projecting every species) gives the same table.
-Rotation axes are joined into lines all at once, and crystal frames scored all at once,
-as one by one.
+Rotation axes are joined into lines all at once, crystal frames scored all at once, and
+representations reduced for all species at once, as one by one.
 """
 
 from __future__ import annotations
@@ -15,6 +15,7 @@ import numpy as np
 import pytest
 
 from splitting import activity
+from splitting.errors import BookkeepingError
 from splitting.groups import all_group_names, point_group
 from splitting.groups.identify import crystal_preference
 from splitting.groups.operations import classify, rotation
@@ -71,3 +72,38 @@ def test_usual_quadratic_forms_are_orthogonal() -> None:
     # _usual_basis keeps every usual form that lies in a species without a rank test
     gram = activity._USUAL @ activity._USUAL.T
     assert np.array_equal(gram, np.diag(np.diag(gram)))
+
+
+def _reduce_species_by_species(g, chi: np.ndarray, what: str = "representation"):
+    """PointGroup.reduce written species by species (the general route)."""
+    n = (g.irreps.conj() * g.class_sizes) @ np.asarray(chi, dtype=complex) / g.order
+    counts = []
+    for s in g.species:
+        vals = n[list(s.irreps)]
+        v = vals[0]
+        if abs(v.imag) > 1e-6 or abs(v.real - round(v.real)) > 1e-6 or round(v.real) < 0:
+            raise BookkeepingError(
+                f"{what} does not reduce to whole multiplicities in {g.name} ({s.label}: {v.real:.4f})"
+            )
+        if len(vals) == 2 and abs(vals[0] - vals[1]) > 1e-6:
+            raise BookkeepingError(f"{what} is not a real representation of {g.name}")
+        counts.append((s.label, round(v.real)))
+    return tuple(counts)
+
+
+def _outcome(f, *args):
+    try:
+        return f(*args)
+    except BookkeepingError as exc:
+        return str(exc)
+
+
+@pytest.mark.parametrize("name", ALL)
+def test_reduce_at_once_as_species_by_species(name: str) -> None:
+    g = point_group(name)
+    rng = np.random.default_rng(len(name))
+    trials = [rng.integers(0, 3, size=len(g.species)) @ g.species_characters for _ in range(3)]
+    trials += [*g.irreps, g.species_characters[-1] / 2, -g.species_characters[0]]  # complex, fractional, negative
+    for chi in trials:
+        fast = _outcome(lambda c: g.reduce(c).counts, chi)
+        assert fast == _outcome(_reduce_species_by_species, g, chi)

@@ -120,16 +120,25 @@ class PointGroup(SpeciesList):
         return np.array([c.size for c in self.classes])
 
     @cached_property
+    def _representatives(self) -> np.ndarray:
+        """The first operation of every class."""
+        return np.array([c.members[0] for c in self.classes])
+
+    @cached_property
+    def _by_label(self) -> dict[str, Species]:
+        return {s.label: s for s in self.species}
+
+    @cached_property
     def centrosymmetric(self) -> bool:
         """True when the inversion is an operation of the group."""
         return find_operation(self.operations, -np.eye(3)) >= 0
 
     def get_species(self, label: str) -> Species:
         """The species with this Mulliken label (raises SymmetryError if absent)."""
-        for s in self.species:
-            if s.label == label:
-                return s
-        raise SymmetryError(f"{label!r} is not a species of {self.name}; species: {', '.join(self.labels)}")
+        s = self._by_label.get(label)
+        if s is None:
+            raise SymmetryError(f"{label!r} is not a species of {self.name}; species: {', '.join(self.labels)}")
+        return s
 
     def index_of(self, matrix: np.ndarray, *, tol: float = 1e-4) -> int:
         """Index of an operation given in the standard orientation."""
@@ -158,24 +167,37 @@ class PointGroup(SpeciesList):
             those of a real representation of this group).
         """
         chi = np.asarray(characters, dtype=complex)
-        n = (self.irreps.conj() * self.class_sizes) @ chi / self.order
-        counts = []
-        for s in self.species:
-            vals = n[list(s.irreps)]
-            v = vals[0]
-            if abs(v.imag) > 1e-6 or abs(v.real - round(v.real)) > 1e-6 or round(v.real) < 0:
+        n = self._weighted_conjugates @ chi / self.order
+        first, second = self._irrep_rows
+        v = n[first]
+        whole = np.rint(v.real)
+        bad = ~np.isfinite(v) | (np.abs(v.imag) > 1e-6) | (np.abs(v.real - whole) > 1e-6) | (whole < 0)
+        unpaired = np.abs(v - n[second]) > 1e-6  # the two irreps of a merged pair differ
+        if np.any(bad | unpaired):
+            k = int(np.argmax(bad | unpaired))  # the first species in table order that fails
+            if bad[k]:
                 raise BookkeepingError(
-                    f"{what} does not reduce to whole multiplicities in {self.name} ({s.label}: {v.real:.4f})"
+                    f"{what} does not reduce to whole multiplicities in {self.name} "
+                    f"({self.species[k].label}: {v[k].real:.4f})"
                 )
-            if len(vals) == 2 and abs(vals[0] - vals[1]) > 1e-6:
-                raise BookkeepingError(f"{what} is not a real representation of {self.name}")
-            counts.append((s.label, round(v.real)))
-        return Representation(self.name, tuple(counts), self.dimensions)
+            raise BookkeepingError(f"{what} is not a real representation of {self.name}")
+        counts = tuple(zip(self.labels, whole.astype(int).tolist(), strict=True))
+        return Representation(self.name, counts, self.dimensions)
+
+    @cached_property
+    def _weighted_conjugates(self) -> np.ndarray:
+        """``conj(irreps) * class_sizes``: multiplicities are this times the characters, over the order."""
+        return self.irreps.conj() * self.class_sizes
+
+    @cached_property
+    def _irrep_rows(self) -> tuple[np.ndarray, np.ndarray]:
+        """The first and the last irrep of every species (the same for a species of one irrep)."""
+        return np.array([s.irreps[0] for s in self.species]), np.array([s.irreps[-1] for s in self.species])
 
     def reduce_operations(self, characters: np.ndarray, *, what: str = "representation") -> Representation:
         """As :meth:`reduce`, from a character at every operation (checked constant on classes)."""
         chi = np.asarray(characters, dtype=float)
-        per_class = np.array([chi[c.members[0]] for c in self.classes])
+        per_class = chi[self._representatives]
         if np.max(np.abs(chi - per_class[self.class_of])) > 1e-6:
             raise BookkeepingError(f"{what} is not a class function of {self.name}")
         return self.reduce(per_class, what=what)

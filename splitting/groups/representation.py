@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass
+from functools import cached_property
 
 from ..errors import BookkeepingError
 
@@ -15,12 +16,12 @@ class SpeciesList:
 
     species: tuple
 
-    @property
+    @cached_property
     def labels(self) -> tuple[str, ...]:
         """Labels of the species, in table order."""
         return tuple(s.label for s in self.species)
 
-    @property
+    @cached_property
     def dimensions(self) -> tuple[int, ...]:
         """Dimensions of the species, in table order."""
         return tuple(s.dimension for s in self.species)
