@@ -17,7 +17,7 @@ import pytest
 from splitting import activity
 from splitting.errors import BookkeepingError
 from splitting.groups import all_group_names, point_group
-from splitting.groups.identify import crystal_preference
+from splitting.groups.identify import crystal_preference, molecular_preference
 from splitting.groups.operations import classify, rotation
 
 # the package exports a function of the same name as the module
@@ -107,3 +107,16 @@ def test_reduce_at_once_as_species_by_species(name: str) -> None:
     for chi in trials:
         fast = _outcome(lambda c: g.reduce(c).counts, chi)
         assert fast == _outcome(_reduce_species_by_species, g, chi)
+
+
+@pytest.mark.parametrize("name", ALL)
+def test_molecular_preference_scores_frames_at_once_as_one_by_one(name: str) -> None:
+    rng = np.random.default_rng(3)
+    for r in ROTATIONS:
+        ops = _rotated(name, r)
+        kinds = classify(ops)
+        seeds = np.array([r @ [0.0, 0.0, 1.3], r @ [1.1, 0.0, 0.0], rng.normal(size=3)])  # atoms on z, on x, off
+        pos = np.einsum("nij,aj->nai", ops, seeds).reshape(-1, 3)
+        frames = identify_mod._candidate_frames(identify_mod.name_of(ops), kinds, np.eye(3))
+        score = molecular_preference(pos)
+        assert score.many(frames) == [score(f) for f in frames]

@@ -430,13 +430,27 @@ def molecular_preference(positions: np.ndarray, *, tol: float = 0.1) -> Preferen
     def in_plane(normal_vec: np.ndarray) -> int:
         return int(np.sum(np.abs(pos @ normal_vec) < tol))
 
-    def score(frame: np.ndarray) -> tuple:
+    def keyed(frame: np.ndarray, through_z: int, through_x: int) -> tuple:
         x, y, z = frame[:, 0], frame[:, 1], frame[:, 2]
         perp = 0
         if normal is not None and abs(np.dot(z, normal)) < 0.5:
             perp = int(abs(np.dot(x, normal)) > 0.9)
-        return (perp, on_line(z), on_line(x), in_plane(y), round(float(x @ np.array([1.0, 2.0, 3.0])), 6))
+        return (perp, through_z, through_x, in_plane(y), round(float(x @ np.array([1.0, 2.0, 3.0])), 6))
 
+    def score(frame: np.ndarray) -> tuple:
+        return keyed(frame, on_line(frame[:, 2]), on_line(frame[:, 0]))
+
+    def on_lines(vs: np.ndarray) -> list[int]:
+        """:func:`on_line` of every row of ``vs`` in one pass."""
+        d = np.linalg.norm(np.cross(pos[None], vs[:, None]), axis=2)
+        return np.sum((d < tol) & far, axis=1).tolist()
+
+    def many(frames: np.ndarray) -> list[tuple]:
+        """``[score(f) for f in frames]``, the atoms along z and x counted for all frames at once."""
+        through = zip(frames, on_lines(frames[:, :, 2]), on_lines(frames[:, :, 0]), strict=True)
+        return [keyed(frame, nz, nx) for frame, nz, nx in through]
+
+    score.many = many  # type: ignore[attr-defined]
     return score
 
 
