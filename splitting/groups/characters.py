@@ -52,7 +52,9 @@ def conjugacy_classes(table: np.ndarray) -> tuple[list[np.ndarray], np.ndarray, 
     for a in range(n):
         if class_of[a] >= 0:
             continue
-        members = np.unique(table[table[:, a], inverse])  # h a h^-1 for every h
+        seen = np.zeros(n, dtype=bool)
+        seen[table[table[:, a], inverse]] = True  # h a h^-1 for every h
+        members = np.flatnonzero(seen)
         class_of[members] = len(classes)
         classes.append(members)
     return classes, class_of, inverse
