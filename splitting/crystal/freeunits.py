@@ -111,6 +111,19 @@ class FreeUnitCache:
                 )
                 if moved is not None:
                     return moved
+            # none in this orientation: a turned (or reflected) copy, paired on principal axes
+            for k in shape.candidates(radii, self.tolerance):
+                moved = _carry_turned(
+                    shape.ideal[k],
+                    shape.numbers[k],
+                    centred,
+                    unit.numbers,
+                    shape.free[k],
+                    self.tolerance,
+                    shape.tree(k),
+                )
+                if moved is not None:
+                    return moved
         try:
             analysis = analyse_unit(
                 unit.numbers, unit.positions, tolerance=self.tolerance, point_group=self.given.get(unit.formula)
@@ -192,10 +205,65 @@ def _carry(
         if found is None:
             return None
         r, dev = found
+    return _moved(free, r, dev)
+
+
+def _moved(free: FreeUnit, r: np.ndarray, dev: float) -> FreeUnit:
+    """``free`` turned by the orthogonal matrix ``r`` (stored orientation to the new one), deviation ``dev``."""
     if np.linalg.det(r) < 0:
         r = -r  # the same set of operations; keeps the frame a proper rotation
     frame = r @ free.group.frame
     return FreeUnit(OrientedGroup(free.group.group, frame), free.vibrations, free.linear, dev, free.source)
+
+
+#: the eight sign choices of three principal axes
+_SIGNS = np.array(
+    [[1, 1, 1], [1, -1, -1], [-1, 1, -1], [-1, -1, 1], [-1, -1, -1], [-1, 1, 1], [1, -1, 1], [1, 1, -1]], dtype=float
+)
+
+
+def _carry_turned(
+    ideal: np.ndarray,
+    ideal_numbers: np.ndarray,
+    new: np.ndarray,
+    numbers,
+    free: FreeUnit,
+    tolerance: float,
+    tree=None,
+) -> FreeUnit | None:
+    """:func:`_carry` for a unit turned (or reflected) away from the stored orientation, or None.
+
+    The principal axes of the two second-moment tensors give eight trial turns, one per choice
+    of the axes' signs; the new unit turned back by each trial has its atoms paired with the
+    nearest stored atoms.  Of the trials that pair the atoms one to one and element to element,
+    the first pairing in index order is fitted to all atoms as in :func:`_align_by_proximity`
+    and accepted only when every atom lies within ``tolerance`` of the carried symmetric
+    geometry (else the next pairing); the choice does not depend on the signs the eigenvector
+    routine happens to give.  The trials only
+    propose pairings: a unit whose axes are degenerate (a spherical or symmetric top) or badly
+    determined finds none, and is analysed afresh.
+    """
+    if tree is None:
+        from scipy.spatial import cKDTree
+
+        tree = cKDTree(ideal)
+    numbers = np.asarray(numbers)
+    n = len(new)
+    _, v_old = np.linalg.eigh(ideal.T @ ideal)
+    _, v_new = np.linalg.eigh(new.T @ new)
+    turns = (v_new[None] * _SIGNS[:, None, :]) @ v_old.T  # stored principal axes onto the new ones
+    _, j = tree.query((new[None] @ turns).reshape(-1, 3))
+    j = j.reshape(len(turns), n)
+    srt = np.sort(j, axis=1)
+    paired = np.all(ideal_numbers[j] == numbers[None], axis=1) & np.all(srt[:, 1:] != srt[:, :-1], axis=1)
+    for t in np.lexsort(j.T[::-1]):  # by pairing, first atom first; a repeated pairing is the same fit
+        if not paired[t]:
+            continue
+        found = _fit(ideal[j[t]], new, tolerance)
+        if found is not None:
+            r, dev = found
+            return _moved(free, r, dev)
+    return None
 
 
 def _align(a: np.ndarray, b: np.ndarray) -> np.ndarray:
@@ -218,7 +286,11 @@ def _align_by_proximity(
     _, j = tree.query(new)
     if len(set(j.tolist())) != len(j) or not np.array_equal(ideal_numbers[j], numbers):
         return None
-    a = ideal[j]
+    return _fit(ideal[j], new, tolerance)
+
+
+def _fit(a: np.ndarray, new: np.ndarray, tolerance: float) -> tuple[np.ndarray, float] | None:
+    """Orthogonal fit of the paired atoms ``a`` onto ``new`` and its largest miss; None beyond ``tolerance``."""
     r = _align(a, new)
     dev = float(np.max(np.linalg.norm(a @ r.T - new, axis=1)))
     return (r, dev) if dev <= tolerance else None
