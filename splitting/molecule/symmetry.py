@@ -207,8 +207,9 @@ def find_symmetry(numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE, m
         )
     og = identify(ops, prefer=molecular_preference(sym, tol=max(0.05, min(tolerance, 0.2))), tol=1e-4, closed=True)
     aligned = og.operations
-    # reorder permutations to follow the group's operation order
-    index = np.argmin(np.abs(ops[None] - aligned[:, None]).reshape(len(aligned), len(ops), -1).max(axis=2), axis=1)
+    # reorder permutations to follow the group's operation order (the same matrices, re-expressed:
+    # each is found as the nearest one; distinct operations are far apart)
+    _, index = cKDTree(ops.reshape(len(ops), 9)).query(np.asarray(aligned).reshape(len(aligned), 9))
     return MoleculeSymmetry(og, centre, numbers, pos, sym, np.array(aligned), perms[index], dev, tolerance)
 
 
