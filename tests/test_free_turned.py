@@ -146,4 +146,7 @@ def test_displaced_supercell_molecules_share_one_analysis(structures_dir: Path) 
     p = predict_atoms(atoms, free_cache=cache)
     molecules = [u for u in p.units if u.formula == "C10H8"]
     assert len(molecules) == 16 and cache.analyses == 1
+    # the second orientation is kept beside the first, so its molecules carry without a trial turn
+    (shape,) = cache._store.values()
+    assert len(shape.ideal) == 2 and shape.free[1].group.name == "D2h"
     assert {u.free_group for u in molecules} == {"D2h"} and all(u.max_deviation <= TOL for u in molecules)

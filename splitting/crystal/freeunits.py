@@ -55,6 +55,13 @@ class _Shape:
     trees: dict[int, object] = field(default_factory=dict)
     _stack: np.ndarray | None = None
 
+    def add(self, ideal: np.ndarray, numbers: np.ndarray, radii: np.ndarray, free: FreeUnit) -> None:
+        """Store one symmetrised geometry (about the centre) with its analysis in that orientation."""
+        self.ideal.append(ideal)
+        self.numbers.append(numbers)
+        self.radii.append(radii)
+        self.free.append(free)
+
     def tree(self, k: int):
         """k-d tree of stored shape k's atoms (built once, for matching atoms by proximity)."""
         found = self.trees.get(k)
@@ -84,7 +91,11 @@ class FreeUnitCache:
     that point group by the same criterion the point-group search applies (every atom within
     the tolerance of a geometry of that symmetry), and the stored analysis is carried onto it.
     Before any alignment the stored shapes are filtered, all at once, on their sorted
-    distances from the centre, which no rotation changes.
+    distances from the centre, which no rotation changes.  The atoms are paired in the order
+    listed, else by proximity in the stored orientation, else (a copy turned or reflected away
+    from every stored orientation, with its atoms in another order) by proximity after a trial
+    turn between the principal axes of the two shapes; whichever pairing is used, the match is
+    accepted on the same criterion.
     """
 
     tolerance: float
@@ -113,7 +124,7 @@ class FreeUnitCache:
                     return moved
             # none in this orientation: a turned (or reflected) copy, paired on principal axes
             for k in shape.candidates(radii, self.tolerance):
-                moved = _carry_turned(
+                found = _carry_turned(
                     shape.ideal[k],
                     shape.numbers[k],
                     centred,
@@ -122,7 +133,10 @@ class FreeUnitCache:
                     self.tolerance,
                     shape.tree(k),
                 )
-                if moved is not None:
+                if found is not None:
+                    moved, turn = found
+                    # kept as one more orientation of the shape: the units that follow in it carry directly
+                    shape.add(shape.ideal[k] @ turn.T, shape.numbers[k], shape.radii[k], moved)
                     return moved
         try:
             analysis = analyse_unit(
@@ -142,10 +156,7 @@ class FreeUnitCache:
         if shape is None:
             shape = self._store.setdefault(key, _Shape())
         ideal = np.asarray(sym.symmetric_positions, dtype=float) + (sym.centre - unit.centre)
-        shape.ideal.append(ideal)
-        shape.numbers.append(np.array(unit.numbers))
-        shape.radii.append(_radii(unit.numbers, ideal))
-        shape.free.append(free)
+        shape.add(ideal, np.array(unit.numbers), _radii(unit.numbers, ideal), free)
         return free
 
 
@@ -230,8 +241,9 @@ def _carry_turned(
     free: FreeUnit,
     tolerance: float,
     tree=None,
-) -> FreeUnit | None:
-    """:func:`_carry` for a unit turned (or reflected) away from the stored orientation, or None.
+) -> tuple[FreeUnit, np.ndarray] | None:
+    """:func:`_carry` for a unit turned (or reflected) away from the stored orientation, with the
+    orthogonal map found (stored orientation to the new one), or None.
 
     The principal axes of the two second-moment tensors give eight trial turns, one per choice
     of the axes' signs; the new unit turned back by each trial has its atoms paired with the
@@ -262,7 +274,7 @@ def _carry_turned(
         found = _fit(ideal[j[t]], new, tolerance)
         if found is not None:
             r, dev = found
-            return _moved(free, r, dev)
+            return _moved(free, r, dev), r
     return None
 
 
