@@ -110,30 +110,22 @@ class FreeUnitCache:
         shape = self._store.get(key)
         radii = _radii(unit.numbers, centred)
         if shape is not None and shape.radii:
-            for k in shape.candidates(radii, self.tolerance):
-                moved = _carry(
-                    shape.ideal[k],
-                    shape.numbers[k],
-                    centred,
-                    unit.numbers,
-                    shape.free[k],
-                    self.tolerance,
-                    shape.tree(k),
-                )
-                if moved is not None:
-                    return moved
-            # none in this orientation: a turned (or reflected) copy, paired on principal axes
-            for k in shape.candidates(radii, self.tolerance):
-                found = _carry_turned(
-                    shape.ideal[k],
-                    shape.numbers[k],
-                    centred,
-                    unit.numbers,
-                    shape.free[k],
-                    self.tolerance,
-                    shape.tree(k),
-                )
-                if found is not None:
+            # first in a stored orientation; then a turned (or reflected) copy, paired on principal axes
+            for pairing in (_carry, _carry_turned):
+                for k in shape.candidates(radii, self.tolerance):
+                    found = pairing(
+                        shape.ideal[k],
+                        shape.numbers[k],
+                        centred,
+                        unit.numbers,
+                        shape.free[k],
+                        self.tolerance,
+                        shape.tree(k),
+                    )
+                    if found is None:
+                        continue
+                    if pairing is _carry:
+                        return found
                     moved, turn = found
                     # kept as one more orientation of the shape: the units that follow in it carry directly
                     shape.add(shape.ideal[k] @ turn.T, shape.numbers[k], shape.radii[k], moved)
