@@ -53,12 +53,18 @@ def box():
     sandbox.close()
 
 
-def test_sandbox_limits(box: Sandbox, structures_dir: Path) -> None:
+def test_sandbox_limits(box: Sandbox, structures_dir: Path, tmp_path: Path) -> None:
+    import ase.io
+
     c60 = structures_dir / "c60_ordered_Pa-3.cif"
     calcite = structures_dir / "calcite.cif"
-    row, bands = box.run(str(c60), "k", c60.read_bytes(), {}, timeout=0, memory=1)
+    # 8,640 atoms: reading and searching it needs far more than 1 MiB beyond what the child's
+    # warm-up leaves free (the 240-atom cell itself may now fit in the heap the warm-up left)
+    big = tmp_path / "c60_3x3x4.cif"
+    ase.io.write(big, ase.io.read(c60).repeat((3, 3, 4)), format="cif")
+    row, bands = box.run(str(big), "k", big.read_bytes(), {}, timeout=0, memory=1)
     assert (row["ok"], row["error_kind"]) == (False, "MemoryLimit") and bands == []
-    assert row["error"] == f"{c60}: ran out of memory (limit 1 MiB per structure)"
+    assert row["error"] == f"{big}: ran out of memory (limit 1 MiB per structure)"
     row, _ = box.run(str(c60), "k", c60.read_bytes(), {}, timeout=0.01, memory=0)
     assert (row["ok"], row["error_kind"]) == (False, "Timeout")
     row, bands = box.run(str(calcite), "k", calcite.read_bytes(), {}, timeout=60, memory=0)  # a fresh child
