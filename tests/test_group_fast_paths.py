@@ -66,6 +66,19 @@ def test_crystal_preference_scores_frames_at_once_as_one_by_one(name: str) -> No
         frames = identify_mod._candidate_frames(identify_mod.name_of(ops), kinds, r)
         score = crystal_preference(r)
         assert score.many(frames) == [score(f) for f in frames]
+        ref = r / np.linalg.norm(r, axis=0)
+        for f, s in zip(frames, score.many(frames), strict=True):  # the same numbers as np.dot gives
+            dots = [float(np.dot(f[:, k], ref[:, k])) for k in (2, 0, 1)]
+            assert s == pytest.approx([abs(d) for d in dots] + dots[:2], abs=1e-6)
+
+
+def test_crystal_preference_does_not_depend_on_the_last_bit() -> None:
+    # the last bit of a dot product depends on the machine's BLAS kernel (seen: an AMD EPYC
+    # gave -1.0000000000000002 where another machine gave -1.0); a tie must stay a tie
+    score = crystal_preference(np.eye(3))
+    frame = np.diag([1.0, -1.0, -1.0])
+    nudged = frame * (1 + np.finfo(float).eps)
+    assert score(frame) == score(nudged) == (1.0, 1.0, 1.0, -1.0, 1.0)
 
 
 def test_usual_quadratic_forms_are_orthogonal() -> None:

@@ -181,7 +181,7 @@ class _Axis:
 
 
 def _dot_rows(a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """Row-wise dot products of (n, 3) arrays, summed in order (the bits of ``np.dot`` of two 3-vectors)."""
+    """Row-wise dot products of (n, 3) arrays, summed in order (np.dot may differ in the last bit)."""
     return a[..., 0] * b[..., 0] + a[..., 1] * b[..., 1] + a[..., 2] * b[..., 2]
 
 
@@ -385,24 +385,21 @@ def crystal_preference(reference: np.ndarray) -> Preference:
     ref = np.asarray(reference, dtype=float)
     ref = ref / np.linalg.norm(ref, axis=0)
 
-    def score(frame: np.ndarray) -> tuple:
-        z = abs(float(np.dot(frame[:, 2], ref[:, 2])))
-        x = abs(float(np.dot(frame[:, 0], ref[:, 0])))
-        y = abs(float(np.dot(frame[:, 1], ref[:, 1])))
-        return (
-            round(z, 6),
-            round(x, 6),
-            round(y, 6),
-            float(np.dot(frame[:, 2], ref[:, 2])),
-            float(np.dot(frame[:, 0], ref[:, 0])),
-        )
-
     def many(frames: np.ndarray) -> list[tuple]:
-        """``[score(f) for f in frames]`` in one pass over the frames (the same floats)."""
+        """``[score(f) for f in frames]`` in one pass over the frames.
+
+        Every part is rounded to 1e-6, the signed ones too: the last bit of a dot product
+        depends on the BLAS kernel of the machine, and a tie between two frames must be
+        broken the same way everywhere (by the order of the frames).
+        """
         dz, dx, dy = (_dot_rows(frames[:, :, k], ref[None, :, k]).tolist() for k in (2, 0, 1))
         return [
-            (round(abs(z), 6), round(abs(x), 6), round(abs(y), 6), z, x) for z, x, y in zip(dz, dx, dy, strict=True)
+            (round(abs(z), 6), round(abs(x), 6), round(abs(y), 6), round(z, 6), round(x, 6))
+            for z, x, y in zip(dz, dx, dy, strict=True)
         ]
+
+    def score(frame: np.ndarray) -> tuple:
+        return many(np.asarray(frame, dtype=float)[None])[0]
 
     score.many = many  # type: ignore[attr-defined]
     return score
