@@ -151,14 +151,19 @@ def _rref(m: np.ndarray, tol: float = 1e-8) -> np.ndarray:
 
 @cache  # the same few coefficients (1, -1, 1/2, 2 ...) recur from species to species
 def _fmt_coeff(c: float, first: bool) -> str:
-    f = Fraction(c).limit_denominator(12)
-    sign = "-" if f < 0 else ("" if first else "+")
-    mag = abs(f)
-    if mag == 1:
-        return sign
+    """A coefficient as written before a function: ``-``, ``+2``, ``1/2``, ``+0.707``.
+
+    The sign is that of ``c`` itself; a fraction (denominator up to 12) is used only when it
+    equals ``c`` to 1e-6, so 0.97 stays 0.97 and -0.03 stays negative.
+
+    >>> [_fmt_coeff(c, False) for c in (1.0, -1.0, 0.5, -2.0, 0.97, -0.03)]
+    ['+', '-', '+1/2', '-2', '+0.97', '-0.03']
+    """
+    sign = "-" if c < 0 else ("" if first else "+")
+    mag = Fraction(abs(c)).limit_denominator(12)
     if abs(float(mag) - abs(c)) > 1e-6:
         return f"{sign}{abs(c):.3g}"
-    return f"{sign}{mag}"
+    return sign if mag == 1 else f"{sign}{mag}"
 
 
 _Z2 = np.array([-1.0, -1.0, 2.0, 0.0, 0.0, 0.0])  # 2z²-x²-y²
