@@ -9,7 +9,7 @@ import tempfile
 from pathlib import Path
 
 from .defaults import DEFAULT_INPUT_MB
-from .errors import InputError, OutputError
+from .errors import InputError, MemoryShortageError, OutputError
 
 __all__ = [
     "atomic_folder",
@@ -122,6 +122,8 @@ def read_input_bytes(path: str | os.PathLike[str], *, what: str = "file") -> byt
         raise InputError(f"{p}: cannot be read ({_os_reason(exc)})") from None
     except EOFError:
         raise InputError(f"{p}: the compressed file is cut short") from None
+    except MemoryError:
+        raise MemoryShortageError(f"{p}: reading the file needs more memory than this process may have") from None
     except Exception:  # lzma.LZMAError, zlib.error and similar: damaged data
         raise InputError(f"{p}: not a valid {p.suffix} compressed file") from None
     if len(data) > limit:

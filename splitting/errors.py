@@ -4,6 +4,7 @@
 
     SplittingError                 base class; the CLI prints ``error: <message>``
     ├── InputError                 a file or an argument the user gave is unusable
+    │   └── MemoryShortageError         reading it needed more memory than the process may have
     ├── OutputError                an output cannot be written (permissions, disk full, ...)
     ├── SymmetryError              a symmetry search or a group lookup has no answer
     │   └── BookkeepingError       two independent counts disagree (a bug, never hidden)
@@ -21,6 +22,7 @@ __all__ = [
     "BookkeepingError",
     "DataError",
     "InputError",
+    "MemoryShortageError",
     "OutputError",
     "SplittingError",
     "SymmetryError",
@@ -37,6 +39,14 @@ class InputError(SplittingError):
     """A file or argument supplied by the user cannot be used as it is."""
 
     exit_code = 2
+
+
+class MemoryShortageError(InputError):
+    """Reading an input needed more memory than the process may have.
+
+    A damaged header can ask for gigabytes; so can a large, sound file read under a memory
+    limit (a screening child's ``--memory``).  Batch screening records it as ``MemoryLimit``.
+    """
 
 
 class OutputError(SplittingError):

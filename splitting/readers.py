@@ -19,7 +19,7 @@ import numpy as np
 
 from ._io import read_input_bytes
 from ._reasons import decode_text
-from .errors import InputError
+from .errors import InputError, MemoryShortageError
 
 __all__ = ["check_atoms", "check_cell_parameters", "read_atoms"]
 
@@ -217,7 +217,10 @@ def _read_ase(p: Path, name: str, data: bytes, format: str | None):
         except StopIteration:
             raise InputError(f"{p}: no structure found in the file") from None
         except MemoryError:
-            raise InputError(f"{p}: the file asks for more memory than there is; it is damaged") from None
+            raise MemoryShortageError(
+                f"{p}: reading the file needs more memory than this process may have "
+                "(a damaged header, or a memory limit too low for it)"
+            ) from None
         except Exception as exc:  # ase raises many types for malformed files
             raise InputError(f"{p}: cannot be read as a structure ({_plain(exc, name, format)})") from None
     if isinstance(atoms, list):

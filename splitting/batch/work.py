@@ -17,7 +17,7 @@ import time
 from functools import lru_cache
 from typing import Any
 
-from ..errors import DataError, SplittingError
+from ..errors import DataError, MemoryShortageError, SplittingError
 
 __all__ = [
     "Row",
@@ -226,6 +226,8 @@ def screen_one(path: str, key: str, file: str, options: dict[str, Any]) -> tuple
     try:
         result = predict(file, Options(**{k: _tuples(v) for k, v in options.items()}))
         return prediction_rows(result.to_dict(), path=path, key=key, seconds=time.perf_counter() - start)
+    except MemoryShortageError as exc:  # the reader ran out of memory: the limit, not the file, may be at fault
+        kind, message = MEMORY, str(exc)
     except SplittingError as exc:
         kind, message = type(exc).__name__, str(exc)
     except MemoryError:

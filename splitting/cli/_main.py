@@ -8,7 +8,7 @@ import os
 import sys
 from collections.abc import Sequence
 
-from ..errors import OutputError, SplittingError
+from ..errors import MemoryShortageError, OutputError, SplittingError
 from . import crystal, estimate, groups, outputs, phases, screen, spectra
 from ._parser import Parser, VersionAction, _silence
 
@@ -55,6 +55,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     except KeyboardInterrupt:  # pragma: no cover
         print("error: interrupted", file=sys.stderr)
         return 130
+    except MemoryError:  # the machine, not the code: say so, as for an input too large
+        print("error: ran out of memory; the input is too large for the memory this process may use", file=sys.stderr)
+        return MemoryShortageError.exit_code
     except BrokenPipeError:  # the reader of a pipe stopped early (e.g. "| head"): not an error
         guarded.silence()
         return 0

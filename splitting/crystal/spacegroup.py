@@ -53,6 +53,8 @@ def spglib_dataset(lattice: np.ndarray, frac: np.ndarray, numbers: np.ndarray, t
     with _quiet_spglib():
         try:
             ds = spglib.get_symmetry_dataset((lattice, frac, numbers), symprec=tolerance)
+        except MemoryError:  # the machine's limit, not a cell without symmetry
+            raise
         except Exception as exc:
             close = "too close" in str(exc)
             raise SymmetryError(

@@ -44,7 +44,7 @@ from typing import Any
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import InputError, MemoryShortageError
 
 __all__ = [
     "JCAMP_SUFFIXES",
@@ -743,7 +743,7 @@ def _read_jcamp(path: Path, *, technique: str | None, units: str) -> Spectrum:
         why = reason(exc, header) if isinstance(exc, ValueError) else header
         raise InputError(f"{path}: not a readable JCAMP-DX file ({why})") from None
     except MemoryError:
-        raise InputError(f"{path}: the JCAMP-DX header asks for more points than memory holds") from None
+        raise MemoryShortageError(f"{path}: the JCAMP-DX header asks for more points than memory holds") from None
     except Exception as exc:  # the jcamp reader raises a bare Exception on undecodable data lines
         m = _UNKNOWN_CHAR.search(str(exc))
         if m:
