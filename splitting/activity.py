@@ -19,7 +19,6 @@ import numpy as np
 
 from .errors import InputError
 from .groups import point_group
-from .groups.characters import all_close
 from .groups.linear import LinearGroup
 from .groups.operations import kronecker_squares
 from .groups.pointgroup import PointGroup
@@ -132,6 +131,34 @@ def _carriers(group: PointGroup, vec_mats: np.ndarray, quad_mats: np.ndarray) ->
 
 
 def _rref(m: np.ndarray, tol: float = 1e-8) -> np.ndarray:
+    """Reduced row echelon form of ``m``, zero rows dropped (partial pivoting, pivots scaled to 1).
+
+    The matrices are at most 6 x 6: the elimination runs on Python floats, with the operations
+    of :func:`_rref_numpy` in the same order, so the result is the same to the last bit.
+    """
+    rows, cols = m.shape
+    a = m.tolist()
+    r = 0
+    for c in range(cols):
+        if r >= rows:
+            break
+        column = [abs(a[i][c]) for i in range(r, rows)]
+        p = r + column.index(max(column))  # the first largest, as argmax
+        if column[p - r] < tol:
+            continue
+        a[r], a[p] = a[p], a[r]
+        pivot = a[r][c]
+        top = a[r] = [x / pivot for x in a[r]]
+        for i in range(rows):
+            if i != r:
+                f = a[i][c]
+                a[i] = [x - f * y for x, y in zip(a[i], top, strict=True)]
+        r += 1
+    return np.array(a[:r], dtype=float).reshape(r, cols)
+
+
+def _rref_numpy(m: np.ndarray, tol: float = 1e-8) -> np.ndarray:
+    """:func:`_rref` with numpy rows (the reference it is tested against)."""
     a = m.copy()
     rows, cols = a.shape
     r = 0
@@ -167,13 +194,16 @@ def _fmt_coeff(c: float, first: bool) -> str:
 
 
 _Z2 = np.array([-1.0, -1.0, 2.0, 0.0, 0.0, 0.0])  # 2z²-x²-y²
+_Z2_VALUES = _Z2.tolist()
 
 
 def _polynomial(vec: np.ndarray) -> str:
-    if all_close(vec, _Z2):
-        return "2z²-x²-y²"  # the usual spelling, the positive term first
+    values = vec.tolist()
+    # all_close(vec, _Z2) on Python floats (the same arithmetic): the usual spelling, the positive term first
+    if all(abs(c - z) <= 1e-8 + 1e-5 * abs(z) for c, z in zip(values, _Z2_VALUES, strict=True)):
+        return "2z²-x²-y²"
     parts = []
-    for c, name in zip(vec, _POLY_NAMES, strict=True):
+    for c, name in zip(values, _POLY_NAMES, strict=True):
         if abs(c) > 1e-8:
             parts.append(_fmt_coeff(c, not parts) + name)
     return "".join(parts)
@@ -217,7 +247,7 @@ def _usual_basis(poly: np.ndarray) -> np.ndarray:
 def _tensor_pattern(rows: np.ndarray) -> tuple[tuple[str, ...], ...]:
     letters = "abcdefghjk"
     cells = [["" for _ in range(3)] for _ in range(3)]
-    for k, vec in enumerate(rows):
+    for k, vec in enumerate(rows.tolist()):
         for c, (i, j) in zip(vec, _PAIRS, strict=True):
             if abs(c) > 1e-8:
                 for a, b in {(i, j), (j, i)}:
@@ -251,7 +281,8 @@ def activity_table(name: str) -> tuple[SpeciesActivity, ...]:
         ir: tuple[str, ...] = ()
         if carries_vector[k]:
             pv = _projector(g, k, vec_mats)
-            ir = tuple(_AXES[i] for i in range(3) if np.linalg.norm(pv[:, i]) > 1e-8)
+            norms = np.sqrt(np.sum(pv * pv, axis=0)).tolist()  # column norms (only compared with 1e-8)
+            ir = tuple(_AXES[i] for i in range(3) if norms[i] > 1e-8)
         if not carries_quadratic[k]:  # no projection: nothing of the quadratic forms lies in the species
             out.append(SpeciesActivity(s.label, s.dimension, ir, (), _ZERO_TENSOR))
             continue

@@ -47,6 +47,16 @@ def conjugacy_classes(table: np.ndarray) -> tuple[list[np.ndarray], np.ndarray, 
     """
     n = len(table)
     inverse = np.argmax(table == 0, axis=1)
+    if np.array_equal(table, table.T):  # abelian: every element is a class of its own
+        every = np.arange(n, dtype=np.intp)
+        return [every[a : a + 1] for a in range(n)], np.arange(n, dtype=int), inverse
+    classes, class_of = _conjugating(table, inverse)
+    return classes, class_of, inverse
+
+
+def _conjugating(table: np.ndarray, inverse: np.ndarray) -> tuple[list[np.ndarray], np.ndarray]:
+    """Classes and class of every element, gathered as ``h a h^-1`` for every h, element by element."""
+    n = len(table)
     class_of = -np.ones(n, dtype=int)
     classes: list[np.ndarray] = []
     for a in range(n):
@@ -57,7 +67,7 @@ def conjugacy_classes(table: np.ndarray) -> tuple[list[np.ndarray], np.ndarray, 
         members = np.flatnonzero(seen)
         class_of[members] = len(classes)
         classes.append(members)
-    return classes, class_of, inverse
+    return classes, class_of
 
 
 def clean(values: np.ndarray, tol: float = 1e-9) -> np.ndarray:
@@ -68,6 +78,27 @@ def clean(values: np.ndarray, tol: float = 1e-9) -> np.ndarray:
         near = np.abs(part - np.round(part)) < tol
         part[near] = np.round(part[near])
     return re + 1j * im
+
+
+#: the first draws of ``numpy.random.default_rng(7).normal``: the weights of the first attempt of
+#: :func:`character_table` with its default seed, written out because making the generator costs
+#: more than the rest of a small group's table (``tests/test_group_fast_paths.py`` checks them)
+_SEED7_DRAWS = np.array([
+    0.0012301533574825742, 0.2987455375084699, -0.2741378553622176, -0.8905918387572742,
+    -0.45467078517172255, -0.9916465549964624, 0.060143602597438485, 1.3402152455545335,
+    -0.49220651855132963, -0.6204748998199404, 0.4898420501851982, 0.35688700816006075,
+    0.10541424899789856, -0.9304680447082047, -0.02925182246327349, 0.6953031944582878,
+])  # fmt: skip
+
+
+def _weights(seed: int, attempt: int, k: int) -> np.ndarray:
+    """The ``k`` weights of attempt ``attempt``: the draws of ``default_rng(seed).normal(size=k)``, call by call."""
+    if seed == 7 and attempt == 0 and k <= len(_SEED7_DRAWS):
+        return _SEED7_DRAWS[:k].copy()
+    rng = np.random.default_rng(seed)
+    for _ in range(attempt):
+        rng.normal(size=k)
+    return rng.normal(size=k)
 
 
 def character_table(table: np.ndarray, classes: list[np.ndarray], class_of: np.ndarray, *, seed: int = 7) -> np.ndarray:
@@ -89,9 +120,8 @@ def character_table(table: np.ndarray, classes: list[np.ndarray], class_of: np.n
     cls = np.asarray(class_of)
     triple = (cls[:, None] * k + cls[None, :]) * k + cls[np.asarray(table)]
     coeff = np.bincount(triple.ravel(), minlength=k**3).reshape(k, k, k) / sizes
-    rng = np.random.default_rng(seed)
-    for _attempt in range(5):
-        weights = rng.normal(size=k)
+    for attempt in range(5):
+        weights = _weights(seed, attempt, k)
         m = np.einsum("i,ijl->jl", weights, coeff)
         vals, vecs = np.linalg.eig(m)
         if np.min(np.abs(vals[:, None] - vals[None, :]) + np.eye(k) * 1e9) > 1e-7:

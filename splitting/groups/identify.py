@@ -20,7 +20,7 @@ import numpy as np
 from ..errors import SymmetryError
 from .catalogue import family
 from .linear import LinearGroup, linear_group
-from .operations import OperationKinds, classify, kronecker_squares, multiplication_table, nearest_matrices
+from .operations import OperationKinds, classify, kronecker_squares, multiplication_table, nearest_matrices, row_norms
 from .pointgroup import PointGroup, point_group
 from .representation import Representation
 
@@ -180,6 +180,13 @@ class _Axis:
     order: int  # highest proper rotation order about it
 
 
+def _cross_rows(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """``np.cross(a, b)`` of (..., 3) arrays (broadcast): the same products and differences, without the wrapper."""
+    a0, a1, a2 = a[..., 0], a[..., 1], a[..., 2]
+    b0, b1, b2 = b[..., 0], b[..., 1], b[..., 2]
+    return np.stack([a1 * b2 - a2 * b1, a2 * b0 - a0 * b2, a0 * b1 - a1 * b0], axis=-1)
+
+
 def _dot_rows(a: np.ndarray, b: np.ndarray) -> np.ndarray:
     """Row-wise dot products of (n, 3) arrays, summed in order (np.dot may differ in the last bit)."""
     return a[..., 0] * b[..., 0] + a[..., 1] * b[..., 1] + a[..., 2] * b[..., 2]
@@ -193,7 +200,7 @@ def _axes(kinds: OperationKinds) -> list[_Axis]:
     dirs = kinds.axis[sel]
     par = np.abs(np.abs(dirs @ dirs.T) - 1) < 1e-3
     reps, best = _join_axes(par, kinds.order[sel])
-    rep_dirs = dirs[reps] / np.linalg.norm(dirs[reps], axis=1)[:, None]
+    rep_dirs = dirs[reps] / row_norms(dirs[reps])[:, None]
     return [_Axis(d, o) for d, o in zip(rep_dirs, best, strict=True)]
 
 
@@ -371,13 +378,13 @@ def _candidate_frames(
             # x along z x m for the mirror normals m perpendicular to z
             perp = np.abs(zs @ mirrors.T) < 1e-3
             zi, mi = np.nonzero(perp)
-            c = np.cross(zs[zi], mirrors[mi])
-            z, x = np.repeat(zs[zi], 2, axis=0), _signed(c / np.linalg.norm(c, axis=1)[:, None])
+            c = _cross_rows(zs[zi], mirrors[mi])
+            z, x = np.repeat(zs[zi], 2, axis=0), _signed(c / row_norms(c)[:, None])
         else:
             z, x = zs, np.array([_perpendicular(v, ref_x) for v in zs]).reshape(-1, 3)
     x = x - _dot_rows(x, z)[:, None] * z
-    x = x / np.linalg.norm(x, axis=1)[:, None]
-    return np.stack([x, np.cross(z, x), z], axis=2)
+    x = x / row_norms(x)[:, None]
+    return np.stack([x, _cross_rows(z, x), z], axis=2)
 
 
 def crystal_preference(reference: np.ndarray) -> Preference:
@@ -421,7 +428,7 @@ def molecular_preference(positions: np.ndarray, *, tol: float = 0.1) -> Preferen
     far = np.linalg.norm(pos, axis=1) > tol
 
     def on_line(v: np.ndarray) -> int:
-        d = np.linalg.norm(np.cross(pos, v), axis=1)
+        d = row_norms(_cross_rows(pos, v))
         return int(np.sum((d < tol) & far))
 
     def in_plane(normal_vec: np.ndarray) -> int:
@@ -439,7 +446,7 @@ def molecular_preference(positions: np.ndarray, *, tol: float = 0.1) -> Preferen
 
     def on_lines(vs: np.ndarray) -> list[int]:
         """:func:`on_line` of every row of ``vs`` in one pass."""
-        d = np.linalg.norm(np.cross(pos[None], vs[:, None]), axis=2)
+        d = row_norms(_cross_rows(pos[None], vs[:, None]))
         return np.sum((d < tol) & far, axis=1).tolist()
 
     def many(frames: np.ndarray) -> list[tuple]:

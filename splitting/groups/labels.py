@@ -19,6 +19,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from functools import cache
+from typing import NamedTuple
 
 import numpy as np
 
@@ -26,7 +27,7 @@ from ..errors import SymmetryError
 from .catalogue import GOLDEN, family
 from .operations import OperationKind, OperationKinds, classify, improper_rotation, reflection, rotation
 
-__all__ = ["class_names", "mulliken_labels"]
+__all__ = ["class_names", "fixed_operations", "mulliken_labels"]
 
 _LETTERS = {1: "A", 2: "E", 3: "T", 4: "G", 5: "H"}
 
@@ -35,8 +36,16 @@ X = np.array([1.0, 0.0, 0.0])
 Y = np.array([0.0, 1.0, 0.0])
 
 
+@cache
 def _principal(name: str) -> tuple[np.ndarray | None, int]:
-    """Principal operation in standard orientation and its order N."""
+    """Principal operation in standard orientation (read-only) and its order N."""
+    op, big_n = _principal_made(name)
+    if op is not None:
+        op.setflags(write=False)
+    return op, big_n
+
+
+def _principal_made(name: str) -> tuple[np.ndarray | None, int]:
     fam, n = family(name)
     if fam in ("Cn", "Cnv", "Cnh", "Dn", "Dnh"):
         return rotation(Z, 2 * np.pi / n), n
@@ -50,6 +59,19 @@ def _principal(name: str) -> tuple[np.ndarray | None, int]:
             return rotation(Z, 2 * np.pi / half), half
         return improper_rotation(Z, 2 * np.pi / n), n
     return None, 1
+
+
+_FIXED_NAMES = ("i", "σh", "σxz", "C2x", "C2y", "C2z", "C4z", "S4z", "C5")
+
+
+@cache
+def fixed_operations(name: str) -> np.ndarray:
+    """Every operation :func:`mulliken_labels` may ask the character of for group ``name``, shape (m, 3, 3)."""
+    principal, _ = _principal(name)
+    fixed = [_fixed(k) for k in _FIXED_NAMES]
+    out = np.array(fixed if principal is None else [*fixed, principal])
+    out.setflags(write=False)
+    return out
 
 
 @cache
@@ -140,6 +162,14 @@ def mulliken_labels(name: str, chi: Callable[[int, np.ndarray], float | None], d
     return labels
 
 
+class _Kind(NamedTuple):
+    """The parts of an :class:`OperationKind` that name a class."""
+
+    symbol: str
+    proper: bool
+    order: int
+
+
 def _powers(kind: OperationKind, axes: np.ndarray, angles: np.ndarray) -> np.ndarray:
     """k of C_n^k / S_n^k for the members of one class (all of ``kind``), given their axes and angles.
 
@@ -155,6 +185,18 @@ def _powers(kind: OperationKind, axes: np.ndarray, angles: np.ndarray) -> np.nda
     return k
 
 
+def _all_powers(every: OperationKinds, on_z: np.ndarray) -> list[int]:
+    """:func:`_powers` of every operation at once (by the same arithmetic), meaningful where the order is above 2.
+
+    ``on_z`` marks the operations about z.
+    """
+    order = every.order
+    ang = np.where(on_z & (every.axis[:, 2] <= 0), -every.angle, every.angle)
+    k = np.rint(ang / (2 * np.pi / order)).astype(int) % order
+    k = np.where(~every.proper & (order % 2 == 1) & (k % 2 == 0), k + order, k)
+    return k.tolist()
+
+
 def class_names(
     name: str, ops: np.ndarray, classes: list[np.ndarray], *, kinds: OperationKinds | None = None
 ) -> list[str]:
@@ -164,46 +206,52 @@ def class_names(
     """
     fam, _ = family(name)
     every = classify(ops) if kinds is None else kinds
+    # the operations about x, y, z (|axis . v| within 1e-6 of 1: the axis component itself)
+    on_axes = np.abs(np.abs(every.axis) - 1) < 1e-6
+    along = on_axes.T.tolist()
+    powers = _all_powers(every, on_axes[:, 2])
+    proper, orders = every.proper.tolist(), every.order.tolist()
     names: list[str] = []
     for members in classes:
-        members = np.asarray(members, dtype=int)
-        kind = every[int(members[0])]  # conjugate operations are of one kind
-        axes = every.axis[members]
+        listed = np.asarray(members, dtype=int).tolist()
+        first = listed[0]  # conjugate operations are of one kind
+        kind = _Kind(every.symbol[first], proper[first], orders[first])
 
-        def has_axis(v: np.ndarray, axes=axes) -> bool:
-            return bool(np.any(np.abs(np.abs(axes @ v) - 1) < 1e-6))
+        def has_axis(k: int, listed=listed) -> bool:
+            """True when an operation of the class turns about (or is normal to) axis k (x, y, z)."""
+            on = along[k]
+            return any(on[m] for m in listed)
 
         sym = kind.symbol
         if kind.order > 2 and sym not in ("E", "i", "σ"):
-            powers = _powers(kind, axes, every.angle[members])
-            on_z = powers[np.abs(np.abs(axes[:, 2]) - 1) < 1e-6]
-            k = int(on_z.min()) if len(on_z) else int(powers.min())
+            on_z = [powers[m] for m in listed if along[2][m]]
+            k = min(on_z) if on_z else min(powers[m] for m in listed)
             letter = "C" if kind.proper else "S"
             sym = f"{letter}{kind.order}" if k == 1 else f"{letter}{kind.order}^{k}"
-            base = f"{len(members)}{sym}" if len(members) > 1 else sym
+            base = f"{len(listed)}{sym}" if len(listed) > 1 else sym
             if base in names:  # a second class of the same rotations in the other sense
                 k2 = (2 * kind.order if (not kind.proper and kind.order % 2) else kind.order) - k
                 sym = f"{letter}{kind.order}^{k2}"
         if kind.symbol == "C2":
             if fam in ("T", "Th", "Td", "O", "Oh"):
-                sym = "C2" if has_axis(Z) else "C2'"
+                sym = "C2" if has_axis(2) else "C2'"
             elif name in ("D2", "D2h"):
-                sym = "C2(z)" if has_axis(Z) else ("C2(y)" if has_axis(Y) else "C2(x)")
-            elif not has_axis(Z) and fam not in ("I", "Ih"):
-                sym = "C2'" if has_axis(X) else "C2''"
+                sym = "C2(z)" if has_axis(2) else ("C2(y)" if has_axis(1) else "C2(x)")
+            elif not has_axis(2) and fam not in ("I", "Ih"):
+                sym = "C2'" if has_axis(0) else "C2''"
         if kind.symbol == "σ":
             if fam in ("I", "Ih"):
                 sym = "σ"
             elif name == "D2h":
-                sym = "σ(xy)" if has_axis(Z) else ("σ(xz)" if has_axis(Y) else "σ(yz)")
+                sym = "σ(xy)" if has_axis(2) else ("σ(xz)" if has_axis(1) else "σ(yz)")
             elif name == "C2v":
-                sym = "σv(xz)" if has_axis(Y) else "σv'(yz)"
-            elif has_axis(Z):
+                sym = "σv(xz)" if has_axis(1) else "σv'(yz)"
+            elif has_axis(2):
                 sym = "σh"
-            elif fam in ("Cnv", "Dnh") and has_axis(Y):
+            elif fam in ("Cnv", "Dnh") and has_axis(1):
                 sym = "σv"
             else:
                 sym = "σd"
-        count = len(members)
+        count = len(listed)
         names.append(sym if count == 1 else f"{count}{sym}")
     return names

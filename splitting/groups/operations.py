@@ -30,6 +30,7 @@ __all__ = [
     "nearest_matrices",
     "reflection",
     "rotation",
+    "row_norms",
 ]
 
 MATRIX_TOL = 1e-6
@@ -139,7 +140,7 @@ class OperationKinds:
 def _rotation_axes_angles(r: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Axis and angle in [0, pi] of every proper rotation matrix of a stack (n, 3, 3)."""
     n = len(r)
-    c = np.clip((np.trace(r, axis1=1, axis2=2) - 1) / 2, -1.0, 1.0)
+    c = np.minimum(np.maximum((np.trace(r, axis1=1, axis2=2) - 1) / 2, -1.0), 1.0)  # np.clip, without its overhead
     angle = np.arccos(c)
     axis = np.empty((n, 3))
     small = angle < 1e-7
@@ -147,54 +148,59 @@ def _rotation_axes_angles(r: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     general = ~small & ~half
     axis[small] = (0.0, 0.0, 1.0)
     angle[small] = 0.0
-    if np.any(half):
+    if half.any():
         # axis from the symmetric part: R + I = 2 u u^T
-        m = (r[half] + np.eye(3)) / 2
+        m = (r[half] + IDENTITY) / 2
         rows = np.arange(len(m))
-        diag = np.diagonal(m, axis1=1, axis2=2)
-        j = np.argmax(diag, axis=1)
+        diag = m.diagonal(axis1=1, axis2=2)
+        j = diag.argmax(axis=1)
         u = m[rows, :, j] / np.sqrt(np.maximum(diag[rows, j], 1e-300))[:, None]
         axis[half] = _canonical_directions(u)
         angle[half] = np.pi
-    if np.any(general):
+    if general.any():
         g = r[general]
         u = np.stack([g[:, 2, 1] - g[:, 1, 2], g[:, 0, 2] - g[:, 2, 0], g[:, 1, 0] - g[:, 0, 1]], axis=1)
         u = u / (2 * np.sin(angle[general]))[:, None]
-        axis[general] = u / np.linalg.norm(u, axis=1)[:, None]
+        axis[general] = u / row_norms(u)[:, None]
     return axis, angle
+
+
+def row_norms(u: np.ndarray) -> np.ndarray:
+    """``np.linalg.norm(u, axis=-1)`` for real rows, by the same ufuncs without the wrapper."""
+    return np.sqrt(np.add.reduce(u * u, axis=-1))
 
 
 def _canonical_directions(u: np.ndarray) -> np.ndarray:
     """Pick the sign of line directions (rows) so that the first clear component is positive."""
-    u = u / np.linalg.norm(u, axis=1)[:, None]
+    u = u / row_norms(u)[:, None]
     clear = np.abs(u) > 1e-6
-    first = np.argmax(clear, axis=1)
+    first = clear.argmax(axis=1)
     lead = u[np.arange(len(u)), first]
-    flip = np.any(clear, axis=1) & (lead < 0)
+    flip = clear.any(axis=1) & (lead < 0)
     u[flip] = -u[flip]
     return u
 
 
 _ORDERS = np.arange(2, 65)
 _COPRIME = np.gcd.outer(_ORDERS, np.arange(0, 65)) == 1  # _COPRIME[n - 2, k]
+_ORDER_ROWS = np.arange(len(_ORDERS))[None, :]
 
 
 def _orders_powers(angle: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """n, k with angle = 2 pi k / n (k coprime to n, k <= n/2) for every angle; (1, 0) for ~0."""
     frac = angle / (2 * np.pi)
     scaled = frac[:, None] * _ORDERS[None, :]
-    k = np.round(scaled)
+    k = scaled.round()
     ki = k.astype(np.int64)
-    ok = (k > 0) & (np.abs(scaled - k) < 1e-5) & _COPRIME[np.arange(len(_ORDERS))[None, :], np.clip(ki, 0, 64)]
+    ok = (k > 0) & (np.abs(scaled - k) < 1e-5) & _COPRIME[_ORDER_ROWS, np.minimum(np.maximum(ki, 0), 64)]
     zero = angle < 1e-7
-    bad = ~zero & ~np.any(ok, axis=1)
-    if np.any(bad):
+    bad = ~zero & ~ok.any(axis=1)
+    if bad.any():
         worst = float(angle[np.flatnonzero(bad)[0]])
         raise SymmetryError(f"rotation by {np.degrees(worst):.4f} degrees is not of finite order")
-    first = np.argmax(ok, axis=1)
-    rows = np.arange(len(angle))
+    first = ok.argmax(axis=1)
     order = np.where(zero, 1, _ORDERS[first])
-    power = np.where(zero, 0, ki[rows, first])
+    power = np.where(zero, 0, ki[np.arange(len(angle)), first])
     return order, power
 
 
@@ -251,6 +257,9 @@ def describe(r: np.ndarray) -> OperationKind:
     return classify(np.asarray(r, dtype=float)[None])[0]
 
 
+_KEY = np.dtype((np.void, 72))  # a rounded 3x3 matrix as one value
+
+
 def _key(m: np.ndarray) -> bytes:
     return np.round(np.asarray(m) * 1e5).astype(np.int64).tobytes()
 
@@ -276,7 +285,9 @@ def close_group_with_table(generators: list[np.ndarray], *, max_order: int = 240
     ``T[a, b]`` (see :func:`multiplication_table`) follows row by row without multiplying
     matrices again: ``T[g a, b] = L_g[T[a, b]]`` with ``L_g`` the left multiplication by g.
     """
-    elements = [np.eye(3)]
+    elements = np.empty((max_order + 2, 3, 3))  # the elements found, in order (one past the limit)
+    elements[0] = np.eye(3)
+    count = 1
     index = {_key(np.eye(3)): 0}
     gens = np.array([np.asarray(g, dtype=float) for g in generators]).reshape(-1, 3, 3)
     n_gen = len(gens)
@@ -286,19 +297,20 @@ def close_group_with_table(generators: list[np.ndarray], *, max_order: int = 240
     frontier = [0]
     while frontier:
         # every generator times every new element at once, taken in the order (element, generator)
-        prods = (gens[None] @ np.array([elements[i] for i in frontier])[:, None]).reshape(-1, 3, 3)
-        keys = np.round(prods * 1e5).astype(np.int64).reshape(len(prods), 9).view(np.dtype((np.void, 72)))
+        prods = (gens[None] @ elements[frontier][:, None]).reshape(-1, 3, 3)
+        keys = (prods * 1e5).round().astype(np.int64).reshape(len(prods), 9).view(_KEY)  # the keys of _key
         found = []
         new = []
         for t, k in enumerate(keys.ravel().tolist()):
             j = index.get(k)
             if j is None:
-                j = index[k] = len(elements)
-                elements.append(prods[t])
+                j = index[k] = count
+                elements[count] = prods[t]
+                count += 1
                 parent.append(frontier[t // n_gen])
                 via.append(t % n_gen)
                 new.append(j)
-                if len(elements) > max_order:
+                if count > max_order:
                     raise SymmetryError(f"operations do not close into a finite group of at most {max_order} elements")
             found.append(j)
         if len(frontier) == 1:
@@ -307,7 +319,7 @@ def close_group_with_table(generators: list[np.ndarray], *, max_order: int = 240
             lmul[:, frontier] = np.array(found, dtype=np.intp).reshape(len(frontier), n_gen).T
         levels.append(new)
         frontier = new
-    n = len(elements)
+    n = count
     lmul = lmul[:, :n]
     table = np.empty((n, n), dtype=np.intp)
     table[0] = np.arange(n)
@@ -319,7 +331,7 @@ def close_group_with_table(generators: list[np.ndarray], *, max_order: int = 240
         else:
             rows = np.array(level, dtype=np.intp)
             table[rows] = lmul[via_arr[rows][:, None], table[parent_arr[rows]]]
-    return np.array(elements), table
+    return elements[:n].copy(), table
 
 
 def kronecker_squares(ops: np.ndarray) -> np.ndarray:
@@ -345,6 +357,11 @@ def find_operation(ops: np.ndarray, m: np.ndarray, *, tol: float = MATRIX_TOL) -
     return j if diff[j] < tol else -1
 
 
+#: up to this order :func:`multiplication_table` finds every product by the nearest-matrix search
+#: (a product whose key matches is the nearest operation, so the table is the same either way)
+_SMALL_TABLE = 16
+
+
 def multiplication_table(ops: np.ndarray, *, tol: float = 1e-5) -> np.ndarray:
     """Table ``T[a, b] = index of ops[a] @ ops[b]``.
 
@@ -357,6 +374,17 @@ def multiplication_table(ops: np.ndarray, *, tol: float = 1e-5) -> np.ndarray:
     n = len(ops)
     prods = (ops[:, None] @ ops[None]).reshape(n * n, 9)
     flat = ops.reshape(n, 9)
+    if n <= _SMALL_TABLE:  # a few hundred distances: the search itself is cheaper than the keys
+        dist, idx = nearest_matrices(flat, prods)
+        if len(dist) and np.max(dist) > tol * 10:
+            raise SymmetryError("the operations are not closed under multiplication")
+        return idx.reshape(n, n)
+    return _table_by_keys(flat, prods, tol)
+
+
+def _table_by_keys(flat: np.ndarray, prods: np.ndarray, tol: float) -> np.ndarray:
+    """:func:`multiplication_table` from the rounded keys, the products no key matches searched."""
+    n = len(flat)
     idx = _lookup_by_keys(flat, prods)
     miss = np.flatnonzero(idx < 0)
     if len(miss):

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import cmath
 from dataclasses import dataclass, field
 from functools import cache, cached_property
 
@@ -10,8 +11,8 @@ import numpy as np
 from ..errors import BookkeepingError, SymmetryError
 from .catalogue import HERMANN_MAUGUIN, canonical_name, generators
 from .characters import all_close, character_table, conjugacy_classes
-from .labels import class_names, mulliken_labels
-from .operations import OperationKind, classify, close_group_with_table, find_operation
+from .labels import class_names, fixed_operations, mulliken_labels
+from .operations import classify, close_group_with_table, find_operation
 from .representation import Representation, SpeciesList
 
 __all__ = ["ConjugacyClass", "PointGroup", "Species", "point_group"]
@@ -167,22 +168,20 @@ class PointGroup(SpeciesList):
             those of a real representation of this group).
         """
         chi = np.asarray(characters, dtype=complex)
-        n = self._weighted_conjugates @ chi / self.order
-        first, second = self._irrep_rows
-        v = n[first]
-        whole = np.rint(v.real)
-        bad = ~np.isfinite(v) | (np.abs(v.imag) > 1e-6) | (np.abs(v.real - whole) > 1e-6) | (whole < 0)
-        unpaired = np.abs(v - n[second]) > 1e-6  # the two irreps of a merged pair differ
-        if np.any(bad | unpaired):
-            k = int(np.argmax(bad | unpaired))  # the first species in table order that fails
-            if bad[k]:
+        n = (self._weighted_conjugates @ chi / self.order).tolist()
+        whole = []
+        for k, (i, j) in enumerate(self._irrep_pairs):  # species in table order: the first that fails is named
+            v = n[i]
+            w = round(v.real) if cmath.isfinite(v) else 0
+            if not cmath.isfinite(v) or abs(v.imag) > 1e-6 or abs(v.real - w) > 1e-6 or w < 0:
                 raise BookkeepingError(
                     f"{what} does not reduce to whole multiplicities in {self.name} "
-                    f"({self.species[k].label}: {v[k].real:.4f})"
+                    f"({self.species[k].label}: {v.real:.4f})"
                 )
-            raise BookkeepingError(f"{what} is not a real representation of {self.name}")
-        counts = tuple(zip(self.labels, whole.astype(int).tolist(), strict=True))
-        return Representation(self.name, counts, self.dimensions)
+            if abs(v - n[j]) > 1e-6:  # the two irreps of a merged pair differ
+                raise BookkeepingError(f"{what} is not a real representation of {self.name}")
+            whole.append(w)
+        return Representation(self.name, tuple(zip(self.labels, whole, strict=True)), self.dimensions)
 
     @cached_property
     def _weighted_conjugates(self) -> np.ndarray:
@@ -190,15 +189,15 @@ class PointGroup(SpeciesList):
         return self.irreps.conj() * self.class_sizes
 
     @cached_property
-    def _irrep_rows(self) -> tuple[np.ndarray, np.ndarray]:
+    def _irrep_pairs(self) -> tuple[tuple[int, int], ...]:
         """The first and the last irrep of every species (the same for a species of one irrep)."""
-        return np.array([s.irreps[0] for s in self.species]), np.array([s.irreps[-1] for s in self.species])
+        return tuple((s.irreps[0], s.irreps[-1]) for s in self.species)
 
     def reduce_operations(self, characters: np.ndarray, *, what: str = "representation") -> Representation:
         """As :meth:`reduce`, from a character at every operation (checked constant on classes)."""
         chi = np.asarray(characters, dtype=float)
         per_class = chi[self._representatives]
-        if np.max(np.abs(chi - per_class[self.class_of])) > 1e-6:
+        if np.abs(chi - per_class[self.class_of]).max() > 1e-6:
             raise BookkeepingError(f"{what} is not a class function of {self.name}")
         return self.reduce(per_class, what=what)
 
@@ -310,7 +309,10 @@ def point_group(name: str) -> PointGroup:
     classes_idx, class_of, _ = conjugacy_classes(table)
     kinds = classify(ops)
     cnames = class_names(canon, ops, classes_idx, kinds=kinds)
-    ordering = sorted(range(len(classes_idx)), key=lambda c: _class_key(kinds[int(classes_idx[c][0])], cnames[c]))
+    firsts = [int(c[0]) for c in classes_idx]
+    proper, orders = kinds.proper.tolist(), kinds.order.tolist()
+    keys = [_class_key(kinds.symbol[f], proper[f], orders[f], n) for f, n in zip(firsts, cnames, strict=True)]
+    ordering = sorted(range(len(classes_idx)), key=keys.__getitem__)
     classes_idx = [classes_idx[c] for c in ordering]
     cnames = [cnames[c] for c in ordering]
     for new_index, members in enumerate(classes_idx):
@@ -319,30 +321,36 @@ def point_group(name: str) -> PointGroup:
     # merge complex-conjugate pairs
     groups: list[tuple[int, ...]] = []
     used: set[int] = set()
+    real = (np.max(np.abs(irr.imag), axis=1) < 1e-9).tolist()
     for i, row in enumerate(irr):
         if i in used:
             continue
-        if np.max(np.abs(row.imag)) < 1e-9:
+        if real[i]:
             groups.append((i,))
             used.add(i)
             continue
         j = next(j for j in range(len(irr)) if j not in used and j != i and all_close(irr[j], row.conj(), atol=1e-8))
         groups.append((i, j))
         used.update((i, j))
-    chars = [np.sum(irr[list(g)], axis=0).real for g in groups]
+    singles = (irr + 0.0).real  # a row summed alone, as np.sum gives it (-0.0 becomes 0.0)
+    chars = [singles[g[0]] if len(g) == 1 else np.sum(irr[list(g)], axis=0).real for g in groups]
     dims = [round(c[0]) for c in chars]
 
-    found: dict[bytes, int] = {}  # the labelling rules ask for the same few operations species by species
+    # the labelling rules ask for the same few operations species by species: found all at once
+    found = _find_operations(ops, fixed_operations(canon))
+
+    values = [c.tolist() for c in chars]
+    class_list = class_of.tolist()
 
     def chi(s: int, m: np.ndarray) -> float | None:
         key = np.asarray(m, dtype=float).tobytes()
         j = found.get(key)
         if j is None:
             j = found[key] = find_operation(ops, m, tol=1e-6)
-        return None if j < 0 else float(chars[s][class_of[j]])
+        return None if j < 0 else values[s][class_list[j]]
 
     labels = mulliken_labels(canon, chi, dims)
-    species = [Species(lab, d, tuple(c.tolist()), g) for lab, d, c, g in zip(labels, dims, chars, groups, strict=True)]
+    species = [Species(lab, d, tuple(c), g) for lab, d, c, g in zip(labels, dims, values, groups, strict=True)]
     order_key = _species_order(canon)
     species.sort(key=order_key)
     ops.setflags(write=False)
@@ -359,17 +367,27 @@ def point_group(name: str) -> PointGroup:
     )
 
 
-def _class_key(kind: OperationKind, cname: str) -> tuple:
+def _find_operations(ops: np.ndarray, matrices: np.ndarray) -> dict[bytes, int]:
+    """:func:`find_operation` (tolerance 1e-6) of every matrix at once, keyed by the matrix's bytes."""
+    if not len(matrices):
+        return {}
+    diff = np.abs(ops[None] - matrices[:, None]).reshape(len(matrices), len(ops), 9).max(axis=2)
+    j = np.argmin(diff, axis=1)
+    hit = diff[np.arange(len(matrices)), j] < 1e-6
+    return {m.tobytes(): (int(k) if h else -1) for m, k, h in zip(matrices, j.tolist(), hit.tolist(), strict=True)}
+
+
+def _class_key(symbol: str, proper: bool, order: int, cname: str) -> tuple:
     """Textbook order of classes: E, rotations (high order first), i, S_n, sigma_h, sigma_v, sigma_d."""
     bare = cname.lstrip("0123456789")
-    if kind.symbol == "E":
+    if symbol == "E":
         return (0, 0, 0, bare)
-    if kind.proper:
-        return (1, -kind.order, bare.count("'"), bare)
-    if kind.symbol == "i":
+    if proper:
+        return (1, -order, bare.count("'"), bare)
+    if symbol == "i":
         return (2, 0, 0, bare)
-    if kind.symbol != "σ":
-        return (3, kind.order, 0, bare)
+    if symbol != "σ":
+        return (3, order, 0, bare)
     return (4, {"h": 0, "v": 1, "d": 2}.get(bare[1:2], 0), bare.count("'"), bare)
 
 
