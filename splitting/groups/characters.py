@@ -50,8 +50,11 @@ def conjugacy_classes(table: np.ndarray) -> tuple[list[np.ndarray], np.ndarray, 
     if np.array_equal(table, table.T):  # abelian: every element is a class of its own
         every = np.arange(n, dtype=np.intp)
         return [every[a : a + 1] for a in range(n)], np.arange(n, dtype=int), inverse
-    classes, class_of = _conjugating(table, inverse)
-    return classes, class_of, inverse
+    # conj[a, h] = h a h^-1: a class is a row's set, found in the loop's order (by its smallest member)
+    conj = table[table.T, inverse[None, :]]
+    smallest, class_of = np.unique(conj.min(axis=1), return_inverse=True)
+    classes = [np.flatnonzero(class_of == c) for c in range(len(smallest))]
+    return classes, class_of.astype(int, copy=False), inverse
 
 
 def _conjugating(table: np.ndarray, inverse: np.ndarray) -> tuple[list[np.ndarray], np.ndarray]:

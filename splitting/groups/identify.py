@@ -20,7 +20,15 @@ import numpy as np
 from ..errors import SymmetryError
 from .catalogue import family
 from .linear import LinearGroup, linear_group
-from .operations import OperationKinds, classify, kronecker_squares, multiplication_table, nearest_matrices, row_norms
+from .operations import (
+    IDENTITY,
+    OperationKinds,
+    classify,
+    kronecker_squares,
+    multiplication_table,
+    nearest_matrices,
+    row_norms,
+)
 from .pointgroup import PointGroup, point_group
 from .representation import Representation
 
@@ -70,6 +78,11 @@ class OrientedGroup:
     @cached_property
     def _flat(self) -> np.ndarray:
         return self.group.operations.reshape(-1, 9)
+
+    @cached_property
+    def _to_standard_flat(self) -> np.ndarray:
+        """The operand of :func:`_conjugated_flat` that writes flattened operations in the standard frame."""
+        return kronecker_squares(self.frame.T[None]).transpose(0, 2, 1)
 
     def to_standard(self, op: np.ndarray) -> np.ndarray:
         """An operation of the given frame written in the standard frame."""
@@ -139,8 +152,8 @@ class OrientedGroup:
         """:meth:`locate` for an array of operations at once (finite groups only)."""
         if isinstance(self.group, LinearGroup):
             raise SymmetryError(f"{self.name} operations are not enumerable")
-        ops = np.asarray(ops, dtype=float)
-        standard = _conjugated_flat(self.frame.T[None], ops.reshape(-1, 3, 3))
+        ops = np.asarray(ops, dtype=float).reshape(-1, 3, 3)
+        standard = ops.reshape(len(ops), 9) @ self._to_standard_flat  # as _conjugated_flat(self.frame.T[None], ops)
         d, j = nearest_matrices(self._flat, standard.reshape(-1, 9))
         if len(d) and np.max(d) > tol:
             raise SymmetryError(f"operation is not an element of {self.name} in this orientation")
@@ -412,6 +425,10 @@ def crystal_preference(reference: np.ndarray) -> Preference:
     return score
 
 
+#: the last part of a molecular frame's score (a fixed order among frames that tie on the rest)
+_ORDERING = np.array([1.0, 2.0, 3.0])
+
+
 def molecular_preference(positions: np.ndarray, *, tol: float = 0.1) -> Preference:
     """Mulliken's axis conventions for a molecule (positions relative to its centre).
 
@@ -439,7 +456,7 @@ def molecular_preference(positions: np.ndarray, *, tol: float = 0.1) -> Preferen
         perp = 0
         if normal is not None and abs(np.dot(z, normal)) < 0.5:
             perp = int(abs(np.dot(x, normal)) > 0.9)
-        return (perp, through_z, through_x, in_plane(y), round(float(x @ np.array([1.0, 2.0, 3.0])), 6))
+        return (perp, through_z, through_x, in_plane(y), round(float(x @ _ORDERING), 6))
 
     def score(frame: np.ndarray) -> tuple:
         return keyed(frame, on_line(frame[:, 2]), on_line(frame[:, 0]))
@@ -450,9 +467,20 @@ def molecular_preference(positions: np.ndarray, *, tol: float = 0.1) -> Preferen
         return np.sum((d < tol) & far, axis=1).tolist()
 
     def many(frames: np.ndarray) -> list[tuple]:
-        """``[score(f) for f in frames]``, the atoms along z and x counted for all frames at once."""
-        through = zip(frames, on_lines(frames[:, :, 2]), on_lines(frames[:, :, 0]), strict=True)
-        return [keyed(frame, nz, nx) for frame, nz, nx in through]
+        """``[score(f) for f in frames]`` in one pass over the frames.
+
+        The counts and the perpendicular test compare with thresholds, so the products may be
+        taken for all frames at once; the last part is the same dot product as in :func:`keyed`.
+        """
+        xs, ys, zs = frames[:, :, 0], frames[:, :, 1], frames[:, :, 2]
+        if normal is None:
+            perp = [0] * len(frames)
+        else:
+            perp = ((np.abs(zs @ normal) < 0.5) & (np.abs(xs @ normal) > 0.9)).astype(int).tolist()
+        in_y = np.sum(np.abs(pos @ ys.T) < tol, axis=0).tolist()
+        last = [round(float(x @ _ORDERING), 6) for x in xs]
+        parts = (perp, on_lines(zs), on_lines(xs), in_y, last)
+        return list(zip(*parts, strict=True))
 
     score.many = many  # type: ignore[attr-defined]
     return score
@@ -504,7 +532,7 @@ def identify(
     ops = np.asarray(ops, dtype=float)
     if ops.ndim != 3 or ops.shape[1:] != (3, 3) or len(ops) == 0:
         raise SymmetryError("operations must be an array of shape (n, 3, 3)")
-    if np.max(np.abs(np.einsum("nij,nkj->nik", ops, ops) - np.eye(3))) > 10 * tol:
+    if np.abs(ops @ ops.transpose(0, 2, 1) - IDENTITY).max() > 10 * tol:  # R R^T = 1 (a check only)
         raise SymmetryError("operations are not orthogonal matrices")
     kinds = classify(ops)
     axes = _axes(kinds)

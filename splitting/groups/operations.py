@@ -137,6 +137,9 @@ class OperationKinds:
         return (self[i] for i in range(len(self)))
 
 
+_ROWS, _COLS = np.array([2, 0, 1]), np.array([1, 2, 0])
+
+
 def _rotation_axes_angles(r: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Axis and angle in [0, pi] of every proper rotation matrix of a stack (n, 3, 3)."""
     n = len(r)
@@ -159,7 +162,7 @@ def _rotation_axes_angles(r: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         angle[half] = np.pi
     if general.any():
         g = r[general]
-        u = np.stack([g[:, 2, 1] - g[:, 1, 2], g[:, 0, 2] - g[:, 2, 0], g[:, 1, 0] - g[:, 0, 1]], axis=1)
+        u = g[:, _ROWS, _COLS] - g[:, _COLS, _ROWS]  # (R32 - R23, R13 - R31, R21 - R12)
         u = u / (2 * np.sin(angle[general]))[:, None]
         axis[general] = u / row_norms(u)[:, None]
     return axis, angle
@@ -359,7 +362,7 @@ def find_operation(ops: np.ndarray, m: np.ndarray, *, tol: float = MATRIX_TOL) -
 
 #: up to this order :func:`multiplication_table` finds every product by the nearest-matrix search
 #: (a product whose key matches is the nearest operation, so the table is the same either way)
-_SMALL_TABLE = 16
+_SMALL_TABLE = 24
 
 
 def multiplication_table(ops: np.ndarray, *, tol: float = 1e-5) -> np.ndarray:
