@@ -101,13 +101,13 @@ def test_restriction_all_at_once_equals_one_by_one() -> None:
 
 def test_free_units_analysed_once_per_shape(structures_dir: Path, monkeypatch: pytest.MonkeyPatch) -> None:
     calls: list[int] = []
-    real = freeunits.analyse_unit
+    real = freeunits.unit_vibrations
 
     def counting(*args, **kwargs):
         calls.append(1)
         return real(*args, **kwargs)
 
-    monkeypatch.setattr(freeunits, "analyse_unit", counting)
+    monkeypatch.setattr(freeunits, "unit_vibrations", counting)
     p = predict(structures_dir / "naphthalene_P21a.cif")
     # two symmetry-equivalent molecules in the cell (P2_1/a, Z = 2): one analysis
     assert p.unit("C10H8").count == 2 and len(calls) == 1

@@ -14,7 +14,8 @@ import numpy as np
 
 from ..errors import InputError
 from ..groups import OrientedGroup, Representation
-from ..molecule.analysis import analyse_unit
+from ..molecule.analysis import unit_vibrations
+from ..molecule.symmetry import one_to_one
 from .units import Unit
 
 __all__ = ["FreeUnit", "FreeUnitCache"]
@@ -66,9 +67,7 @@ class _Shape:
         """k-d tree of stored shape k's atoms (built once, for matching atoms by proximity)."""
         found = self.trees.get(k)
         if found is None:
-            from scipy.spatial import cKDTree
-
-            found = self.trees[k] = cKDTree(self.ideal[k])
+            found = self.trees[k] = _tree(self.ideal[k])
         return found
 
     def candidates(self, radii: np.ndarray, tolerance: float) -> np.ndarray:
@@ -131,16 +130,15 @@ class FreeUnitCache:
                     shape.add(shape.ideal[k] @ turn.T, shape.numbers[k], shape.radii[k], moved)
                     return moved
         try:
-            analysis = analyse_unit(
+            sym, vibrations = unit_vibrations(
                 unit.numbers, unit.positions, tolerance=self.tolerance, point_group=self.given.get(unit.formula)
             )
         except InputError as exc:
             raise InputError(f"unit {unit.formula}: {exc}") from None
         self.analyses += 1
-        sym = analysis.symmetry
         free = FreeUnit(
             sym.group,
-            analysis.vibrations,
+            vibrations,
             sym.linear,
             sym.max_deviation,
             "given" if unit.formula in self.given else "detected",
@@ -247,10 +245,7 @@ def _carry_turned(
     propose pairings: a unit whose axes are degenerate (a spherical or symmetric top) or badly
     determined finds none, and is analysed afresh.
     """
-    if tree is None:
-        from scipy.spatial import cKDTree
-
-        tree = cKDTree(ideal)
+    tree = _tree(ideal, tree)
     numbers = np.asarray(numbers)
     n = len(new)
     _, v_old = np.linalg.eigh(ideal.T @ ideal)
@@ -258,8 +253,7 @@ def _carry_turned(
     turns = (v_new[None] * _SIGNS[:, None, :]) @ v_old.T  # stored principal axes onto the new ones
     _, j = tree.query((new[None] @ turns).reshape(-1, 3))
     j = j.reshape(len(turns), n)
-    srt = np.sort(j, axis=1)
-    paired = np.all(ideal_numbers[j] == numbers[None], axis=1) & np.all(srt[:, 1:] != srt[:, :-1], axis=1)
+    paired = one_to_one(j, ideal_numbers, numbers)
     for t in np.lexsort(j.T[::-1]):  # by pairing, first atom first; a repeated pairing is the same fit
         if not paired[t]:
             continue
@@ -283,14 +277,19 @@ def _align_by_proximity(
 
     ``tree`` is a k-d tree of ``ideal`` built before (one is built here if not given).
     """
+    _, j = _tree(ideal, tree).query(new)
+    if not one_to_one(j, ideal_numbers, numbers):
+        return None
+    return _fit(ideal[j], new, tolerance)
+
+
+def _tree(points: np.ndarray, tree=None):
+    """``tree`` when given, else a k-d tree of ``points``."""
     if tree is None:
         from scipy.spatial import cKDTree
 
-        tree = cKDTree(ideal)
-    _, j = tree.query(new)
-    if len(set(j.tolist())) != len(j) or not np.array_equal(ideal_numbers[j], numbers):
-        return None
-    return _fit(ideal[j], new, tolerance)
+        tree = cKDTree(points)
+    return tree
 
 
 def _fit(a: np.ndarray, new: np.ndarray, tolerance: float) -> tuple[np.ndarray, float] | None:

@@ -22,6 +22,7 @@ __all__ = [
     "external_representations",
     "gamma_3n",
     "hill_formula",
+    "unit_vibrations",
 ]
 
 
@@ -222,6 +223,36 @@ def _with_group(sym: MoleculeSymmetry, name: str) -> MoleculeSymmetry:
     )
 
 
+def _representations(
+    numbers, positions, tolerance: float, point_group: str | None
+) -> tuple[MoleculeSymmetry, Representation, Representation, Representation, Representation]:
+    """Symmetry, Γ3N, translations, rotations and vibrations of a free unit (see :func:`analyse_unit`)."""
+    sym = find_symmetry(numbers, positions, tolerance=tolerance)
+    if point_group is not None:
+        sym = _with_group(sym, point_group)
+    g3n = gamma_3n(sym)
+    trans, rot = external_representations(sym.group, linear=sym.linear)
+    return sym, g3n, trans, rot, g3n - trans - rot
+
+
+def unit_vibrations(
+    numbers, positions, *, tolerance: float = DEFAULT_TOLERANCE, point_group: str | None = None
+) -> tuple[MoleculeSymmetry, Representation]:
+    """Symmetry and internal-mode representation of a free unit, without the selection rules.
+
+    The same search and reduction as :func:`analyse_unit` (same parameters), for callers that
+    need only the group and Γvib: the activity table of the unit's group is not built.
+
+    Examples
+    --------
+    >>> sym, vib = unit_vibrations([8, 1, 1], [[0, 0, 0.12], [0, 0.76, -0.47], [0, -0.76, -0.47]])
+    >>> sym.group.name, str(vib)
+    ('C2v', '2A1 + B2')
+    """
+    sym, _, _, _, vib = _representations(numbers, positions, tolerance, point_group)
+    return sym, vib
+
+
 def analyse_unit(
     numbers,
     positions,
@@ -252,12 +283,7 @@ def analyse_unit(
     """
     from ase.data import chemical_symbols
 
-    sym = find_symmetry(numbers, positions, tolerance=tolerance)
-    if point_group is not None:
-        sym = _with_group(sym, point_group)
-    g3n = gamma_3n(sym)
-    trans, rot = external_representations(sym.group, linear=sym.linear)
-    vib = g3n - trans - rot
+    sym, g3n, trans, rot, vib = _representations(numbers, positions, tolerance, point_group)
     act = {a.label: a for a in activity_table(sym.group.name)}
     modes = tuple(
         ModeSpecies(lab, d, n, act[lab].ir, act[lab].raman, act[lab].raman_tensor)

@@ -135,10 +135,36 @@ def _kabsch_both(a: np.ndarray, b: np.ndarray) -> np.ndarray:
     return np.stack([np.where(det < 0, other, r), np.where(det > 0, other, r)], axis=1)
 
 
+def one_to_one(j: np.ndarray, target_numbers: np.ndarray, numbers: np.ndarray) -> np.ndarray:
+    """Which rows of ``j`` pair every atom with a distinct target atom of the same element.
+
+    ``j[..., i]`` is the target atom paired with atom i (its nearest, say); ``target_numbers``
+    are the targets' elements and ``numbers`` the atoms' own.  Returns a boolean per row (a
+    0-d array for a single pairing).
+
+    >>> import numpy as np
+    >>> one_to_one(np.array([[1, 0, 2], [1, 1, 2], [2, 1, 0]]), np.array([6, 6, 8]), np.array([6, 6, 8])).tolist()
+    [True, False, False]
+    """
+    srt = np.sort(j, axis=-1)
+    return np.all(target_numbers[j] == numbers, axis=-1) & np.all(srt[..., 1:] != srt[..., :-1], axis=-1)
+
+
+def _distinct(perms: np.ndarray, plus: np.ndarray) -> bool:
+    """True when no two rows of (``perms``, ``plus``) are sure to be equal: their hashes differ.
+
+    A False answer can be wrong (a collision); the caller then compares the rows whole.
+    """
+    cols = np.unique(np.linspace(0, perms.shape[1] - 1, min(perms.shape[1], len(_HASH_WEIGHTS) - 1)).astype(int))
+    with np.errstate(over="ignore"):
+        h = perms[:, cols] @ _HASH_WEIGHTS[: len(cols)] + plus * _HASH_WEIGHTS[len(cols)]
+    return len(np.unique(h)) == len(h)
+
+
 def _match(r: np.ndarray, pos: np.ndarray, numbers: np.ndarray, tree: cKDTree, tol: float) -> np.ndarray | None:
     moved = pos @ r.T
     d, j = tree.query(moved)
-    if np.max(d) > tol or np.any(numbers[j] != numbers) or len(set(j.tolist())) != len(j):
+    if np.max(d) > tol or not one_to_one(j, numbers, numbers):
         return None
     return j
 
@@ -303,19 +329,29 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
         else:  # each trio as a rotation, then as a rotoreflection
             rots = _kabsch_both(srcs, dsts).reshape(-1, 3, 3)
         # a few atoms spread over the unit first: a trial that moves one of them too far fails anyway
-        # (one atom at a time, each on the trials still standing)
-        for atom in np.unique(np.linspace(0, n - 1, min(n, 8)).astype(int)):
-            dd, _ = tree.query(rots @ pos[atom])
-            rots = rots[dd <= 3 * tol]
+        # (one atom at a time, each on the trials still standing); the tree answers "nothing within
+        # reach" for an atom farther than the looser bound from every atom, which fails the trial too
+        reach = 3 * tol * (1 + 1e-9)
+        atoms = np.unique(np.linspace(0, n - 1, min(n, 8)).astype(int))
+        images = rots @ pos[atoms].T  # (trials, 3, atoms)
+        alive = np.arange(len(rots))
+        for k in range(len(atoms)):
+            dd, _ = tree.query(images[alive, :, k], distance_upper_bound=reach)
+            alive = alive[dd <= 3 * tol]
+        rots = rots[alive]
         moved = pos[None] @ np.transpose(rots, (0, 2, 1))
-        d, j = tree.query(moved.reshape(-1, 3))
+        d, j = tree.query(moved.reshape(-1, 3), distance_upper_bound=reach)
         d, j = d.reshape(len(rots), n), j.reshape(len(rots), n)  # no trial left: (0, n), not an error
-        srt = np.sort(j, axis=1)
-        paired = np.all(numbers[j] == numbers[None], axis=1) & np.all(srt[:, 1:] != srt[:, :-1], axis=1)
-        good = paired & (d.max(axis=1) <= tol)
-        loose = paired & (d.max(axis=1) <= 3 * tol)
+        # an atom with nothing within reach has d = inf (and j = n, an element no atom has)
+        paired = one_to_one(j, np.append(numbers, -1), numbers)
+        worst = d.max(axis=1) if len(rots) else np.zeros(0)
+        good = paired & (worst <= tol)
+        loose = paired & (worst <= 3 * tol)
         proper = np.linalg.det(rots) > 0 if len(rots) else np.zeros(0, dtype=bool)
-        for t in np.flatnonzero(loose | good).tolist():
+        take = np.flatnonzero(loose)
+        if len(take) and good[take].all() and _distinct(j[take], proper[take]):
+            return rots[take], j[take]  # every pairing final as found and none repeated
+        for t in take.tolist():
             r = rots[t]
             if good[t]:
                 p_t, plus = j[t], bool(proper[t])
