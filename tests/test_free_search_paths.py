@@ -88,3 +88,36 @@ def test_vibrations_without_selection_rules_are_the_analysis(name: str, group: s
     assert np.array_equal(sym.group.frame, full.symmetry.group.frame)
     assert np.array_equal(sym.symmetric_positions, full.symmetry.symmetric_positions)
     assert str(vib) == str(full.vibrations) and vib.counts == full.vibrations.counts
+
+
+def _nearest(pos: np.ndarray) -> symmetry._Nearest:
+    gap = float(np.min(np.linalg.norm(pos[:, None] - pos[None], axis=2) + np.diag(np.full(len(pos), np.inf))))
+    return symmetry._Nearest(pos, cKDTree(pos), gap)
+
+
+@pytest.mark.parametrize("name", ["C60", "C6H6", "CH3CH2OH"])
+@pytest.mark.parametrize("tol", [0.05, 0.25, 1.0])
+def test_grid_answers_as_the_tree(name: str, tol: float) -> None:
+    pos = molecule(name).positions
+    rng = np.random.default_rng(len(pos))
+    near = pos[rng.integers(0, len(pos), size=3000)] + rng.normal(scale=tol / 3, size=(3000, 3))
+    far = rng.uniform(-30, 30, size=(600, 3))
+    points = np.concatenate([near, far, pos, pos + 1e-12])
+    grid = _nearest(pos)
+    assert grid.owner is not None
+    for bound in (tol, 3 * tol * (1 + 1e-9), np.inf):
+        d, j = grid.query(points, bound)
+        d_t, j_t = grid.tree.query(points, distance_upper_bound=bound)
+        assert np.array_equal(d, d_t) and np.array_equal(j, j_t)
+
+
+@pytest.mark.parametrize("name", ["C60", "C6H6"])
+@pytest.mark.parametrize("tol", [0.1, 0.25, 0.6])
+def test_search_with_the_grid_is_the_search_with_the_tree(name: str, tol: float, monkeypatch) -> None:
+    for numbers, pos in _copies(name, 11):
+        z, centred = _centred(numbers, pos)
+        fast = symmetry._search(z, centred, tol)
+        with monkeypatch.context() as m:
+            m.setattr(symmetry._Nearest, "SMALL", 10**9)  # every point asks the tree
+            slow = symmetry._search(z, centred, tol)
+        assert np.array_equal(fast[0], slow[0]) and np.array_equal(fast[1], slow[1])

@@ -161,6 +161,58 @@ def _distinct(perms: np.ndarray, plus: np.ndarray) -> bool:
     return len(np.unique(h)) == len(h)
 
 
+class _Nearest:
+    """Nearest atom of many points that mostly lie close to atoms: the k-d tree's answers, cheaper.
+
+    Each point is first given the atom that owns its cell of a grid (an atom owns its own cell
+    and the 26 around it; cells of a sixth of the smallest distance ``gap`` between two atoms
+    make no cell owned twice).  When the point lies closer to that atom than ``gap / 2``, that
+    atom is its nearest (any other is farther, by the triangle inequality) and the distance is
+    computed as the tree computes it; every other point asks the tree.  :meth:`query` returns
+    what ``tree.query(points, distance_upper_bound=bound)`` does.
+    """
+
+    #: fewer points than this go to the tree directly
+    SMALL = 512
+    #: the most cells a grid may have
+    CELLS = 1 << 18
+
+    def __init__(self, pos: np.ndarray, tree: cKDTree, gap: float) -> None:
+        self.pos, self.tree, self.half = pos, tree, 0.5 * gap * (1 - 1e-9)
+        self.owner: np.ndarray | None = None
+        self.cell = cell = gap / 6
+        lo, hi = pos.min(axis=0) - 2 * cell, pos.max(axis=0) + 2 * cell
+        shape = np.ceil((hi - lo) / cell).astype(np.intp) + 1
+        if cell > 0 and np.prod(shape.astype(float)) <= self.CELLS:
+            self.lo, self.shape = lo, tuple(shape.tolist())
+            near = ((pos - lo) * (1 / cell)).astype(np.intp)[:, None, :] + _NEIGHBOUR_CELLS[None]
+            owner = np.full(int(np.prod(shape)), -1, dtype=np.intp)
+            owner[np.ravel_multi_index(near.reshape(-1, 3).T, self.shape)] = np.repeat(
+                np.arange(len(pos)), len(_NEIGHBOUR_CELLS)
+            )
+            self.owner = owner
+
+    def query(self, points: np.ndarray, bound: float) -> tuple[np.ndarray, np.ndarray]:
+        """Distance to the nearest atom and its index; beyond ``bound``: infinity and ``len(pos)``."""
+        if self.owner is None or len(points) < self.SMALL:
+            return self.tree.query(points, distance_upper_bound=bound)
+        # a point off the grid is put in a border cell, which no atom owns
+        idx = ((points - self.lo) * (1 / self.cell)).astype(np.intp)
+        guess = self.owner[np.ravel_multi_index(idx.T, self.shape, mode="clip")]
+        diff = points - self.pos[guess]
+        d = np.sqrt(diff[:, 0] * diff[:, 0] + diff[:, 1] * diff[:, 1] + diff[:, 2] * diff[:, 2])
+        sure = d < min(self.half, bound * (1 - 1e-9))
+        sure &= guess >= 0
+        rest = np.flatnonzero(~sure)
+        if len(rest):
+            d[rest], guess[rest] = self.tree.query(points[rest], distance_upper_bound=bound)
+        return d, guess
+
+
+#: a cell and its 26 neighbours, as index offsets
+_NEIGHBOUR_CELLS = np.stack(np.meshgrid(*[np.arange(-1, 2)] * 3, indexing="ij"), axis=-1).reshape(-1, 3)
+
+
 def _match(r: np.ndarray, pos: np.ndarray, numbers: np.ndarray, tree: cKDTree, tol: float) -> np.ndarray | None:
     moved = pos @ r.T
     d, j = tree.query(moved)
@@ -340,11 +392,15 @@ def _search(numbers: np.ndarray, pos: np.ndarray, tol: float) -> tuple[np.ndarra
             alive = alive[dd <= 3 * tol]
         rots = rots[alive]
         moved = pos[None] @ np.transpose(rots, (0, 2, 1))
-        d, j = tree.query(moved.reshape(-1, 3), distance_upper_bound=reach)
+        if len(moved) * n < _Nearest.SMALL:
+            d, j = tree.query(moved.reshape(-1, 3), distance_upper_bound=reach)
+        else:
+            gap = np.min(dist + np.diag(np.full(n, np.inf)))
+            d, j = _Nearest(pos, tree, gap).query(moved.reshape(-1, 3), reach)
         d, j = d.reshape(len(rots), n), j.reshape(len(rots), n)  # no trial left: (0, n), not an error
         # an atom with nothing within reach has d = inf (and j = n, an element no atom has)
         paired = one_to_one(j, np.append(numbers, -1), numbers)
-        worst = d.max(axis=1) if len(rots) else np.zeros(0)
+        worst = d.max(axis=1)
         good = paired & (worst <= tol)
         loose = paired & (worst <= 3 * tol)
         proper = np.linalg.det(rots) > 0 if len(rots) else np.zeros(0, dtype=bool)
@@ -402,22 +458,27 @@ def _closed(perms: np.ndarray, dets: np.ndarray) -> bool:
 
     order = np.argsort(hashed(perms, plus))
     sorted_h = hashed(perms, plus)[order]
-    reached = np.zeros(g, dtype=bool)
-    reached[start[0]] = True
-    steps: list[np.ndarray] = []  # steps[k][s]: index of s times the k-th generator
-    while not reached.all():
-        t = int(np.argmin(reached))  # the first element not reached yet becomes a generator
+    reached = [False] * g
+    reached[int(start[0])] = True
+    count = 1
+    steps: list[list[int]] = []  # steps[k][s]: index of s times the k-th generator
+    while count < g:
+        t = reached.index(False)  # the first element not reached yet becomes a generator
         rows, signs = perms[:, perms[t]], plus == plus[t]  # row s: apply t, then s
         at = order[np.clip(np.searchsorted(sorted_h, hashed(rows, signs)), 0, g - 1)]
         if not ((perms[at] == rows).all() and (plus[at] == signs).all()):
             return False
-        steps.append(at)
-        frontier = np.flatnonzero(reached)
-        while len(frontier):
-            images = np.concatenate([step[frontier] for step in steps])
-            fresh = np.unique(images[~reached[images]])
-            reached[fresh] = True
-            frontier = fresh
+        steps.append(at.tolist())
+        # everything reached so far, times every generator, and so on
+        stack = [s for s in range(g) if reached[s]]
+        while stack:
+            s = stack.pop()
+            for step in steps:
+                x = step[s]
+                if not reached[x]:
+                    reached[x] = True
+                    count += 1
+                    stack.append(x)
     return True
 
 
