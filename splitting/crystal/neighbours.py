@@ -160,18 +160,12 @@ def periodic_pairs(
     heights = cell_heights(reduced)
     skin = cutoff / heights  # in fractions of each reduced vector
     reach = np.ceil(skin).astype(int)
-    points, owner, image = [], [], []
-    for s in itertools.product(*(range(-r, r + 1) for r in reach)):
-        shifted = fr + np.array(s, dtype=float)
-        inside = np.all((shifted > -skin) & (shifted < 1.0 + skin), axis=1)
-        idx = np.flatnonzero(inside)
-        if len(idx):
-            points.append(shifted[idx] @ reduced)
-            owner.append(idx)
-            image.append(np.tile(np.array(s, dtype=np.int64), (len(idx), 1)))
-    pts = np.concatenate(points)
-    own = np.concatenate(owner)
-    img = np.concatenate(image)
+    # every image within the skin, ordered by image (in the order of itertools.product), then atom
+    images = np.array(list(itertools.product(*(range(-r, r + 1) for r in reach))), dtype=np.int64)
+    shifted = fr[None] + images[:, None, :].astype(float)  # (images, atoms, 3)
+    which, own = np.nonzero(np.all((shifted > -skin) & (shifted < 1.0 + skin), axis=2))
+    pts = shifted[which, own] @ reduced
+    img = images[which]
     centre = cKDTree(fr @ reduced)
     found = centre.sparse_distance_matrix(cKDTree(pts), cutoff, output_type="ndarray")
     i = found["i"].astype(np.int64)

@@ -22,25 +22,25 @@ import itertools
 
 import numpy as np
 
-__all__ = ["canonical_names", "description_key", "origin_shifts"]
+__all__ = ["canonical_names", "description_key", "origin_shifts", "wyckoff_names"]
 
 #: shifts (fractions of the conventional cell) tried, on every axis
 _GRID = np.arange(8) / 8.0
 
 
-@functools.lru_cache(maxsize=256)
 def _database(hall: int) -> tuple[np.ndarray, np.ndarray]:
-    import spglib
+    from .spacegroup import _database as database
 
-    from .spacegroup import _quiet_spglib
+    return database(hall)
 
-    with _quiet_spglib():
-        db = spglib.get_symmetry_from_database(int(hall))
-    w = np.rint(np.asarray(db["rotations"], dtype=float))
-    t = np.asarray(db["translations"], dtype=float)
-    for a in (w, t):
-        a.setflags(write=False)
-    return w, t
+
+@functools.lru_cache(maxsize=256)
+def _parts(hall: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, list[int]]:
+    """Operations of the standard setting ``hall``, its centring translations and polar axes."""
+    w, t = _database(hall)
+    centring = _centring(w, t)
+    centring.setflags(write=False)
+    return w, t, centring, _free_axes(w)
 
 
 def _centring(w: np.ndarray, t: np.ndarray) -> np.ndarray:
@@ -80,9 +80,7 @@ def origin_shifts(hall: int) -> np.ndarray:
     >>> origin_shifts(501).tolist()  # Pa-3: 4a and 4b exchanged
     [[0.5, 0.5, 0.5]]
     """
-    w, t = _database(hall)
-    centring = _centring(w, t)
-    free = _free_axes(w)
+    w, _, centring, free = _parts(hall)
     grid = np.array(list(itertools.product(_GRID, repeat=3)))
     grid[:, free] = 0.0
     grid = np.unique(grid, axis=0)
@@ -112,7 +110,14 @@ def description_key(point_letters, point_keys, atom_letters, atom_numbers) -> tu
     """
     ranks = [_rank(x) for x in point_letters]
     units = tuple(sorted((*k, r) for k, r in zip(point_keys, ranks, strict=True)))
-    atoms = tuple(sorted((-int(z), _rank(x)) for z, x in zip(atom_numbers, atom_letters, strict=True)))
+    if len(atom_letters) != len(atom_numbers):
+        raise ValueError("one letter per atom is needed")
+    # the atoms' pairs (-Z, rank) sorted: heaviest first, then by letter (one sort of arrays)
+    rank_of = {x: _rank(x) for x in set(atom_letters)}
+    z = -np.asarray(atom_numbers, dtype=np.int64).reshape(-1)
+    r = np.array([rank_of[x] for x in atom_letters], dtype=np.int64)
+    order = np.lexsort((r, z))
+    atoms = tuple(zip(z[order].tolist(), r[order].tolist(), strict=True))
     return tuple(sorted(ranks)), units, atoms
 
 
@@ -132,24 +137,6 @@ def _stabiliser(w: np.ndarray, t: np.ndarray, x: np.ndarray) -> np.ndarray:
 
 #: lattice vectors tried when a moved point is brought onto the fixed subspace of a site
 _STEPS = np.array(list(itertools.product(range(-2, 3), repeat=3)), dtype=float)
-
-
-def _same_position(w: np.ndarray, t: np.ndarray, y: np.ndarray, x: np.ndarray, site: np.ndarray) -> bool:
-    """True when the point y lies in the Wyckoff position of x, whose site operations have rotation
-    parts ``site``: some image of y differs from x by a vector every site rotation leaves alone,
-    so that it has the very site group of x (International Tables, Vol. A: a Wyckoff position is
-    the set of points whose site groups are conjugate)."""
-    if len(_stabiliser(w, t, y)) != len(site):
-        return False
-    a = (np.eye(3)[None] - site).reshape(-1, 3)
-    _, sv, vt = np.linalg.svd(a)
-    rank = int(np.sum(sv > 1e-9))
-    if rank == 0:
-        return True
-    normal = vt[:rank]  # directions in which the site's rotations move a vector
-    d = np.mod(y @ np.transpose(w, (0, 2, 1)) + t - x, 1.0)
-    cands = d[:, None, :] + _STEPS[None]  # (images, steps, 3)
-    return bool(np.any(np.all(np.abs(cands @ normal.T) < 1e-6, axis=2)))
 
 
 def _same_orbit(orbit: np.ndarray, x: np.ndarray) -> bool:
@@ -174,35 +161,95 @@ def canonical_names(cell, points, point_keys, names):
     if not len(shifts):
         return names, zero
     found = _all_descriptions(cell, np.asarray(points, dtype=float).reshape(-1, 3), shifts)
-    if found is None:
+    best = _first_description(cell, found, point_keys)
+    if best is None:
         return names, zero
+    letters, shift = best
+    return _renamed(names, letters), shift
+
+
+def wyckoff_names(cell, points, point_keys) -> tuple[list[tuple[str, str]], np.ndarray]:
+    """``canonical_names(cell, points, point_keys, cell.wyckoff_of(points))``, with one spglib search
+    fewer where points hold no atom.
+
+    The search that names every description (:func:`_all_descriptions`) then holds the points as
+    they are, so it also gives their site symbols (the same in every description: the shifts map
+    the group onto itself); their letters are those of the first-ranked description.  Where that
+    search is not made, or does not name every description, the names are those of
+    :meth:`CellSymmetry.wyckoff_of` (its own search of a skeleton) as in the general route.
+    """
+    zero = np.zeros(3)
+    pts = np.asarray(points, dtype=float).reshape(-1, 3)
+    if not cell.sites_named or not len(pts):
+        return cell.wyckoff_of(pts), zero
+    sizes, on_atom = cell._orbit_sizes(pts), cell._atom_at(pts)
+    known = cell._known_names(sizes, on_atom)
+    shifts = origin_shifts(cell.info.hall_number) if cell.origin_shift is not None else np.zeros((0, 3))
+    if not len(shifts):
+        return _general_names(cell, pts, known, sizes, on_atom), zero
+    extra: dict = {}
+    found = _all_descriptions(cell, pts, shifts, sizes=sizes, on_atom=on_atom, extra=extra)
+    best = _first_description(cell, found, point_keys)
+    if best is None:
+        return _general_names(cell, pts, known, sizes, on_atom), zero
+    symbols = extra.get("symbols", {})
+    point_site = extra["point_site"]
+    if any(name is None and symbols.get(point_site[n]) is None for n, name in enumerate(known)):  # pragma: no cover
+        return _renamed(_general_names(cell, pts, known, sizes, on_atom), best[0]), best[1]
+    named = [("", symbols[point_site[n]]) if name is None else name for n, name in enumerate(known)]
+    multiplicity = cell._multiplicities(sizes)
+    return [(f"{m}{new}", site) for m, new, (_, site) in zip(multiplicity, best[0], named, strict=True)], best[1]
+
+
+def _general_names(cell, pts: np.ndarray, known: list, sizes: list[int], on_atom: np.ndarray) -> list:
+    """:meth:`CellSymmetry.wyckoff_of` of the points, from their ``known`` names where none is missing."""
+    if any(name is None for name in known):
+        return cell.wyckoff_of(pts)
+    return [(f"{m}{w}", site) for m, (w, site) in zip(cell._multiplicities(sizes), known, strict=True)]
+
+
+def _renamed(names: list[tuple[str, str]], letters) -> list[tuple[str, str]]:
+    """``names`` with their Wyckoff letters replaced (the multiplicities and site symbols kept)."""
+    out = []
+    for (w, site), new in zip(names, letters, strict=True):
+        old = w.lstrip("0123456789")
+        out.append((w[: len(w) - len(old)] + new, site))
+    return out
+
+
+def _first_description(cell, found: dict | None, point_keys) -> tuple[tuple[str, ...], np.ndarray] | None:
+    """The points' letters in the first-ranked description of ``found`` and its shift; None when
+    there is none to choose (or the description of shift 0 does not name the atoms as the cell does)."""
+    if found is None:
+        return None
     # the atoms' letters came from the search of the cell as given, whose origin is shift 0
     unshifted = found.get((0.0, 0.0, 0.0))
     if unshifted is None or unshifted[1] != tuple(cell.wyckoffs):  # pragma: no cover - a frame mix-up
-        return names, zero
-    point_letters = [w.lstrip("0123456789") for w, _ in names]
+        return None
+    numbers = np.asarray(cell.numbers)
 
     def rank(item):
         s, (pl, al) = item
-        return description_key(pl, point_keys, al, cell.numbers), s
+        return description_key(pl, point_keys, al, numbers), s
 
     best, (letters, _) = min(found.items(), key=rank)
-    out = [
-        (w[: len(w) - len(old)] + new, site) for (w, site), old, new in zip(names, point_letters, letters, strict=True)
-    ]
-    return out, np.array(best)
+    return letters, np.array(best)
 
 
-def _all_descriptions(cell, points: np.ndarray, shifts: np.ndarray) -> dict | None:
+def _all_descriptions(
+    cell, points: np.ndarray, shifts: np.ndarray, *, sizes=None, on_atom=None, extra: dict | None = None
+) -> dict | None:
     """Letters of the points and of the primitive-cell atoms in every standard description.
 
     Keys are the origin shifts, one per class of shifts giving the same letters (reduced as in
     :func:`origin_shifts`, the smallest of its class); values are (letters of the points, letters
     of the atoms).  None when no shift changes a letter, when a search does not keep exactly the
-    group in the standard setting as given, or when some description stays unnamed.
+    group in the standard setting as given, or when some description stays unnamed.  ``sizes`` and
+    ``on_atom`` are the points' :meth:`CellSymmetry._orbit_sizes` and :meth:`CellSymmetry._atom_at`
+    when known; ``extra``, if given, receives the site of each point (``"point_site"``: an index,
+    or None for the general position) and the site symbols a search found (``"symbols"``).
     """
-    w, t = _database(cell.info.hall_number)
-    centring, free = _centring(w, t), _free_axes(w)
+    w, t, centring, free = _parts(cell.info.hall_number)
     conv = np.asarray(cell.conventional, dtype=float)
     to_std = np.linalg.inv(conv)
 
@@ -225,8 +272,8 @@ def _all_descriptions(cell, points: np.ndarray, shifts: np.ndarray) -> dict | No
             sites.append((atoms_std[i], int(cell.numbers[i])))
             k = len(sites) - 1
         atom_site[i] = k
-    on_atom = cell._atom_at(points)
-    sizes = cell._orbit_sizes(points)
+    on_atom = cell._atom_at(points) if on_atom is None else on_atom
+    sizes = cell._orbit_sizes(points) if sizes is None else sizes
     point_site: list[int | None] = []  # a site, or None: the general position
     top = int(np.max(cell.numbers)) + 1000
     for n, p in enumerate(points):
@@ -243,25 +290,24 @@ def _all_descriptions(cell, points: np.ndarray, shifts: np.ndarray) -> dict | No
             sites.append((x, top + 10 + len(sites)))
             k = len(sites) - 1
         point_site.append(k)
+    if extra is not None:
+        extra["point_site"] = point_site
     if general_letter is None and any(s is None for s in point_site):  # pragma: no cover
         return None
     # shifts that carry every site into its own Wyckoff position change no letter: they form a
     # subgroup, and a description is needed for one shift per coset of it only
-    stabilisers = [_stabiliser(w, t, x) for x, _ in sites]
-
-    def lands(k: int, u: np.ndarray) -> int | None:
-        """The first site whose Wyckoff position holds site k moved by u (None if none does)."""
-        return next(
-            (j for j in range(len(sites)) if _same_position(w, t, sites[k][0] + u, sites[j][0], stabilisers[j])),
-            None,
-        )
-
-    steady = [np.zeros(3)] + [u for u in shifts if all(lands(k, u) == k for k in range(len(sites)))]
+    moves = np.vstack([np.zeros(3), shifts])  # shift 0, then the others
+    # where each site lands when moved by each shift: the first site whose Wyckoff position holds it
+    landing = _landing(w, t, [x for x, _ in sites], moves)
+    steady = [np.zeros(3)] + [u for i, u in enumerate(shifts) if np.all(landing[:, i + 1] == np.arange(len(sites)))]
     steady_r = _reduce(np.vstack(steady), centring, free)
+    cosets = dict(zip((u.tobytes() for u in moves), _cosets(moves, steady_r, centring, free), strict=True))
 
     def coset(u: np.ndarray) -> tuple:
-        reps = _reduce(u[None] + steady_r, centring, free)
-        return tuple(reps[np.lexsort(reps.T[::-1])][0].tolist())
+        key = np.asarray(u, dtype=float).tobytes()
+        if key not in cosets:
+            cosets[key] = _cosets(np.asarray(u, dtype=float)[None], steady_r, centring, free)[0]
+        return cosets[key]
 
     wanted = {coset(u) for u in (np.zeros(3), *shifts)}
     if len(wanted) == 1:  # no shift changes a letter
@@ -269,9 +315,9 @@ def _all_descriptions(cell, points: np.ndarray, shifts: np.ndarray) -> dict | No
     found: dict[tuple, tuple] = {}
     if all(kind <= top for _, kind in sites):  # every site is an atom's, named in the cell as given
         letters = [cell.wyckoffs[int(np.flatnonzero(atom_site == k)[0])] for k in range(len(sites))]
-        for u in (np.zeros(3), *shifts):  # where each moved site lands on a site, its letter is known
-            moved = [lands(k, u) for k in range(len(sites))]
-            if coset(u) in found or any(j is None for j in moved):
+        for i, u in enumerate(moves):  # where each moved site lands on a site, its letter is known
+            moved = landing[:, i].tolist()
+            if coset(u) in found or any(j < 0 for j in moved):
                 continue
             now = [letters[j] for j in moved]
             found[coset(u)] = (
@@ -280,10 +326,18 @@ def _all_descriptions(cell, points: np.ndarray, shifts: np.ndarray) -> dict | No
             )
     if wanted <= set(found):
         return found
+    symbols: dict[int, str] = {}
+    if extra is not None:
+        extra["symbols"] = symbols
+    zero_coset = coset(np.zeros(3))
 
-    def record(s_found: np.ndarray, letters: list[str]) -> None:
+    def record(s_found: np.ndarray, letters: list[str], site_symbols: list[str]) -> None:
+        c = coset(s_found)
+        if c == zero_coset:
+            for k, sym in enumerate(site_symbols):
+                symbols.setdefault(k, sym)
         found.setdefault(
-            coset(s_found),
+            c,
             (
                 tuple(general_letter if k is None else letters[k] for k in point_site),
                 tuple(general_letter if k < 0 else letters[k] for k in atom_site),
@@ -301,8 +355,8 @@ def _all_descriptions(cell, points: np.ndarray, shifts: np.ndarray) -> dict | No
     if together is None:
         return None
     if together != "overlap":
-        for s_found, letters in together:
-            record(s_found, letters)
+        for s_found, letters, site_symbols in together:
+            record(s_found, letters, site_symbols)
         return {k: found[k] for k in wanted} if wanted <= set(found) else None
     # else one search per missing description; spglib may name another description than the one
     # asked for (its origin moves by some delta), so the next shift asked for allows for that
@@ -316,10 +370,55 @@ def _all_descriptions(cell, points: np.ndarray, shifts: np.ndarray) -> dict | No
         one = _search(cell, site_x, site_kinds, [u], top, state)
         if one is None or one == "overlap":
             return None
-        s_found, letters = one[0]
+        s_found, letters, site_symbols = one[0]
         delta = s_found - u
-        record(s_found, letters)
+        record(s_found, letters, site_symbols)
     return {k: found[k] for k in wanted} if wanted <= set(found) else None
+
+
+def _landing(w: np.ndarray, t: np.ndarray, sites: list[np.ndarray], moves: np.ndarray) -> np.ndarray:
+    """For each site (standard coordinates) and each move u: the first site j whose Wyckoff position
+    holds the site moved by u, or -1 (array of shape (sites, moves)).
+
+    A point y lies in the Wyckoff position of x when its site group has the order of x's and some
+    image of y differs from x by a vector every site rotation of x leaves alone, so that it has the
+    very site group of x (International Tables, Vol. A: a Wyckoff position is the set of points
+    whose site groups are conjugate).
+    """
+    out = np.full((len(sites), len(moves)), -1, dtype=int)
+    tests = []
+    for x in sites:
+        site = _stabiliser(w, t, x)
+        a = (np.eye(3)[None] - site).reshape(-1, 3)
+        _, sv, vt = np.linalg.svd(a)
+        rank = int(np.sum(sv > 1e-9))
+        tests.append((len(site), vt[:rank] if rank else None))
+    for k, x in enumerate(sites):
+        y = x + moves  # (moves, 3)
+        images = np.einsum("uj,nij->uni", y, w) + t  # (moves, operations, 3)
+        d = images - y[:, None]
+        size = np.count_nonzero(np.all(np.abs(d - np.round(d)) < 1e-6, axis=2), axis=1)
+        todo = np.ones(len(moves), dtype=bool)
+        for j, (order, normal) in enumerate(tests):
+            hit = todo & (size == order)
+            if normal is not None and hit.any():
+                idx = np.flatnonzero(hit)
+                cands = np.mod(images[idx] - sites[j], 1.0)[:, :, None, :] + _STEPS[None, None]
+                hit[idx] = np.any(np.all(np.abs(cands @ normal.T) < 1e-6, axis=3), axis=(1, 2))
+            out[k, hit] = j
+            todo &= ~hit
+            if not todo.any():
+                break
+    return out
+
+
+def _cosets(us: np.ndarray, steady: np.ndarray, centring: np.ndarray, free: list[int]) -> list[tuple]:
+    """The class of each shift u modulo the shifts ``steady`` (reduced), the lattice, the centring and
+    the polar directions: the smallest reduced u + s (first coordinate first), as a tuple."""
+    us = np.asarray(us, dtype=float).reshape(-1, 3)
+    reps = _reduce((us[:, None, :] + steady[None]).reshape(-1, 3), centring, free).reshape(len(us), len(steady), 3)
+    keys = np.rint(reps * 8) @ np.array([64.0, 8.0, 1.0])  # reduced shifts are multiples of 1/8
+    return [tuple(r) for r in reps[np.arange(len(us)), np.argmin(keys, axis=1)].tolist()]
 
 
 #: kind offset between the copies of the sites searched together
@@ -336,7 +435,7 @@ def _search(cell, sites: list[np.ndarray], kinds: list[int], us: list[np.ndarray
     the conventional standard cell instead (remembered in ``state``).  spglib gives standard
     coordinates x' = P f + p'; with P as the cell's, the sites moved by u carry the letters of
     the description shifted by s = u + p' - p (p the origin shift of the basis searched).
-    Returns a list of (s, letters), ``"overlap"`` when moved sites of two copies coincide, None
+    Returns a list of (s, letters, site symbols), ``"overlap"`` when moved sites of two copies coincide, None
     when the search does not keep exactly the cell's group.
     """
     if not state.get("conventional"):
@@ -388,9 +487,10 @@ def _search_on(basis, sites, kinds, us: list[np.ndarray], top: int, hall: int):
     moved = np.asarray(ds.origin_shift, dtype=float) - p
     out, at = [], 3 * ops
     for u, orbits in zip(us, copies, strict=True):
-        letters = []
+        letters, symbols = [], []
         for o in orbits:
             letters.append(str(ds.wyckoffs[at]))
+            symbols.append(str(ds.site_symmetry_symbols[at]))
             at += len(o)
-        out.append((u + moved, letters))
+        out.append((u + moved, letters, symbols))
     return out

@@ -24,7 +24,7 @@ from ..molecule.analysis import hill_formula
 from ..molecule.symmetry import DEFAULT_TOLERANCE
 from .freeunits import FreeUnitCache
 from .limits import DEFAULT_MAX_ATOMS, check_atom_count
-from .origin import canonical_names
+from .origin import wyckoff_names
 from .read import load_structure
 from .results import Correlation, CrystalPrediction, FactorSpecies, UnitOrbit
 from .spacegroup import DEFAULT_CELL_TOLERANCE, CellSymmetry, analyse_cell
@@ -348,10 +348,9 @@ def _predict(
     fg = factor.oriented
     orbits = _orbits(cell, units)
     centres = [units[orbit[0][0]].centre for orbit in orbits]
-    wyckoffs = cell.wyckoff_of(centres, tolerance=opts.tolerance)
     # letters of the first-ranked standard description (the same whatever origin the file uses)
     ranked_by = [(-len(units[orbit[0][0]].atoms), units[orbit[0][0]].formula) for orbit in orbits]
-    wyckoffs, origin = canonical_names(cell, centres, ranked_by, wyckoffs)
+    wyckoffs, origin = wyckoff_names(cell, centres, ranked_by)
     given = _given_free_groups(opts, units)
     if free_cache is None:
         free_cache = FreeUnitCache(opts.unit_tolerance, given)

@@ -164,13 +164,10 @@ def _halls_of(number: int) -> tuple[int, ...]:
 
 @cache
 def _operations(hall: int) -> tuple[np.ndarray, np.ndarray]:
-    import spglib
+    from .spacegroup import _database
 
-    from .spacegroup import _quiet_spglib
-
-    with _quiet_spglib():
-        db = spglib.get_symmetry_from_database(hall)
-    return np.rint(db["rotations"]).astype(int), np.asarray(db["translations"], dtype=float)
+    w, t = _database(hall)
+    return w.astype(int), t
 
 
 def _keys(w: np.ndarray, t: np.ndarray) -> np.ndarray:

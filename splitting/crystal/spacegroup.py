@@ -67,6 +67,21 @@ def spglib_dataset(lattice: np.ndarray, frac: np.ndarray, numbers: np.ndarray, t
     return ds
 
 
+@functools.lru_cache(maxsize=256)
+def _database(hall: int) -> tuple[np.ndarray, np.ndarray]:
+    """Rotation parts (float, whole numbers) and translations of the operations of one Hall
+    setting, from spglib's tables (read once per setting and process; read-only)."""
+    import spglib
+
+    with _quiet_spglib():
+        db = spglib.get_symmetry_from_database(int(hall))
+    w = np.rint(np.asarray(db["rotations"], dtype=float))
+    t = np.asarray(db["translations"], dtype=float)
+    for a in (w, t):
+        a.setflags(write=False)
+    return w, t
+
+
 def crystal_system(number: int) -> str:
     """Crystal system of a space-group number (International Tables, Vol. A)."""
     for upper, name in (
@@ -329,28 +344,35 @@ class CellSymmetry:
         if not self.sites_named:
             return [("?", "?") for _ in points]
         pts = np.asarray(points, dtype=float).reshape(-1, 3)
-        ratio = abs(np.linalg.det(self.conventional) / np.linalg.det(self.lattice))
         sizes = self._orbit_sizes(pts)
         on_atom = self._atom_at(pts)
-        # an atom on the general position names every point on it (no look-up needed)
-        general = next((k for k, sym in enumerate(self.site_symbols) if sym.replace(".", "") == "1"), None)
-        names: list[tuple[str, str] | None] = []
-        missing = []
-        for n in range(len(pts)):
-            i = int(on_atom[n])
-            if i < 0 and general is not None and sizes[n] == len(self.rotations):
-                i = general
-            if i >= 0:
-                names.append((self.wyckoffs[i], self.site_symbols[i]))
-            else:
-                names.append(None)
-                missing.append(n)
+        names = self._known_names(sizes, on_atom)
+        missing = [n for n, name in enumerate(names) if name is None]
         if missing:  # one search names the missing points and, from the same search, the atoms
             atom_names, found = _skeleton_names(self, pts[missing])
             names = [atom_names[int(on_atom[n])] if on_atom[n] >= 0 else name for n, name in enumerate(names)]
             for n, name in zip(missing, found, strict=True):
                 names[n] = name
-        return [(f"{round(size * ratio)}{w}", site) for size, (w, site) in zip(sizes, names, strict=True)]
+        return [(f"{m}{w}", site) for m, (w, site) in zip(self._multiplicities(sizes), names, strict=True)]
+
+    def _known_names(self, sizes: list[int], on_atom: np.ndarray) -> list[tuple[str, str] | None]:
+        """(Wyckoff letter, site symbol) of points on an atom or, when some atom is there, on the
+        general position (of :meth:`_orbit_sizes` ``sizes`` and :meth:`_atom_at` ``on_atom``);
+        None for the points that need a search."""
+        # an atom on the general position names every point on it (no look-up needed)
+        general = next((k for k, sym in enumerate(self.site_symbols) if sym.replace(".", "") == "1"), None)
+        names: list[tuple[str, str] | None] = []
+        for n in range(len(sizes)):
+            i = int(on_atom[n])
+            if i < 0 and general is not None and sizes[n] == len(self.rotations):
+                i = general
+            names.append((self.wyckoffs[i], self.site_symbols[i]) if i >= 0 else None)
+        return names
+
+    def _multiplicities(self, sizes: list[int]) -> list[int]:
+        """Multiplicities in the conventional cell of orbits of ``sizes`` points in the primitive cell."""
+        ratio = abs(np.linalg.det(self.conventional) / np.linalg.det(self.lattice))
+        return [round(size * ratio) for size in sizes]
 
     def _orbit_sizes(self, pts: np.ndarray) -> list[int]:
         """Number of distinct images of each point, as :meth:`orbit_of` counts them (many points at once)."""
@@ -364,19 +386,34 @@ class CellSymmetry:
             d = f[:, :, None] - f[:, None]
             d -= np.round(d)
             same = np.linalg.norm(d @ self.lattice, axis=3) < 1e-2  # (points, ops, ops)
-            kept = np.zeros((len(f), m), dtype=bool)
-            for k in range(m):
-                kept[:, k] = ~np.any(same[:, k] & kept, axis=1)
+            # an image is kept unless an earlier kept one is the same point: where every image the same
+            # as some earlier one is the same as an earlier first-of-its-kind, those are the kept ones
+            earlier = np.tril(same, -1)
+            kept = ~np.any(earlier, axis=2)
+            if not np.all(kept | np.any(earlier & kept[:, None, :], axis=2)):  # pragma: no cover - not transitive
+                kept = np.zeros((len(f), m), dtype=bool)
+                for k in range(m):
+                    kept[:, k] = ~np.any(same[:, k] & kept, axis=1)
             out.extend(kept.sum(axis=1).tolist())
         return out
 
     def _atom_at(self, pts: np.ndarray, *, tol: float = 0.05) -> np.ndarray:
-        """Index of the primitive-cell atom within ``tol`` angstrom of each point (modulo the lattice), or -1."""
+        """Index of the primitive-cell atom within ``tol`` angstrom of each point (modulo the lattice), or -1
+        (the nearest, the first of equals)."""
         from scipy.spatial import cKDTree
 
         inv = np.linalg.inv(self.lattice)
         out = np.full(len(pts), -1, dtype=int)
         if not len(pts) or not len(self.frac):
+            return out
+        if len(pts) * len(self.frac) <= 20_000:  # few pairs: every atom, no tree
+            for n in range(len(pts)):
+                d = self.frac - pts[n] @ inv
+                d -= np.round(d)
+                dist = np.linalg.norm(d @ self.lattice, axis=1)
+                k = int(np.argmin(dist))
+                if dist[k] < tol:
+                    out[n] = k
             return out
 
         def box(f: np.ndarray) -> np.ndarray:
@@ -528,17 +565,34 @@ def _general_orbits(
     ``lattice``), each point at least ``apart`` angstrom from every other and from ``fixed`` (the
     points of ``fixed`` may lie closer to one another); None if 30 trials do not find them."""
     rng = np.random.default_rng(seed)
-    points: list[np.ndarray] = []
-    for _ in range(30):
-        if len(points) == 3:
-            break
-        orbit = rng.random(3) @ np.transpose(w, (0, 2, 1)) + t
+    wt = np.transpose(w, (0, 2, 1))
+    draws = rng.random((30, 3))  # the numbers 30 draws of 3 would give, in the same order
+
+    def orbit_of(k: int) -> np.ndarray:
+        orbit = draws[k] @ wt + t
         orbit -= np.floor(orbit)
-        others = np.vstack([orbit, *points, fixed])
+        return orbit
+
+    def apart_from(orbit: np.ndarray, others: np.ndarray) -> np.ndarray:
+        """Distances of the orbit's points to others, the orbit's own points first (self-pairs large)."""
         d = orbit[:, None] - others[None]
         d -= np.round(d)
-        dist = np.linalg.norm(d @ lattice, axis=2) + np.eye(len(orbit), len(others)) * 1e3
-        if dist.min() > apart:
+        return np.linalg.norm(d @ lattice, axis=2) + np.eye(len(orbit), len(others)) * 1e3
+
+    # the first three draws at once: where all three are apart, each is taken as in the loop below
+    first = [orbit_of(k) for k in range(3)]
+    n = len(first[0])
+    dist = apart_from(np.vstack(first), np.vstack([*first, fixed]))
+    # draw k against itself, the draws before it and the fixed points
+    rows = [dist[k * n : (k + 1) * n] for k in range(3)]
+    if all(min(r[:, : (k + 1) * n].min(), r[:, 3 * n :].min(initial=np.inf)) > apart for k, r in enumerate(rows)):
+        return first
+    points: list[np.ndarray] = []
+    for k in range(30):
+        if len(points) == 3:
+            break
+        orbit = orbit_of(k)
+        if apart_from(orbit, np.vstack([orbit, *points, fixed])).min() > apart:
             points.append(orbit)
     return points if len(points) == 3 else None
 
@@ -701,8 +755,6 @@ def analyse_cell(
 
 def _cell_of_dataset(ds, lattice, frac, numbers, tolerance: float, others, standard_axes: bool) -> CellSymmetry:
     """The idealised primitive cell and factor-group operations of one spglib dataset."""
-    import spglib
-
     p_mat = np.asarray(ds.transformation_matrix, dtype=float)
     shift = np.asarray(ds.origin_shift, dtype=float)
     turn = np.asarray(ds.std_rotation_matrix, dtype=float)
@@ -734,10 +786,7 @@ def _cell_of_dataset(ds, lattice, frac, numbers, tolerance: float, others, stand
     d -= np.round(d)
     largest_shift = float(np.linalg.norm(d @ plat, axis=1).max()) if len(d) else 0.0
     # operations: the exact ones of the standard setting (one per rotation part) in the input frame
-    with _quiet_spglib():
-        db = spglib.get_symmetry_from_database(int(ds.hall_number))
-    w_std = np.asarray(db["rotations"], dtype=float)
-    t_std = np.asarray(db["translations"], dtype=float)
+    w_std, t_std = _database(int(ds.hall_number))
     keep: dict[bytes, int] = {}
     for k, w in enumerate(np.rint(w_std).astype(int)):
         keep.setdefault(w.tobytes(), k)
