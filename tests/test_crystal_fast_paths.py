@@ -239,3 +239,28 @@ def test_description_key_sorts_the_atoms() -> None:
     assert atoms == tuple(sorted((-int(z), origin._rank(x)) for z, x in zip(numbers, letters, strict=True)))
     with pytest.raises(ValueError):
         origin.description_key([], [], letters[:3], numbers[:2])
+
+
+def _origin_matches_plain(w_f, t_f, target) -> bool:
+    """Every origin of the grid, one at a time, in floating point."""
+    from splitting.crystal.setting import _ORIGINS, _keys
+
+    return any(np.array_equal(_keys(w_f, t_f + (w_f - np.eye(3)) @ o), target) for o in _ORIGINS)
+
+
+@pytest.mark.parametrize("number", [14, 62, 142, 167, 205, 227])
+def test_origin_matching_of_settings(number: int) -> None:
+    """The operations of every setting of a type, moved to other origins, against every setting's keys."""
+    from splitting.crystal.setting import _any_origin_matches, _halls_of, _keys, _operations
+
+    rng = np.random.default_rng(number)
+    halls = _halls_of(number)
+    for h in rng.choice(halls, size=min(4, len(halls)), replace=False):
+        w, t = _operations(int(h))
+        for o in (np.zeros(3), rng.integers(0, 8, 3) / 8, rng.integers(0, 16, 3) / 16):
+            t_f = t + (w - np.eye(3)) @ o
+            for h2 in rng.choice(halls, size=min(2, len(halls)), replace=False):
+                target = _keys(*_operations(int(h2)))
+                if len(target) != len(_keys(w, t_f)):  # told apart before the origins are tried
+                    continue
+                assert _any_origin_matches(w, t_f, target) == _origin_matches_plain(w, t_f, target), (h, o, h2)

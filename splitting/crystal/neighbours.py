@@ -11,7 +11,6 @@ number of image points stays proportional to the atoms), go into two k-d trees
 
 from __future__ import annotations
 
-import itertools
 from dataclasses import dataclass
 
 import numpy as np
@@ -160,12 +159,18 @@ def periodic_pairs(
     heights = cell_heights(reduced)
     skin = cutoff / heights  # in fractions of each reduced vector
     reach = np.ceil(skin).astype(int)
-    # every image within the skin, ordered by image (in the order of itertools.product), then atom
-    images = np.array(list(itertools.product(*(range(-r, r + 1) for r in reach))), dtype=np.int64)
-    shifted = fr[None] + images[:, None, :].astype(float)  # (images, atoms, 3)
-    which, own = np.nonzero(np.all((shifted > -skin) & (shifted < 1.0 + skin), axis=2))
-    pts = shifted[which, own] @ reduced
+    # every image within the skin, ordered by image (the last axis fastest), then atom;
+    # an image is inside when it is along each axis (one test per axis and step)
+    steps = [np.arange(-r, r + 1) for r in reach]
+    along = []
+    for axis, step in enumerate(steps):
+        x = fr[:, axis][None] + step[:, None].astype(float)  # (steps, atoms)
+        along.append((x > -skin[axis]) & (x < 1.0 + skin[axis]))
+    inside = along[0][:, None, None] & along[1][None, :, None] & along[2][None, None, :]
+    which, own = np.nonzero(inside.reshape(-1, n))
+    images = np.stack(np.meshgrid(*steps, indexing="ij"), axis=-1).reshape(-1, 3).astype(np.int64)
     img = images[which]
+    pts = (fr[own] + img.astype(float)) @ reduced
     centre = cKDTree(fr @ reduced)
     found = centre.sparse_distance_matrix(cKDTree(pts), cutoff, output_type="ndarray")
     i = found["i"].astype(np.int64)
@@ -176,6 +181,6 @@ def periodic_pairs(
     keep = (i != j) | np.any(s_red != 0, axis=1)
     keep &= d < cutoff
     i, j, d, s_red = i[keep], j[keep], d[keep], s_red[keep]
-    shift = np.rint(s_red @ op).astype(np.int64)
+    shift = np.rint(s_red if np.array_equal(op, np.eye(3)) else s_red @ op).astype(np.int64)
     order = np.lexsort((d, j, i))
     return Pairs(i[order], j[order], shift[order], d[order])

@@ -46,7 +46,12 @@ def _parts(hall: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, list[int]]:
 def _centring(w: np.ndarray, t: np.ndarray) -> np.ndarray:
     """Centring translations (including 0) of a conventional setting's operations."""
     c = np.mod(t[np.all(w.reshape(len(w), 9) == np.eye(3).reshape(9), axis=1)], 1.0)
-    return np.unique(np.round(c, 9) % 1.0, axis=0)
+    return _unique_rows(np.round(c, 9) % 1.0)
+
+
+def _unique_rows(a: np.ndarray) -> np.ndarray:
+    """``np.unique(a, axis=0)`` of a few rows of three numbers (distinct rows in increasing order)."""
+    return np.array(sorted(set(map(tuple, a.tolist()))), dtype=float).reshape(-1, 3)
 
 
 def _free_axes(w: np.ndarray) -> list[int]:
@@ -81,13 +86,19 @@ def origin_shifts(hall: int) -> np.ndarray:
     [[0.5, 0.5, 0.5]]
     """
     w, _, centring, free = _parts(hall)
-    grid = np.array(list(itertools.product(_GRID, repeat=3)))
-    grid[:, free] = 0.0
-    grid = np.unique(grid, axis=0)
-    moved = np.einsum("nij,gj->gni", w - np.eye(3), grid)  # (shifts, operations, 3)
-    gap = moved[:, :, None, :] - centring[None, None]  # must be integer for some centring
-    ok = np.all(np.any(np.all(np.abs(gap - np.round(gap)) < 1e-9, axis=3), axis=2), axis=1)
-    found = np.unique(_reduce(grid[ok], centring, free), axis=0)
+    # the grid with 0 along polar axes, rows in increasing order
+    axes = [np.zeros(1) if i in free else _GRID for i in range(3)]
+    grid = np.stack(np.meshgrid(*axes, indexing="ij"), axis=-1).reshape(-1, 3)
+
+    def fits(shifts: np.ndarray, ops: np.ndarray) -> np.ndarray:
+        moved = np.einsum("nij,gj->gni", ops - np.eye(3), shifts)  # (shifts, operations, 3)
+        gap = moved[:, :, None, :] - centring[None, None]  # must be integer for some centring
+        return np.all(np.any(np.all(np.abs(gap - np.round(gap)) < 1e-9, axis=3), axis=2), axis=1)
+
+    # a few operations rule out most of the grid; the rest are checked on what is left
+    ok = np.flatnonzero(fits(grid, w[:4]))
+    ok = ok[fits(grid[ok], w[4:])]
+    found = _unique_rows(_reduce(grid[ok], centring, free))
     found = found[np.any(found != 0, axis=1)]
     found.setflags(write=False)
     return found

@@ -250,12 +250,15 @@ class _Site:
     restrictions: dict[str, Representation]
 
     @classmethod
-    def of(cls, cell: CellSymmetry, factor: FactorGroup, site_idx: list[int], formula: str, axes_text) -> _Site:
-        site = identify_in_crystal(cell.rotations[site_idx], cell.reference_axes, tol=1e-3)
-        # site-group element order -> cell operations
-        cell_ops = [
-            site_idx[int(np.argmin([np.abs(cell.rotations[k] - op).max() for k in site_idx]))] for op in site.operations
-        ]
+    def of(
+        cls, cell: CellSymmetry, factor: FactorGroup, site_idx: list[int], formula: str, axes_text, reference=None
+    ) -> _Site:
+        """The site of the cell operations ``site_idx``; ``reference`` is ``cell.reference_axes`` when known."""
+        reference = cell.reference_axes if reference is None else reference
+        site = identify_in_crystal(cell.rotations[site_idx], reference, tol=1e-3)
+        # site-group element order -> cell operations (the nearest, the first of equals)
+        gap = np.abs(cell.rotations[site_idx][None] - np.asarray(site.operations)[:, None]).max(axis=(2, 3))
+        cell_ops = [site_idx[int(k)] for k in np.argmin(gap, axis=1)]
         vec = np.trace(site.operations, axis1=1, axis2=2)
         trans = induce(factor, cell_ops, vec, what=f"translations of {formula}")
         lib_chars = np.linalg.det(site.operations) * vec
@@ -344,7 +347,8 @@ def _given_free_groups(opts: Options, units: tuple[Unit, ...]) -> dict[str, str]
 def _predict(
     cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source: str, free_cache: FreeUnitCache | None = None
 ) -> CrystalPrediction:
-    factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
+    reference = cell.reference_axes
+    factor = FactorGroup.from_rotations(cell.rotations, reference)
     fg = factor.oriented
     orbits = _orbits(cell, units)
     centres = [units[orbit[0][0]].centre for orbit in orbits]
@@ -374,7 +378,7 @@ def _predict(
         key = tuple(site_idx)
         st = sites.get(key)
         if st is None:
-            st = sites[key] = _Site.of(cell, factor, site_idx, u0.formula, axes_text)
+            st = sites[key] = _Site.of(cell, factor, site_idx, u0.formula, axes_text, reference)
         site, site_cell = st.group, st.cell_ops
         trans = st.translations
         lib = zero

@@ -22,6 +22,7 @@ __all__ = ["Setting", "file_settings", "setting_of", "short_symbol"]
 _SITE_PART = re.compile(r"-?[1-6](?:/m)?|m|\.")
 #: origins tried when comparing a setting's operations (multiples of 1/8 of the axes)
 _ORIGINS = np.array(np.meshgrid(*[np.arange(8) / 8] * 3, indexing="ij")).reshape(3, -1).T
+_ORIGINS_48 = np.rint(_ORIGINS * 48).astype(np.int64)
 
 
 @dataclass(frozen=True)
@@ -192,30 +193,47 @@ def _matching(hall: int, p_key: bytes) -> tuple[int, ...]:
     number = int(_type(hall).number)
     found = []
     own = _keys(w_f, t_f)
+    own_rotations = np.unique(own // 48**3)
     for h in _halls_of(number):
-        w_h, t_h = _operations(h)
-        target = _keys(w_h, t_h)
-        if len(target) != len(own) or not np.array_equal(np.unique(target // 48**3), np.unique(own // 48**3)):
+        target, rotations = _setting_keys(h)
+        if len(target) != len(own) or not np.array_equal(rotations, own_rotations):
             continue
-        if _any_origin_matches(w_f, t_f, target):
+        if _any_origin_matches(w_f, t_f, target, distinct=len(own) == len(w_f)):
             found.append(h)
     return tuple(found)
 
 
-def _any_origin_matches(w_f: np.ndarray, t_f: np.ndarray, target: np.ndarray) -> bool:
+@cache
+def _setting_keys(hall: int) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`_keys` of a tabulated setting's operations, and the keys of their rotation parts."""
+    target = _keys(*_operations(hall))
+    return target, np.unique(target // 48**3)
+
+
+def _any_origin_matches(w_f: np.ndarray, t_f: np.ndarray, target: np.ndarray, *, distinct: bool | None = None) -> bool:
     """True when the operations, with the origin moved to one of :data:`_ORIGINS`, have the keys ``target``.
 
     All origins are tried at once; operations that coincide modulo the lattice (never in a
-    tabulated setting) fall back to one origin at a time.
+    tabulated setting) fall back to one origin at a time.  ``distinct`` tells, when known, whether
+    the operations are distinct modulo the lattice.
     """
-    if len(_keys(w_f, t_f)) != len(w_f):
+    if distinct is None:
+        distinct = len(_keys(w_f, t_f)) == len(w_f)
+    if not distinct:
         return any(np.array_equal(_keys(w_f, t_f + (w_f - np.eye(3)) @ o), target) for o in _ORIGINS)
-    origins = np.asarray(_ORIGINS, dtype=float).reshape(-1, 3)
-    shifted = t_f[None] + np.einsum("nij,oj->oni", w_f - np.eye(3), origins)  # (origins, ops, 3)
-    tt = np.rint(np.mod(shifted, 1.0) * 48).astype(np.int64) % 48
+    # in 1/48 of the axes (the caller checked that the translations are whole there), exactly
+    t48 = np.rint(np.asarray(t_f, dtype=float) * 48).astype(np.int64)
+    w48 = np.asarray(w_f, dtype=np.int64) - np.eye(3, dtype=np.int64)
     rr = (w_f.reshape(len(w_f), 9).astype(np.int64) + 1) @ (3 ** np.arange(9, dtype=np.int64))
-    keys = np.sort(rr[None] * 48**3 + tt @ np.array([48 * 48, 48, 1], dtype=np.int64), axis=1)
-    return bool(np.any(np.all(keys == target[None], axis=1)))
+
+    def keys(origins: np.ndarray, ops: slice) -> np.ndarray:
+        tt = (t48[ops][None] + np.einsum("nij,oj->oni", w48[ops], origins)) % 48  # (origins, ops, 3)
+        return rr[ops][None] * 48**3 + tt @ np.array([48 * 48, 48, 1], dtype=np.int64)
+
+    # origins where a few operations already have keys of the target, then all operations there
+    origins = _ORIGINS_48[np.all(np.isin(keys(_ORIGINS_48, slice(0, 4)), target), axis=1)]
+    found = np.sort(keys(origins, slice(None)), axis=1)
+    return bool(np.any(np.all(found == target[None], axis=1)))
 
 
 def file_settings(hall: int, transformation: np.ndarray) -> tuple[int, ...]:

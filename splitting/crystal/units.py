@@ -223,7 +223,9 @@ def _components(n: int, i: np.ndarray, j: np.ndarray, shifts: np.ndarray) -> tup
 
     Offsets are carried outwards from the first atom of each piece, one bond layer per step
     (vectorised over all bonds); a piece whose bonds disagree with the offsets joins its own
-    periodic image.
+    periodic image.  Where several bonds reach an atom in the same step any of them may give
+    its offset: the offsets form a spanning tree either way, and a piece that is not periodic
+    has one set of offsets only.
     """
     if n == 0:
         return np.zeros(0, dtype=int), np.zeros((0, 3), dtype=np.int64), np.zeros(0, dtype=bool)
@@ -240,8 +242,8 @@ def _components(n: int, i: np.ndarray, j: np.ndarray, shifts: np.ndarray) -> tup
         step = known[i] & ~known[j]
         if not step.any():
             break
-        targets, pick = np.unique(j[step], return_index=True)
-        offset[targets] = offset[i[step][pick]] + shifts[step][pick]
+        targets = j[step]
+        offset[targets] = offset[i[step]] + shifts[step]
         known[targets] = True
     periodic = np.zeros(count, dtype=bool)
     clash = np.any(offset[j] != offset[i] + shifts, axis=1)
