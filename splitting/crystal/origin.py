@@ -366,6 +366,9 @@ def _all_descriptions(
     if together is None:
         return None
     if together != "overlap":
+        moved = [np.asarray(s_found, dtype=float) for s_found, _, _ in together]
+        for u, c in zip(moved, _cosets(np.array(moved), steady_r, centring, free), strict=True):
+            cosets.setdefault(u.tobytes(), c)  # the classes of all found shifts at once
         for s_found, letters, site_symbols in together:
             record(s_found, letters, site_symbols)
         return {k: found[k] for k in wanted} if wanted <= set(found) else None
@@ -493,7 +496,8 @@ def _search_on(basis, sites, kinds, us: list[np.ndarray], top: int, hall: int):
     ds = spglib_dataset(lattice, np.vstack([*skeleton, points]), species, _EXACT)
     if int(ds.hall_number) != hall or len(ds.rotations) != ops:
         return None
-    if not np.allclose(ds.transformation_matrix, p_ref, atol=1e-6):
+    gap = np.abs(np.asarray(ds.transformation_matrix, dtype=float) - p_ref)
+    if not np.all(gap <= 1e-6 + 1e-5 * np.abs(p_ref)):  # np.allclose(..., atol=1e-6), finite numbers
         return "basis"
     moved = np.asarray(ds.origin_shift, dtype=float) - p
     out, at = [], 3 * ops

@@ -263,13 +263,9 @@ class _Site:
         trans = induce(factor, cell_ops, vec, what=f"translations of {formula}")
         lib_chars = np.linalg.det(site.operations) * vec
         lib = induce(factor, cell_ops, lib_chars, what=f"librations of {formula}")
+        chars = site.group.characters_at_operations()
         to_factor = tuple(
-            (
-                sp.label,
-                induce(
-                    factor, cell_ops, site.group.characters_at_operations()[k], what=f"{sp.label} of site {site.name}"
-                ),
-            )
+            (sp.label, induce(factor, cell_ops, chars[k], what=f"{sp.label} of site {site.name}"))
             for k, sp in enumerate(site.group.species)
         )
         return cls(site, cell_ops, axes_text(site), trans, lib, to_factor, {})

@@ -231,7 +231,9 @@ def _any_origin_matches(w_f: np.ndarray, t_f: np.ndarray, target: np.ndarray, *,
         return rr[ops][None] * 48**3 + tt @ np.array([48 * 48, 48, 1], dtype=np.int64)
 
     # origins where a few operations already have keys of the target, then all operations there
-    origins = _ORIGINS_48[np.all(np.isin(keys(_ORIGINS_48, slice(0, 4)), target), axis=1)]
+    first = keys(_ORIGINS_48, slice(0, 4))
+    at = np.minimum(np.searchsorted(target, first), len(target) - 1)  # ``target`` is sorted
+    origins = _ORIGINS_48[np.all(target[at] == first, axis=1)]
     found = np.sort(keys(origins, slice(None)), axis=1)
     return bool(np.any(np.all(found == target[None], axis=1)))
 
