@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import functools
 import itertools
+import operator
 
 import numpy as np
 
@@ -104,6 +105,13 @@ def origin_shifts(hall: int) -> np.ndarray:
     return found
 
 
+def _pick(items, keys: list) -> tuple:
+    """``tuple(items[k] for k in keys)`` (one call for many keys)."""
+    if len(keys) < 2:
+        return tuple(items[k] for k in keys)
+    return operator.itemgetter(*keys)(items)
+
+
 def _rank(letter: str) -> int:
     """Order of a Wyckoff letter: a, b, ... z, then spglib's A for the 27th."""
     return ord(letter) - ord("a") if letter.islower() else 26 + ord(letter) - ord("A")
@@ -126,7 +134,7 @@ def description_key(point_letters, point_keys, atom_letters, atom_numbers) -> tu
     # the atoms' pairs (-Z, rank) sorted: heaviest first, then by letter (one sort of arrays)
     rank_of = {x: _rank(x) for x in set(atom_letters)}
     z = -np.asarray(atom_numbers, dtype=np.int64).reshape(-1)
-    r = np.array([rank_of[x] for x in atom_letters], dtype=np.int64)
+    r = np.array(_pick(rank_of, atom_letters), dtype=np.int64)
     order = np.lexsort((r, z))
     atoms = tuple(zip(z[order].tolist(), r[order].tolist(), strict=True))
     return tuple(sorted(ranks)), units, atoms
@@ -283,6 +291,7 @@ def _all_descriptions(
             sites.append((atoms_std[i], int(cell.numbers[i])))
             k = len(sites) - 1
         atom_site[i] = k
+    atom_index = (atom_site + 1).tolist()  # the general position first, then the sites
     on_atom = cell._atom_at(points) if on_atom is None else on_atom
     sizes = cell._orbit_sizes(points) if sizes is None else sizes
     point_site: list[int | None] = []  # a site, or None: the general position
@@ -333,7 +342,7 @@ def _all_descriptions(
             now = [letters[j] for j in moved]
             found[coset(u)] = (
                 tuple(general_letter if k is None else now[k] for k in point_site),
-                tuple(general_letter if k < 0 else now[k] for k in atom_site),
+                _pick([general_letter, *now], atom_index),
             )
     if wanted <= set(found):
         return found
@@ -351,7 +360,7 @@ def _all_descriptions(
             c,
             (
                 tuple(general_letter if k is None else letters[k] for k in point_site),
-                tuple(general_letter if k < 0 else letters[k] for k in atom_site),
+                _pick([general_letter, *letters], atom_index),
             ),
         )
 
