@@ -21,16 +21,18 @@ fastest of each, their ratio, and the median of the passes' ratios.  Run with::
 or, without pytest, ``.venv/bin/python benchmarks/bench_scaling.py [max_atoms]``.
 The goal is predict <= 1.5 x the floor at every size.
 
-Measured ratios predict / floor (full tables in benchmarks/README.md), median of six passes at
-load average 2-3 (main at 134fd87): c60 240 / 1,920 atoms: 1.71 / 1.29; naph 288 / 2,304: 1.80 /
-1.37; naph-jitter 288 / 2,304: 1.56 / 1.21; fastest of ten, same machine: c60 240 1.61, naph 288
-1.54, naph-jitter 288 / 2,304 1.64 / 1.32 (the small cells pay a fixed per-process cost, chiefly
-the free unit's point-group search). The free-unit and group-construction speed-ups alone (paired
-with main at 4dffeaf, medians of three at load average about 2): c60 240 / 1,920 2.13 / 1.53 ->
-1.41 / 1.33; with everything of the round (fastest of ten, load about 2): c60 240 2.13 -> 1.51.
-On a quiet machine before this round: c60 6,480 / 14,400 1.13 / 1.05; naph 6,480 / 14,112
-1.03 / 1.02; naph-jitter 6,480 / 14,112 1.26 / 1.19.
-"""
+Latest (main at 916b8df, another machine, fastest of five, median in brackets): c60 240 1.41
+(1.43), 1,920 1.27 (1.16); naph 288 1.23 (1.23), 2,304 1.21 (1.28); naph-jitter 288 1.52 (1.61),
+2,304 1.47 (1.37). Earlier: measured ratios predict / floor (full tables in
+benchmarks/README.md), median of six passes at load average 2-3 (main at 134fd87): c60 240 /
+1,920 atoms: 1.71 / 1.29; naph 288 / 2,304: 1.80 / 1.37; naph-jitter 288 / 2,304: 1.56 / 1.21;
+fastest of ten, same machine: c60 240 1.61, naph 288 1.54, naph-jitter 288 / 2,304 1.64 / 1.32
+(the small cells pay a fixed per-process cost, chiefly the free unit's point-group search). The
+free-unit and group-construction speed-ups alone (paired with main at 4dffeaf, medians of three
+at load average about 2): c60 240 / 1,920 2.13 / 1.53 -> 1.41 / 1.33; with everything of the
+round (fastest of ten, load about 2): c60 240 2.13 -> 1.51. On a quiet machine before this
+round: c60 6,480 / 14,400 1.13 / 1.05; naph 6,480 / 14,112 1.03 / 1.02; naph-jitter 6,480 /
+14,112 1.26 / 1.19."""
 
 from __future__ import annotations
 
