@@ -135,27 +135,8 @@ def test_cosets_are_the_smallest_reduced_shift(hall: int) -> None:
             assert g == tuple(reps[np.lexsort(reps.T[::-1])][0].tolist())
 
 
-def _atom_at_with_tree(cell, pts: np.ndarray, tol: float = 0.05) -> np.ndarray:
-    """:meth:`CellSymmetry._atom_at` through its k-d tree, however few the pairs."""
-    from scipy.spatial import cKDTree
-
-    inv = np.linalg.inv(cell.lattice)
-    out = np.full(len(pts), -1, dtype=int)
-    reach = tol * float(np.linalg.norm(inv, 2)) * (1 + 1e-9)
-    tree = cKDTree(np.mod(cell.frac, 1.0) % 1.0, boxsize=1.0)
-    for n, near in enumerate(tree.query_ball_point(np.mod(pts @ inv, 1.0) % 1.0, reach)):
-        if near:
-            near = np.sort(np.asarray(near, dtype=int))
-            d = cell.frac[near] - pts[n] @ inv
-            d -= np.round(d)
-            dist = np.linalg.norm(d @ cell.lattice, axis=1)
-            if dist.min() < tol:
-                out[n] = near[int(np.argmin(dist))]
-    return out
-
-
 @pytest.mark.parametrize("name", ["calcite.cif", "c60_ordered_Pa-3.cif", "nh4cl_ordered_P-43m.cif"])
-def test_atoms_at_points_without_a_tree(name: str) -> None:
+def test_atoms_at_points_without_a_tree(name: str, monkeypatch: pytest.MonkeyPatch) -> None:
     cell = _cell(ase.io.read(STRUCTURES / name), (0.1, 0.2, 0.3))
     rng = np.random.default_rng(0)
     cart = cell.cartesian
@@ -168,9 +149,10 @@ def test_atoms_at_points_without_a_tree(name: str) -> None:
         ]
     )
     small = np.concatenate([cell._atom_at(p[None]) for p in pts])  # one point at a time: no tree
-    assert np.array_equal(small, _atom_at_with_tree(cell, pts))
-    if len(pts) * len(cell.frac) > 20_000:  # and the tree route of many points at once
+    if len(pts) * len(cell.frac) > spacegroup._FEW_PAIRS:  # the tree route of many points at once
         assert np.array_equal(cell._atom_at(pts), small)
+    monkeypatch.setattr(spacegroup, "_FEW_PAIRS", 0)  # the tree, however few the pairs
+    assert np.array_equal(small, cell._atom_at(pts))
 
 
 @pytest.mark.parametrize("name", ORDERED)

@@ -46,6 +46,10 @@ def _quiet_spglib() -> Iterator[None]:
             err.OLD_ERROR_HANDLING = old
 
 
+#: up to this many (point, atom) pairs, :meth:`CellSymmetry._atom_at` compares every pair (no tree)
+_FEW_PAIRS = 20_000
+
+
 def spglib_dataset(lattice: np.ndarray, frac: np.ndarray, numbers: np.ndarray, tolerance: float):
     """spglib's symmetry dataset, or SymmetryError with spglib's reason."""
     import spglib
@@ -406,7 +410,7 @@ class CellSymmetry:
         out = np.full(len(pts), -1, dtype=int)
         if not len(pts) or not len(self.frac):
             return out
-        if len(pts) * len(self.frac) <= 20_000:  # few pairs: every atom, no tree
+        if len(pts) * len(self.frac) <= _FEW_PAIRS:  # few pairs: every atom, no tree
             for n in range(len(pts)):
                 d = self.frac - pts[n] @ inv
                 d -= np.round(d)
