@@ -246,3 +246,15 @@ def test_powers_of_all_operations_as_class_by_class(name: str) -> None:
         kind = every[int(m[0])]
         if kind.order > 2 and kind.symbol not in ("E", "i", "σ"):
             assert [powers[i] for i in c.members] == labels._powers(kind, every.axis[m], every.angle[m]).tolist()
+
+
+@pytest.mark.parametrize("name", ALL)
+def test_locating_the_identity_at_once_as_by_the_search(name: str) -> None:
+    # a site C1 asks only where the identity lies: answered without writing it in the standard frame
+    from splitting.groups.identify import oriented
+
+    for r in ROTATIONS:
+        og = oriented(name, r)
+        ident = np.broadcast_to(np.eye(3) + 1e-12, (2, 3, 3))
+        assert og.locate_all(ident).tolist() == [og.locate(np.eye(3))] * 2
+        assert np.allclose(og.group.operations[og.locate(np.eye(3))], np.eye(3))

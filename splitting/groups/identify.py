@@ -80,6 +80,11 @@ class OrientedGroup:
         return self.group.operations.reshape(-1, 9)
 
     @cached_property
+    def _identity_index(self) -> int:
+        """Index of the identity in ``group.operations``."""
+        return int(np.argmin(np.max(np.abs(self._flat - np.eye(3).reshape(9)), axis=1)))
+
+    @cached_property
     def _to_standard_flat(self) -> np.ndarray:
         """The operand of :func:`_conjugated_flat` that writes flattened operations in the standard frame."""
         return kronecker_squares(self.frame.T[None]).transpose(0, 2, 1)
@@ -153,6 +158,8 @@ class OrientedGroup:
         if isinstance(self.group, LinearGroup):
             raise SymmetryError(f"{self.name} operations are not enumerable")
         ops = np.asarray(ops, dtype=float).reshape(-1, 3, 3)
+        if len(ops) and np.max(np.abs(ops - np.eye(3))) < 1e-9:  # the identity in any frame (a site C1)
+            return np.full(len(ops), self._identity_index, dtype=int)
         standard = ops.reshape(len(ops), 9) @ self._to_standard_flat  # as _conjugated_flat(self.frame.T[None], ops)
         d, j = nearest_matrices(self._flat, standard.reshape(-1, 9))
         if len(d) and np.max(d) > tol:
