@@ -250,12 +250,9 @@ class _Site:
     restrictions: dict[str, Representation]
 
     @classmethod
-    def of(
-        cls, cell: CellSymmetry, factor: FactorGroup, site_idx: list[int], formula: str, axes_text, reference=None
-    ) -> _Site:
-        """The site of the cell operations ``site_idx``; ``reference`` is ``cell.reference_axes`` when known."""
-        reference = cell.reference_axes if reference is None else reference
-        site = identify_in_crystal(cell.rotations[site_idx], reference, tol=1e-3)
+    def of(cls, cell: CellSymmetry, factor: FactorGroup, site_idx: list[int], formula: str, axes_text) -> _Site:
+        """The site of the cell operations ``site_idx``."""
+        site = identify_in_crystal(cell.rotations[site_idx], cell.reference_axes, tol=1e-3)
         # site-group element order -> cell operations (the nearest, the first of equals)
         gap = np.abs(cell.rotations[site_idx][None] - np.asarray(site.operations)[:, None]).max(axis=(2, 3))
         cell_ops = [site_idx[int(k)] for k in np.argmin(gap, axis=1)]
@@ -343,8 +340,7 @@ def _given_free_groups(opts: Options, units: tuple[Unit, ...]) -> dict[str, str]
 def _predict(
     cell: CellSymmetry, units: tuple[Unit, ...], opts: Options, source: str, free_cache: FreeUnitCache | None = None
 ) -> CrystalPrediction:
-    reference = cell.reference_axes
-    factor = FactorGroup.from_rotations(cell.rotations, reference)
+    factor = FactorGroup.from_rotations(cell.rotations, cell.reference_axes)
     fg = factor.oriented
     orbits = _orbits(cell, units)
     centres = [units[orbit[0][0]].centre for orbit in orbits]
@@ -374,7 +370,7 @@ def _predict(
         key = tuple(site_idx)
         st = sites.get(key)
         if st is None:
-            st = sites[key] = _Site.of(cell, factor, site_idx, u0.formula, axes_text, reference)
+            st = sites[key] = _Site.of(cell, factor, site_idx, u0.formula, axes_text)
         site, site_cell = st.group, st.cell_ops
         trans = st.translations
         lib = zero

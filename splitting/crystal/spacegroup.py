@@ -239,7 +239,7 @@ class CellSymmetry:
             return self.conventional
         return self.given_lattice
 
-    @property
+    @functools.cached_property
     def reference_axes(self) -> np.ndarray:
         """Columns x_ref, y_ref, z_ref: the crystal axes the group frames should follow.
 
@@ -278,7 +278,9 @@ class CellSymmetry:
             z, x = use[2], use[0]
         x = x - np.dot(x, z) * z
         x /= np.linalg.norm(x)
-        return np.column_stack([x, np.cross(z, x), z])
+        axes = np.column_stack([x, np.cross(z, x), z])
+        axes.setflags(write=False)  # computed once per cell, shared by every caller
+        return axes
 
     def _two_fold_axis(self) -> np.ndarray:
         """Direction of the proper two-fold axis (point group mm2)."""
